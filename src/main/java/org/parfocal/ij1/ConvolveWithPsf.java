@@ -1,0 +1,119 @@
+package org.parfocal.ij1;
+
+import ij.IJ;
+import ij.ImagePlus;
+import ij.Prefs;
+import ij.WindowManager;
+import ij.gui.GenericDialog;
+import ij.plugin.PlugIn;
+
+import java.util.ArrayList;
+import java.util.List;
+
+import org.parfocal.conv.Acquisition;
+import org.parfocal.core.Boundary;
+import org.parfocal.core.Hyperstack;
+import org.parfocal.core.Volume;
+
+/**
+ * {@code Plugins > Parfocal > Convolve with PSF...}: simulates an acquisition, blurring an object image with a
+ * PSF and optionally adding a background and Poisson noise. The output is a new 32-bit image with the
+ * object's calibration; the inputs are not changed.
+ * <p>
+ * Macro keys (public API, keep them): {@code image psf boundary normalize background photons seed offset}.
+ */
+public class ConvolveWithPsf implements PlugIn {
+
+	static final String COMMAND = "Convolve with PSF";
+	private static final String PREFS = "parfocal.convolve.";
+
+	/** Everything the dialog decides. */
+	public record Options(String image, String psf, Acquisition.Options acquisition) {
+
+		/** The options string a macro passes to {@code run("Convolve with PSF...", ...)}. */
+		public String macroOptions() {
+			final Acquisition.Options a = acquisition;
+			return "image=" + MacroText.quote(image) + " psf=" + MacroText.quote(psf) + " boundary=" + a.boundary().key()
+					+ (a.normalizePsf() ? " normalize" : "") + " background=" + MacroText.number(a.background()) + " photons="
+					+ MacroText.number(a.photons()) + " seed=" + a.seed() + " offset=" + MacroText.number(a.offset());
+		}
+	}
+
+	@Override
+	public void run(final String arg) {
+		Commands.run(COMMAND, () -> {
+			final Options o = showDialog();
+			if (o != null) WindowManagerShow.show(run(o));
+		});
+	}
+
+	/** The dialog, or null if cancelled. */
+	Options showDialog() {
+		final String[] titles = Commands.imageTitles();
+		if (titles.length == 0) throw new IllegalArgumentException("Open an object image and a PSF first");
+		final GenericDialog gd = new GenericDialog(COMMAND);
+		gd.addChoice("Image:", titles, Commands.currentTitle(titles));
+		gd.addChoice("PSF:", titles, guessPsf(titles));
+		gd.addChoice("Boundary:", Boundary.keys(), Prefs.get(PREFS + "boundary", Boundary.MIRROR.key()));
+		gd.addCheckbox("Normalize PSF to unit sum", Prefs.get(PREFS + "normalize", true));
+		gd.addNumericField("Background:", 0, 3, 8, "added after blurring");
+		gd.addNumericField("Photons per unit:", 0, 3, 8, "0 = no noise");
+		gd.addNumericField("Seed:", 1, 0);
+		gd.addNumericField("Offset:", 0, 3, 8, "camera offset, added without noise");
+		gd.addHelp("Blurs the image with the PSF (PSF centre voxel at (k-1)/2), adds the background, then Poisson noise with "
+				+ "that many photons per intensity unit, then the camera offset. Boundary: how the image continues beyond its edges.");
+		gd.showDialog();
+		if (gd.wasCanceled()) return null;
+		final String image = gd.getNextChoice(), psf = gd.getNextChoice(), boundary = gd.getNextChoice();
+		final boolean normalize = gd.getNextBoolean();
+		final double background = gd.getNextNumber(), photons = gd.getNextNumber(), seed = gd.getNextNumber(), offset = gd.getNextNumber();
+		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
+		if (!Commands.isMacro()) {
+			Prefs.set(PREFS + "boundary", boundary);
+			Prefs.set(PREFS + "normalize", normalize);
+		}
+		return new Options(image, psf, new Acquisition.Options(Boundary.parse(boundary), normalize, background, photons, (long) seed, offset));
+	}
+
+	/** Runs the command on open images; returns the new image (not shown). */
+	public static ImagePlus run(final Options o) {
+		final ImagePlus object = Commands.image(o.image(), "image");
+		final ImagePlus psfImp = Commands.image(o.psf(), "PSF");
+		final Hyperstack in = ImageBridge.toCore(object);
+		final Volume psf = ImageBridge.toVolume(psfImp, "The PSF");
+		final IjMonitor monitor = new IjMonitor(COMMAND);
+		final Hyperstack out = Commands.withImageJThreads(() -> {
+			final Acquisition acq = new Acquisition(psf, in.first().shape(), o.acquisition());
+			final List<Volume> vols = new ArrayList<>();
+			for (int i = 0; i < in.volumes().size(); i++) {
+				monitor.progress(i, in.volumes().size(), "volume " + (i + 1) + " of " + in.volumes().size());
+				vols.add(acq.record(in.volumes().get(i), monitor));
+			}
+			return new Hyperstack(in.channels(), in.frames(), vols);
+		});
+		final ImagePlus result = ImageBridge.toImagePlus(out, WindowManager.makeUniqueName(stripExtension(object.getTitle()) + "-blurred.tif"),
+				object.getCalibration());
+		Provenance.attach(result, COMMAND, o.macroOptions(), object, psfImp);
+		monitor.done("done");
+		return result;
+	}
+
+	private static String guessPsf(final String[] titles) {
+		for (final String t : titles)
+			if (t.toLowerCase().contains("psf")) return t;
+		return titles[titles.length - 1];
+	}
+
+	static String stripExtension(final String title) {
+		final int dot = title.lastIndexOf('.');
+		return dot > 0 && title.length() - dot <= 5 ? title.substring(0, dot) : title;
+	}
+
+	/** Shows a result unless nothing was made. */
+	static final class WindowManagerShow {
+		static void show(final ImagePlus imp) {
+			if (imp != null) imp.show();
+			IJ.showStatus(COMMAND + ": created " + (imp == null ? "nothing" : imp.getTitle()));
+		}
+	}
+}
