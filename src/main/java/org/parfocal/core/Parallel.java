@@ -31,9 +31,26 @@ public final class Parallel {
 		final List<int[]> chunks = new ArrayList<>(tasks);
 		for (int c = 0; c < tasks; c++)
 			chunks.add(new int[] { (int) ((long) n * c / tasks), (int) ((long) n * (c + 1) / tasks) });
-		ex.forEach(chunks, ch -> {
-			for (int i = ch[0]; i < ch[1]; i++) body.accept(i);
-		});
+		try {
+			ex.forEach(chunks, ch -> {
+				for (int i = ch[0]; i < ch[1]; i++) body.accept(i);
+			});
+		} catch (final RuntimeException e) {
+			throw unwrap(e);
+		}
+	}
+
+	/**
+	 * The exception a task threw, rather than the executor's wrapper of it, so that one-line messages and
+	 * cancellation reach the caller as they were thrown.
+	 */
+	static RuntimeException unwrap(final RuntimeException e) {
+		for (Throwable c = e; c != null; c = c.getCause()) {
+			if (c instanceof Error err) throw err;
+			if (c instanceof IllegalArgumentException || c instanceof IllegalStateException || c instanceof Monitor.CancelledException)
+				return (RuntimeException) c;
+		}
+		return e;
 	}
 
 	/** Fixed block length of {@link #sum}: the split into blocks never depends on the thread count. */

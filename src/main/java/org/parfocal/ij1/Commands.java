@@ -1,12 +1,15 @@
 package org.parfocal.ij1;
 
-import java.util.concurrent.Callable;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.function.Supplier;
 
 import ij.IJ;
 import ij.ImagePlus;
 import ij.Macro;
 import ij.Prefs;
 import ij.WindowManager;
+import ij.gui.GenericDialog;
 import ij.macro.Interpreter;
 
 import net.imglib2.parallel.Parallelization;
@@ -44,14 +47,58 @@ final class Commands {
 		return cur != null ? cur.getTitle() : titles.length > 0 ? titles[0] : "";
 	}
 
+	/**
+	 * In a macro, the choice the dialog returned must be the value the macro gave: without a display
+	 * ij1-patcher's dialog silently falls back to the default for an unknown value, which would run the
+	 * command on the wrong image.
+	 */
+	static String checkChoice(final String key, final String chosen, final String what) {
+		final String options = Macro.getOptions();
+		if (options == null) return chosen;
+		final String given = Macro.getValue(options, key, null);
+		if (given != null && !given.equals(chosen))
+			throw new IllegalArgumentException("'" + given + "' is not a valid " + what + " (" + key + "=)");
+		return chosen;
+	}
+
+	/**
+	 * The dialog's next number. In a macro, a value that is not a number is an error naming the key, not the
+	 * default (see {@link #checkChoice}).
+	 */
+	static double number(final GenericDialog gd, final String key) {
+		final String options = Macro.getOptions();
+		final String given = options == null ? null : Macro.getValue(options, key, null);
+		final double v;
+		try {
+			v = gd.getNextNumber();
+		} catch (final NumberFormatException e) {
+			throw new IllegalArgumentException("'" + given + "' is not a number (" + key + "=)");
+		}
+		if (given != null) {
+			try {
+				Double.parseDouble(given.trim());
+			} catch (final NumberFormatException e) {
+				throw new IllegalArgumentException("'" + given + "' is not a number (" + key + "=)");
+			}
+		}
+		return v;
+	}
+
 	/** True while a macro (or a headless replay) drives the command. */
 	static boolean isMacro() {
 		return Macro.getOptions() != null;
 	}
 
-	/** Runs core work with ImageJ's thread setting (Edit > Options > Memory & Threads). */
-	static <T> T withImageJThreads(final Callable<T> work) {
-		return Parallelization.runWithNumThreads(Math.max(1, Prefs.getThreads()), work);
+	/**
+	 * Runs core work with ImageJ's thread setting (Edit > Options > Memory & Threads). Core exceptions pass
+	 * through unwrapped (ImgLib2's Callable variant would wrap them).
+	 */
+	static <T> T withImageJThreads(final Supplier<T> work) {
+		final List<T> result = new ArrayList<>(1);
+		Parallelization.runWithNumThreads(Math.max(1, Prefs.getThreads()), () -> {
+			result.add(work.get());
+		});
+		return result.get(0);
 	}
 
 	/**
@@ -66,6 +113,12 @@ final class Commands {
 			IJ.showProgress(1.0);
 			IJ.showStatus(command + ": cancelled, nothing was created");
 			return false;
+		} catch (final NumberFormatException e) {
+			// Thrown by ij1-patcher's headless dialog while it reads the macro options.
+			final String m = String.valueOf(e.getMessage());
+			final int q = m.indexOf('"');
+			fail(command, (q >= 0 ? "'" + m.substring(q + 1, m.lastIndexOf('"')) + "'" : "A value") + " is not a number");
+			return false;
 		} catch (final IllegalArgumentException | IllegalStateException e) {
 			fail(command, e.getMessage());
 			return false;
@@ -75,21 +128,13 @@ final class Commands {
 		}
 	}
 
-	/** Reports an error as one line; aborts a running macro so the failure is seen. */
+	/**
+	 * Reports an error as one line (ImageJ's error dialog; without a display ij1-patcher prints it), then aborts
+	 * a running macro so that a batch run fails visibly instead of going on without the output.
+	 */
 	static void fail(final String command, final String message) {
 		IJ.showProgress(1.0);
-		final String line = command + ": " + message;
-		if (Interpreter.getInstance() != null || isMacro() || GraphicsHeadless.isHeadless()) {
-			IJ.log("Error: " + line);
-			System.err.println("Error: " + line);
-			Interpreter.abort();
-		} else IJ.error("Parfocal", line);
-	}
-
-	/** Small indirection so tests and headless runs never open dialogs. */
-	static final class GraphicsHeadless {
-		static boolean isHeadless() {
-			return java.awt.GraphicsEnvironment.isHeadless();
-		}
+		IJ.error("Parfocal", command + ": " + message);
+		if (Interpreter.getInstance() != null) Interpreter.abort();
 	}
 }

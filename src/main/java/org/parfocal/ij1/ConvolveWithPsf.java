@@ -64,9 +64,14 @@ public class ConvolveWithPsf implements PlugIn {
 				+ "that many photons per intensity unit, then the camera offset. Boundary: how the image continues beyond its edges.");
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
-		final String image = gd.getNextChoice(), psf = gd.getNextChoice(), boundary = gd.getNextChoice();
+		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
+		final String psf = Commands.checkChoice("psf", gd.getNextChoice(), "PSF image title");
+		final String boundary = Commands.checkChoice("boundary", gd.getNextChoice(), "boundary (zero, mirror or periodic)");
 		final boolean normalize = gd.getNextBoolean();
-		final double background = gd.getNextNumber(), photons = gd.getNextNumber(), seed = gd.getNextNumber(), offset = gd.getNextNumber();
+		final double background = Commands.number(gd, "background");
+		final double photons = Commands.number(gd, "photons");
+		final double seed = Commands.number(gd, "seed");
+		final double offset = Commands.number(gd, "offset");
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		if (!Commands.isMacro()) {
 			Prefs.set(PREFS + "boundary", boundary);

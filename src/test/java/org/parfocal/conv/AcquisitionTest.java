@@ -10,13 +10,14 @@ import org.junit.jupiter.api.Test;
 import org.parfocal.core.Boundary;
 import org.parfocal.core.Monitor;
 import org.parfocal.core.Volume;
+import org.parfocal.testing.TestVolumes;
 
 class AcquisitionTest {
 
 	@Test
 	void noiseIsSeededAndThreadCountInvariant() {
-		final Volume x = ConvolutionOperatorTest.random(1, 30, 20, 8);
-		final Volume h = Psfs.normalized(ConvolutionOperatorTest.random(2, 5, 5, 3));
+		final Volume x = TestVolumes.random(1, 30, 20, 8);
+		final Volume h = Psfs.normalized(TestVolumes.random(2, 5, 5, 3));
 		final Acquisition.Options o = new Acquisition.Options(Boundary.MIRROR, true, 2, 50, 7, 100);
 		final Acquisition acq = new Acquisition(h, x.shape(), o);
 		final Volume a = Parallelization.runSingleThreaded(() -> acq.record(x, Monitor.NONE));
@@ -34,7 +35,7 @@ class AcquisitionTest {
 	void poissonMeanAndVarianceMatchTheModel() {
 		final Volume x = Volume.zeros(64, 64, 16, null);
 		java.util.Arrays.fill(x.data(), 10f);
-		final Volume h = Psfs.normalized(ConvolutionOperatorTest.random(3, 3, 3, 3));
+		final Volume h = Psfs.normalized(TestVolumes.random(3, 3, 3, 3));
 		final double s = 4, b = 2, offset = 100;
 		final Volume y = new Acquisition(h, x.shape(), new Acquisition.Options(Boundary.PERIODIC, true, b, s, 11, offset)).record(x, Monitor.NONE);
 		double m = 0, m2 = 0;
@@ -53,8 +54,8 @@ class AcquisitionTest {
 
 	@Test
 	void cancellationThrowsAndKeepsInput() {
-		final Volume x = ConvolutionOperatorTest.random(1, 16, 16, 4), copy = x.copy();
-		final Acquisition acq = new Acquisition(ConvolutionOperatorTest.random(2, 3, 3, 3), x.shape(),
+		final Volume x = TestVolumes.random(1, 16, 16, 4), copy = x.copy();
+		final Acquisition acq = new Acquisition(TestVolumes.random(2, 3, 3, 3), x.shape(),
 				new Acquisition.Options(Boundary.ZERO, true, 0, 0, 1, 0));
 		final Monitor cancelled = new Monitor() {
 			@Override
@@ -66,11 +67,11 @@ class AcquisitionTest {
 
 	@Test
 	void nanPixelsAreReportedWithTheirPosition() {
-		final Volume x = ConvolutionOperatorTest.random(1, 16, 16, 4);
+		final Volume x = TestVolumes.random(1, 16, 16, 4);
 		x.set(3, 4, 2, Float.POSITIVE_INFINITY);
-		final Acquisition acq = new Acquisition(ConvolutionOperatorTest.random(2, 3, 3, 3), x.shape(),
+		final Acquisition acq = new Acquisition(TestVolumes.random(2, 3, 3, 3), x.shape(),
 				new Acquisition.Options(Boundary.ZERO, true, 0, 0, 1, 0));
-		ConvolutionOperatorTest.assertMessage("non-finite value (Infinity) at (3, 4, 2)", () -> acq.record(x, Monitor.NONE));
-		ConvolutionOperatorTest.assertMessage("Photons must be 0", () -> new Acquisition.Options(Boundary.ZERO, true, 0, -1, 1, 0));
+		TestVolumes.assertMessage("non-finite value (Infinity) at (3, 4, 2)", () -> acq.record(x, Monitor.NONE));
+		TestVolumes.assertMessage("Photons must be 0", () -> new Acquisition.Options(Boundary.ZERO, true, 0, -1, 1, 0));
 	}
 }
