@@ -64,21 +64,12 @@ public final class Parallel {
 		final int blocks = (n + SUM_BLOCK - 1) / SUM_BLOCK;
 		final double[] partial = new double[blocks];
 		forRange(blocks, b -> {
-			double s = 0, c = 0;
-			for (int i = b * SUM_BLOCK, e = Math.min(n, i + SUM_BLOCK); i < e; i++) {
-				final double v = term.applyAsDouble(i);
-				final double t = s + v;
-				c += Math.abs(s) >= Math.abs(v) ? (s - t) + v : (v - t) + s;
-				s = t;
-			}
-			partial[b] = s + c;
+			final Sums.Compensated s = new Sums.Compensated();
+			for (int i = b * SUM_BLOCK, e = Math.min(n, i + SUM_BLOCK); i < e; i++) s.add(term.applyAsDouble(i));
+			partial[b] = s.value();
 		});
-		double s = 0, c = 0;
-		for (final double v : partial) {
-			final double t = s + v;
-			c += Math.abs(s) >= Math.abs(v) ? (s - t) + v : (v - t) + s;
-			s = t;
-		}
-		return s + c;
+		final Sums.Compensated s = new Sums.Compensated();
+		for (final double v : partial) s.add(v);
+		return s.value();
 	}
 }

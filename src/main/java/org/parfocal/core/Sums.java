@@ -17,26 +17,31 @@ public final class Sums {
 	}
 
 	public static double sum(final float[] a, final int from, final int to) {
-		double s = 0, c = 0;
-		for (int i = from; i < to; i++) {
-			final double v = a[i];
-			final double t = s + v;
-			c += Math.abs(s) >= Math.abs(v) ? (s - t) + v : (v - t) + s;
-			s = t;
-		}
-		return s + c;
+		final Compensated s = new Compensated();
+		for (int i = from; i < to; i++) s.add(a[i]);
+		return s.value();
 	}
 
 	/** Σ a[i]·b[i] with compensation. */
 	public static double dot(final float[] a, final float[] b) {
 		if (a.length != b.length) throw new IllegalArgumentException("Arrays differ in length: " + a.length + " vs " + b.length);
-		double s = 0, c = 0;
-		for (int i = 0; i < a.length; i++) {
-			final double v = (double) a[i] * b[i];
+		final Compensated s = new Compensated();
+		for (int i = 0; i < a.length; i++) s.add((double) a[i] * b[i]);
+		return s.value();
+	}
+
+	/** A running sum with Neumaier's compensation term. Not thread-safe: one per thread or block. */
+	public static final class Compensated {
+		private double s, c;
+
+		public void add(final double v) {
 			final double t = s + v;
 			c += Math.abs(s) >= Math.abs(v) ? (s - t) + v : (v - t) + s;
 			s = t;
 		}
-		return s + c;
+
+		public double value() {
+			return s + c;
+		}
 	}
 }

@@ -52,7 +52,7 @@ public class ConvolveWithPsf implements PlugIn {
 		final String[] titles = Commands.imageTitles();
 		if (titles.length == 0) throw new IllegalArgumentException("Open an object image and a PSF first");
 		final GenericDialog gd = new GenericDialog(COMMAND);
-		gd.addChoice("Image:", titles, Commands.currentTitle(titles));
+		gd.addChoice("Image:", titles, guessObject(titles));
 		gd.addChoice("PSF:", titles, guessPsf(titles));
 		gd.addChoice("Boundary:", Boundary.keys(), Prefs.get(PREFS + "boundary", Boundary.MIRROR.key()));
 		gd.addCheckbox("Normalize PSF to unit sum", Prefs.get(PREFS + "normalize", true));
@@ -101,6 +101,15 @@ public class ConvolveWithPsf implements PlugIn {
 		Provenance.attach(result, COMMAND, o.macroOptions(), object, psfImp);
 		monitor.done("done");
 		return result;
+	}
+
+	/** The current image unless it looks like a PSF; then the first image that does not. */
+	private static String guessObject(final String[] titles) {
+		final String current = Commands.currentTitle(titles);
+		if (!current.toLowerCase().contains("psf")) return current;
+		for (final String t : titles)
+			if (!t.toLowerCase().contains("psf")) return t;
+		return current;
 	}
 
 	private static String guessPsf(final String[] titles) {

@@ -382,24 +382,7 @@ public final class ImageJHarness {
 	public static ImagePlus replayInHeadlessJvm(final ImagePlus imp, final String recordedLine)
 		throws IOException, InterruptedException
 	{
-		parseRunLine(recordedLine); // reject anything that is not a single run() call
-		final Path dir = Files.createTempDirectory("parfocal-replay");
-		try {
-			final Path in = dir.resolve("in.tif");
-			final Path out = dir.resolve("out.tif");
-			if (!new FileSaver(imp).saveAsTiff(in.toString())) fail("could not save " + in);
-			final Path macro = dir.resolve("replay.ijm");
-			Files.writeString(macro, "open(\"" + in + "\");\n" + recordedLine + "\nsaveAs(\"Tiff\", \"" + out + "\");\n");
-			final HeadlessRun run = runHeadlessJvm(macro, null);
-			assertEquals(0, run.exitCode(), () -> "headless replay of " + recordedLine + " failed:\n" + run.stderr()
-				+ run.stdout());
-			final ImagePlus result = new Opener().openImage(out.toString());
-			if (result == null) fail("headless replay wrote no readable " + out + "\n" + run.stderr());
-			return result;
-		}
-		finally {
-			deleteTree(dir);
-		}
+		return replayInHeadlessJvm(recordedLine, imp);
 	}
 
 	/**
