@@ -14,6 +14,7 @@ import org.parfocal.conv.Acquisition;
 import org.parfocal.core.Boundary;
 import org.parfocal.core.Hyperstack;
 import org.parfocal.core.Volume;
+import org.parfocal.provenance.MacroOptions;
 
 /**
  * {@code Plugins > Parfocal > Convolve with PSF...}: simulates an acquisition, blurring an object image with a
@@ -33,9 +34,9 @@ public class ConvolveWithPsf implements PlugIn {
 		/** The options string a macro passes to {@code run("Convolve with PSF...", ...)}. */
 		public String macroOptions() {
 			final Acquisition.Options a = acquisition;
-			return "image=" + MacroText.quote(image) + " psf=" + MacroText.quote(psf) + " boundary=" + a.boundary().key()
-					+ (a.normalizePsf() ? " normalize" : "") + " background=" + MacroText.number(a.background()) + " photons="
-					+ MacroText.number(a.photons()) + " seed=" + a.seed() + " offset=" + MacroText.number(a.offset());
+			return "image=" + MacroOptions.quote(image) + " psf=" + MacroOptions.quote(psf) + " boundary=" + a.boundary().key()
+					+ (a.normalizePsf() ? " normalize" : "") + " background=" + MacroOptions.number(a.background()) + " photons="
+					+ MacroOptions.number(a.photons()) + " seed=" + a.seed() + " offset=" + MacroOptions.number(a.offset());
 		}
 	}
 
@@ -86,6 +87,7 @@ public class ConvolveWithPsf implements PlugIn {
 		final ImagePlus psfImp = Commands.image(o.psf(), "PSF");
 		final Hyperstack in = ImageBridge.toCore(object);
 		final Volume psf = ImageBridge.toVolume(psfImp, "The PSF");
+		final long start = System.nanoTime();
 		final IjMonitor monitor = new IjMonitor(COMMAND);
 		final Hyperstack out = Commands.withImageJThreads(() -> {
 			final Acquisition acq = new Acquisition(psf, in.first().shape(), o.acquisition());
@@ -98,7 +100,8 @@ public class ConvolveWithPsf implements PlugIn {
 		});
 		final ImagePlus result = ImageBridge.toImagePlus(out, WindowManager.makeUniqueName(stripExtension(object.getTitle()) + "-blurred.tif"),
 				object.getCalibration());
-		Provenance.attach(result, COMMAND, o.macroOptions(), object, psfImp);
+		Provenance.attach(result, Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", object))
+				.input(Provenance.input("psf", psfImp)).run("volumes", in.volumes().size()), start);
 		monitor.done("done");
 		return result;
 	}

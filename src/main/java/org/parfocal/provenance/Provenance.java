@@ -1,0 +1,168 @@
+package org.parfocal.provenance;
+
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Optional;
+
+import com.google.gson.Gson;
+import com.google.gson.GsonBuilder;
+import com.google.gson.JsonParseException;
+import com.google.gson.ToNumberPolicy;
+
+/**
+ * How an output was made: the command and every option, the inputs (title, file, SHA-256 of the pixels, and
+ * their own provenance when Parfocal made them), what the run did (iterations, why it stopped, time,
+ * threads), and the versions of Parfocal, ImageJ and Java.
+ * <p>
+ * It is stored in an image's "Info" text, which ImageJ's TIFF writer keeps, as a human-readable block
+ * followed by the same record as one line of JSON between {@link #JSON_BEGIN} and {@link #END}. The JSON
+ * form is the one programs read back ({@link #findIn}); the text form is for people.
+ */
+public final class Provenance {
+
+	public static final String TEXT_BEGIN = "# Parfocal provenance";
+	public static final String JSON_BEGIN = "# Parfocal provenance JSON";
+	public static final String END = "# end of Parfocal provenance";
+	public static final String CAUTION = "Deconvolved and simulated intensities are estimates and can show artefacts that look like "
+			+ "structure; validate before quantitative use and follow your institution's practice.";
+
+	private static final Gson GSON = new GsonBuilder().disableHtmlEscaping().serializeSpecialFloatingPointValues()
+			.setObjectToNumberStrategy(ToNumberPolicy.LONG_OR_DOUBLE).create();
+
+	/** One input image. {@code source} is its own provenance when it has one. */
+	public record Input(String role, String title, String path, String sha256, String shape, Provenance source) {}
+
+	// Fields are plain so that Gson writes them in this order; treat instances as immutable.
+	private String command;
+	private LinkedHashMap<String, String> options;
+	private String macro;
+	private List<Input> inputs;
+	private LinkedHashMap<String, Object> run;
+	private String parfocalVersion, imagejVersion, javaVersion, date;
+	private int threads;
+	private double seconds;
+	private String caution;
+
+	private Provenance() {}
+
+	/** Starts a record for {@code command} (menu label without "...") run with {@code macroOptions}. */
+	public static Builder of(final String command, final String macroOptions) {
+		return new Builder(command, macroOptions);
+	}
+
+	public String command() { return command; }
+
+	/** Every option of the run, by macro key, in dialog order. */
+	public Map<String, String> options() { return options == null ? Map.of() : options; }
+
+	/** The macro line that reruns the command: {@code run("Command...", "options");}. */
+	public String macro() { return macro; }
+
+	public List<Input> inputs() { return inputs == null ? List.of() : inputs; }
+
+	/** Facts of the run (iterations, stop reason, …) by name. */
+	public Map<String, Object> run() { return run == null ? Map.of() : run; }
+
+	public String parfocalVersion() { return parfocalVersion; }
+
+	public String imagejVersion() { return imagejVersion; }
+
+	public String javaVersion() { return javaVersion; }
+
+	public String date() { return date; }
+
+	public int threads() { return threads; }
+
+	public double seconds() { return seconds; }
+
+	public String toJson() { return GSON.toJson(this); }
+
+	/** @throws IllegalArgumentException if the text is not a provenance record */
+	public static Provenance fromJson(final String json) {
+		try {
+			final Provenance p = GSON.fromJson(json, Provenance.class);
+			if (p == null || p.command == null) throw new IllegalArgumentException("Not a Parfocal provenance record");
+			return p;
+		} catch (final JsonParseException e) {
+			throw new IllegalArgumentException("Provenance record cannot be read: " + e.getMessage());
+		}
+	}
+
+	/** The human-readable block followed by the JSON line, ready to append to an image's Info. */
+	public String toInfoText() {
+		final StringBuilder sb = new StringBuilder();
+		sb.append(TEXT_BEGIN).append('\n');
+		sb.append("command: ").append(command).append("...\n");
+		for (final Map.Entry<String, String> e : options().entrySet()) sb.append("  ").append(e.getKey()).append(" = ").append(e.getValue()).append('\n');
+		for (final Input in : inputs()) {
+			sb.append("input ").append(in.role()).append(": ").append(in.title());
+			if (in.path() != null) sb.append(" (").append(in.path()).append(')');
+			sb.append(", ").append(in.shape()).append(", sha256 ").append(in.sha256());
+			if (in.source() != null) sb.append(", made by Parfocal: ").append(in.source().command()).append("...");
+			sb.append('\n');
+		}
+		for (final Map.Entry<String, Object> e : run().entrySet()) sb.append("run ").append(e.getKey()).append(" = ").append(e.getValue()).append('\n');
+		sb.append("time: ").append(String.format(java.util.Locale.ROOT, "%.2f", seconds)).append(" s on ").append(threads).append(" thread(s), ").append(date).append('\n');
+		sb.append("versions: Parfocal ").append(parfocalVersion).append(", ImageJ ").append(imagejVersion).append(", Java ").append(javaVersion).append('\n');
+		sb.append("rerun: ").append(macro).append('\n');
+		sb.append("caution: ").append(CAUTION).append('\n');
+		sb.append(JSON_BEGIN).append('\n').append(toJson()).append('\n').append(END).append('\n');
+		return sb.toString();
+	}
+
+	/** The last provenance record in an image's Info text, if any. */
+	public static Optional<Provenance> findIn(final String info) {
+		if (info == null) return Optional.empty();
+		final int b = info.lastIndexOf(JSON_BEGIN);
+		if (b < 0) return Optional.empty();
+		final int start = info.indexOf('\n', b) + 1;
+		final int end = info.indexOf(END, start);
+		if (start <= 0 || end < 0) return Optional.empty();
+		return Optional.of(fromJson(info.substring(start, end).trim()));
+	}
+
+	/** Collects the fields of a record. */
+	public static final class Builder {
+		private final Provenance p = new Provenance();
+
+		private Builder(final String command, final String macroOptions) {
+			p.command = command;
+			p.options = MacroOptions.parse(macroOptions);
+			p.macro = "run(\"" + command + "...\", \"" + macroOptions + "\");";
+			p.inputs = new ArrayList<>();
+			p.run = new LinkedHashMap<>();
+			p.caution = CAUTION;
+		}
+
+		public Builder input(final Input in) {
+			p.inputs.add(in);
+			return this;
+		}
+
+		/** A fact of the run: iterations, stop reason, warnings, … */
+		public Builder run(final String key, final Object value) {
+			p.run.put(key, value);
+			return this;
+		}
+
+		public Builder versions(final String parfocal, final String imagej, final String java) {
+			p.parfocalVersion = parfocal;
+			p.imagejVersion = imagej;
+			p.javaVersion = java;
+			return this;
+		}
+
+		public Builder timing(final double seconds, final int threads, final String isoDate) {
+			p.seconds = seconds;
+			p.threads = threads;
+			p.date = isoDate;
+			return this;
+		}
+
+		public Provenance build() {
+			return p;
+		}
+	}
+}
