@@ -1,0 +1,114 @@
+package org.parfocal.ij1;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.awt.Choice;
+import java.awt.TextField;
+import java.util.List;
+
+import ij.ImagePlus;
+import ij.macro.Interpreter;
+
+import org.junit.jupiter.api.AfterEach;
+import org.junit.jupiter.api.Tag;
+import org.junit.jupiter.api.Test;
+import org.parfocal.core.Volume;
+import org.parfocal.psf.Fwhm;
+import org.parfocal.psf.Optics;
+import org.parfocal.psf.PsfGrid;
+import org.parfocal.psf.PsfModels;
+import org.parfocal.testing.ImageJCommandException;
+import org.parfocal.testing.ImageJHarness;
+
+class PsfFromOpticsCommandTest {
+
+	private static final String CMD = "PSF from Optics...";
+	static final List<String> KEYS = List.of("model", "modality", "na", "immersion_index", "immersion_index_design", "sample_index",
+			"coverslip_index", "coverslip_index_design", "coverslip_thickness", "coverslip_thickness_design", "working_distance", "depth",
+			"emission", "excitation", "pinhole", "sheet_thickness", "voxel_xy", "voxel_z", "size_xy", "size_z", "show_profiles");
+
+	static final String OPTIONS = "model=born-wolf modality=widefield na=1.2 immersion_index=1.333 immersion_index_design=1.333 "
+			+ "sample_index=1.333 coverslip_index=1.522 coverslip_index_design=1.522 coverslip_thickness=170 coverslip_thickness_design=170 "
+			+ "working_distance=150 depth=0 emission=0.52 excitation=0.488 pinhole=1 sheet_thickness=2 voxel_xy=0.08 voxel_z=0.2 size_xy=33 size_z=21";
+
+	@AfterEach
+	void closeAll() {
+		for (final int id : Interpreter.getBatchModeImageIDs()) {
+			final ImagePlus imp = ij.WindowManager.getImage(id);
+			if (imp != null) Interpreter.removeBatchModeImage(imp);
+		}
+	}
+
+	@Test
+	void runByMenuNameGivesTheCoreModelCalibratedWithProvenance() {
+		final ImagePlus psf = ImageJHarness.run(null, CMD, OPTIONS).onlyCreated();
+		assertEquals(32, psf.getBitDepth());
+		assertEquals(33, psf.getWidth());
+		assertEquals(21, psf.getNSlices());
+		assertEquals(0.08, psf.getCalibration().pixelWidth, 1e-12);
+		assertEquals(0.2, psf.getCalibration().pixelDepth, 1e-12);
+		assertEquals("µm", psf.getCalibration().getUnit());
+		final Optics optics = Optics.builder().na(1.2).immersionIndex(1.333).emissionWavelength(0.52).build();
+		final Volume core = PsfModels.get("born-wolf").compute(optics, new PsfGrid(33, 33, 21, 0.08, 0.08, 0.2));
+		final Volume got = ImageBridge.toVolume(psf, "psf");
+		org.junit.jupiter.api.Assertions.assertArrayEquals(core.data(), got.data(), 1e-9f);
+		assertEquals(1.0, got.sum(), 1e-5, "unit sum");
+		final var p = Provenance.of(psf).orElseThrow();
+		assertEquals(KEYS.subList(0, KEYS.size() - 1), List.copyOf(p.options().keySet()), "every key but the unchecked flag");
+		assertEquals(Fwhm.lateral(core), ((Number) p.run().get("fwhm_x_um")).doubleValue(), 1e-12);
+	}
+
+	@Test
+	void undersamplingIsReportedWithTheNumbers() {
+		final String coarse = OPTIONS.replace("voxel_xy=0.08", "voxel_xy=0.2");
+		final ImageJHarness.Result r = ImageJHarness.run(null, CMD, coarse);
+		assertTrue(String.join("\n", r.log()).contains("lateral step 0.2 µm is coarser than Nyquist"), () -> String.join("\n", r.log()));
+		assertTrue(Provenance.of(r.onlyCreated()).orElseThrow().run().get("warning").toString().startsWith("Undersampled"));
+	}
+
+	@Test
+	void badOpticsAreRefusedInOneLineAndNothingIsCreated() {
+		assertFails("must be below the immersion index", OPTIONS.replace("na=1.2", "na=1.4"));
+		assertFails("emission", OPTIONS.replace("emission=0.52", "emission=-0.5"));
+		assertFails("Enter the voxel size", OPTIONS.replace("voxel_xy=0.08", "voxel_xy=0"));
+		assertFails("'gaussian-ish'", OPTIONS.replace("model=born-wolf", "model=gaussian-ish"));
+	}
+
+	private static void assertFails(final String expected, final String options) {
+		final int before = Interpreter.getBatchModeImageIDs().length;
+		final ImageJCommandException e = assertThrows(ImageJCommandException.class, () -> ImageJHarness.run(null, CMD, options));
+		assertTrue(e.getMessage().contains(expected), e.getMessage());
+		assertEquals(before, Interpreter.getBatchModeImageIDs().length, "nothing created");
+	}
+
+	@Test
+	@Tag("display")
+	void recordedLineHasEveryKeyAndReplaysHeadless() throws Exception {
+		ImageJHarness.assumeDisplay();
+		final ImageJHarness.Recording rec = ImageJHarness.record(null, CMD, dialog -> {
+			final List<Choice> choices = dialog.getChoices().stream().map(Choice.class::cast).toList();
+			choices.get(0).select("gibson-lanni");
+			choices.get(1).select("widefield");
+			final List<TextField> f = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
+			f.get(0).setText("1.3"); // na
+			f.get(1).setText("1.518"); // immersion
+			f.get(2).setText("1.518");
+			f.get(3).setText("1.38"); // sample: index mismatch
+			f.get(9).setText("8"); // depth
+			f.get(10).setText("0.6"); // emission
+			f.get(14).setText("0.1"); // voxel xy
+			f.get(15).setText("0.25"); // voxel z
+			f.get(16).setText("31");
+			f.get(17).setText("41");
+		});
+		final String opts = ImageJHarness.parseRunLine(rec.line())[1];
+		for (final String k : KEYS) assertTrue(opts.contains(k), "recorded line lacks " + k + ": " + rec.line());
+		final ImagePlus recorded = rec.result().created().stream().filter(i -> i.getTitle().startsWith("psf-")).findFirst().orElseThrow();
+		assertEquals(2, rec.result().created().size(), "the PSF and its profile plot");
+		assertEquals(List.copyOf(org.parfocal.provenance.MacroOptions.parse(opts).keySet()),
+				List.copyOf(Provenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
+		ImageJHarness.assertSamePixels(recorded, ImageJHarness.replayInHeadlessJvm(rec.line()), 0);
+	}
+}
