@@ -4,6 +4,9 @@ import java.util.Random;
 
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
+import org.parfocal.psf.Optics;
+import org.parfocal.psf.PsfGrid;
+import org.parfocal.psf.PsfModels;
 
 /**
  * The invented scene of Parfocal's sample stacks: a "quillwort cell" (an invented cell type) seen on the
@@ -21,7 +24,7 @@ public final class SampleScene {
 
 	private SampleScene() {}
 
-	/** The sharp object: intensities in arbitrary units, cytoplasm ~20, filaments ~300, puncta ~2000 (photons at 1 photon per unit). */
+	/** The sharp object: intensities in arbitrary units, cytoplasm ~20, filaments ~3000, puncta ~20000 (integrated photons at 1 photon per unit). */
 	public static Volume cell(final int nx, final int ny, final int nz, final long seed) {
 		final Volume v = Volume.zeros(nx, ny, nz, VOXEL);
 		final Random r = new Random(seed);
@@ -40,7 +43,7 @@ public final class SampleScene {
 			double theta = r.nextDouble() * 2 * Math.PI, phi = (r.nextDouble() - 0.5) * 0.4;
 			final int steps = (int) (nx * 1.2);
 			for (int s = 0; s < steps; s++) {
-				splat(v, x, y, z, 0.6, 0.3, 300.0 / 3);
+				splat(v, x, y, z, 0.6, 0.3, 3000.0 / 3);
 				theta += r.nextGaussian() * 0.08;
 				phi = Math.max(-0.5, Math.min(0.5, phi + r.nextGaussian() * 0.05));
 				x += 0.5 * Math.cos(theta) * Math.cos(phi);
@@ -51,9 +54,25 @@ public final class SampleScene {
 		// Puncta: sub-resolution points.
 		for (int p = 0; p < 25; p++) {
 			final double x = cx + (r.nextDouble() - 0.5) * 1.6 * ax, y = cy + (r.nextDouble() - 0.5) * 1.6 * ay, z = cz + (r.nextDouble() - 0.5) * 1.6 * az;
-			splat(v, x, y, z, 0.5, 0.3, 2000);
+			splat(v, x, y, z, 0.5, 0.3, 20000);
 		}
 		return v;
+	}
+
+	/** Refractive index of the quillwort cytoplasm (invented), and the depth of the imaged cell below the coverslip, µm. */
+	public static final double SAMPLE_INDEX = 1.38, DEPTH_UM = 4;
+	/** Size of the sample PSF, voxels. */
+	public static final int PSF_XY = 31, PSF_Z = 21;
+
+	/**
+	 * The invented microscope's widefield PSF: Gibson &amp; Lanni, water immersion (design and actual 1.333) into
+	 * cytoplasm of index 1.38 at 4 µm depth, 520 nm, on the sample grid; unit sum. The same as
+	 * {@code PSF from Optics...} with these values.
+	 */
+	public static Volume psf() {
+		final Optics o = Optics.builder().na(NA).immersionIndex(IMMERSION_INDEX).sampleIndex(SAMPLE_INDEX).depth(DEPTH_UM)
+				.emissionWavelength(EMISSION_UM).build();
+		return PsfModels.get("gibson-lanni").compute(o, new PsfGrid(PSF_XY, PSF_XY, PSF_Z, VOXEL.dx(), VOXEL.dy(), VOXEL.dz()));
 	}
 
 	/**

@@ -18,7 +18,7 @@ import org.parfocal.ij1.ImageBridge;
  * See {@code sample-stacks/README.md} for the scene. Outputs (TIFF, calibrated in µm):
  * <ul>
  * <li>{@code quillwort-widefield.tif}: the simulated recording, 16-bit (camera counts, offset 100);</li>
- * <li>{@code quillwort-psf.tif}: the PSF used to simulate it, 32-bit, unit sum;</li>
+ * <li>{@code quillwort-psf.tif}: the PSF used to simulate it ({@link SampleScene#psf()}), 32-bit, unit sum;</li>
  * <li>{@code quillwort-truth.tif}: the sharp object (for tests only; real samples have none), 32-bit.</li>
  * </ul>
  */
@@ -34,7 +34,7 @@ public final class SampleStacks {
 	/** The three stacks by file name, in memory. */
 	public static Map<String, ImagePlus> make() {
 		final Volume truth = SampleScene.cell(NX, NY, NZ, SEED);
-		final Volume psf = SampleScene.gaussianPsf(17, 17, 13);
+		final Volume psf = SampleScene.psf();
 		final Acquisition acq = new Acquisition(psf, truth.shape(), new Acquisition.Options(Boundary.ZERO, true, BACKGROUND, PHOTONS, SEED, OFFSET));
 		final Volume recorded = acq.record(truth, org.parfocal.core.Monitor.NONE);
 		final Map<String, ImagePlus> out = new LinkedHashMap<>();
@@ -42,7 +42,7 @@ public final class SampleStacks {
 		rec.setDisplayRange(0, 65535);
 		new StackConverter(rec).convertToGray16();
 		rec.setProperty("Info", "Parfocal sample stack (simulated): invented quillwort cell, invented Halden W-60 widefield, "
-				+ "60x/1.2 water, emission 520 nm, Gaussian PSF, background " + BACKGROUND + ", " + PHOTONS + " photons per unit, camera offset "
+				+ "60x/1.2 water, emission 520 nm, Gibson-Lanni PSF 4 um deep in n=1.38, background " + BACKGROUND + ", " + PHOTONS + " photons per unit, camera offset "
 				+ OFFSET + ", seed " + SEED);
 		out.put("quillwort-widefield.tif", rec);
 		out.put("quillwort-psf.tif", ImageBridge.toImagePlus(psf, "quillwort-psf.tif"));
