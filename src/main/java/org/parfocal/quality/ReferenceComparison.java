@@ -1,0 +1,414 @@
+package org.parfocal.quality;
+
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.List;
+import java.util.Locale;
+import java.util.SplittableRandom;
+
+import org.parfocal.core.Monitor;
+import org.parfocal.core.Volume;
+import org.parfocal.core.VoxelSize;
+
+/**
+ * The distribution-matching check: how far the local content of a result lies from that of a set of sharp,
+ * unmatched reference images, with the scale to read it by.
+ * <p>
+ * <b>Pipeline.</b> Every image is resampled to the result's voxel size (linear interpolation,
+ * {@link Resampling}) and normalised to its own robust percentiles ({@link Normalization}). Then
+ * <ul>
+ * <li><i>patches</i>: sliced Wasserstein distance SW_p ({@link SlicedWasserstein}, p = {@link Options#power}) between
+ * random patch features ({@link Patches}) of the result and of the pooled references;</li>
+ * <li><i>intensity, gradient magnitude, Laplacian</i>: 1D Wasserstein-1 distances ({@link Wasserstein1D}) between
+ * values sampled at random voxels ({@link Marginals}).</li>
+ * </ul>
+ * <b>Calibration of the numbers.</b> Two finite samples of the same distribution are not at distance 0. The
+ * <i>floor</i> is the same distance, with the same sample counts, between two halves of the reference set (split
+ * by image, seeded, averaged over {@link Options#floorSplits} splits; a single reference is split into its two
+ * halves along its longer axis): a result indistinguishable from the references scores about the floor. The
+ * <i>confidence interval</i> is the 2.5–97.5 % percentile interval of {@link Options#bootstrap} bootstrap
+ * resamples (Efron 1979) of both samples; it shows the sampling spread (a bootstrap of a transport distance is
+ * biased upwards, so the interval may sit slightly above the estimate). The <i>baseline</i> is the distance of the
+ * blurred input, with the same sample positions as the result; <i>gap closed</i> = (d_input − d_result) /
+ * (d_input − floor): 0 = no better than the input, 1 = as close as the references are to each other, &lt; 0
+ * worse than the input, &gt; 1 closer than the floor (within noise of 1).
+ * <p>
+ * <b>Reuse.</b> {@link #prepare} does all the work on the references once (including the floor); {@link #compare}
+ * then costs only the result's side, so a deconvolution can be checked every few iterations.
+ * <p>
+ * Everything is seeded ({@link Options#seed}) and independent of the thread count. Inputs are never modified.
+ */
+public final class ReferenceComparison {
+
+	private ReferenceComparison() {}
+
+	/** Row names of the report, in order. */
+	public static final String PATCHES = "patches";
+
+	/**
+	 * @param patches patch features
+	 * @param patchCount patches drawn from the result, and (in total) from the references
+	 * @param directions number of random projection directions of the sliced distance
+	 * @param power order p of the sliced distance (the marginals always use p = 1)
+	 * @param marginalSamples voxels drawn for the 1D properties, from the result and (in total) the references
+	 * @param lowPercentile intensity percentile mapped to 0 (per image)
+	 * @param highPercentile intensity percentile mapped to 1 (per image)
+	 * @param bootstrap bootstrap resamples for the confidence intervals (0: none)
+	 * @param floorSplits splits of the reference set for the noise floor (≥ 1)
+	 * @param ignoreCalibration compare voxel for voxel without resampling, even if calibrations differ or are missing
+	 * @param seed seed of every random choice
+	 */
+	public record Options(PatchOptions patches, int patchCount, int directions, double power, int marginalSamples, double lowPercentile,
+			double highPercentile, int bootstrap, int floorSplits, boolean ignoreCalibration, long seed) {
+
+		public Options {
+			if (patches == null) throw new IllegalArgumentException("No patch options given");
+			if (patchCount < 16 || patchCount > 1 << 20) throw new IllegalArgumentException("Number of patches must be 16 to 1048576, got " + patchCount);
+			if (directions < 1 || directions > 4096) throw new IllegalArgumentException("Number of directions must be 1 to 4096, got " + directions);
+			Wasserstein1D.checkPower(power);
+			if (marginalSamples < 16 || marginalSamples > 1 << 24)
+				throw new IllegalArgumentException("Number of voxel samples must be 16 to 16777216, got " + marginalSamples);
+			if (!(lowPercentile >= 0 && lowPercentile < highPercentile && highPercentile <= 100))
+				throw new IllegalArgumentException("Percentiles must satisfy 0 ≤ low < high ≤ 100, got " + lowPercentile + " and " + highPercentile);
+			if (bootstrap < 0 || bootstrap > 10000) throw new IllegalArgumentException("Bootstrap resamples must be 0 to 10000, got " + bootstrap);
+			if (floorSplits < 1 || floorSplits > 100) throw new IllegalArgumentException("Floor splits must be 1 to 100, got " + floorSplits);
+		}
+
+		/**
+		 * 7 × 7 (× 3 in 3D) patches at 2 scales, not contrast-normalised; 8192 patches, 64 directions, p = 2;
+		 * 65536 voxel samples; percentiles 1 and 99.5; 50 bootstrap resamples; 4 floor splits; seed 1.
+		 */
+		public static Options defaults() {
+			return new Options(new PatchOptions(7, 3, 2, false, true), 8192, 64, 2, 65536, 1, 99.5, 50, 4, false, 1);
+		}
+
+		public Options withSeed(final long s) {
+			return new Options(patches, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignoreCalibration, s);
+		}
+
+		public Options withPatches(final PatchOptions p) {
+			return new Options(p, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignoreCalibration, seed);
+		}
+
+		public Options withCounts(final int patches, final int samples, final int boot) {
+			return new Options(this.patches, patches, directions, power, samples, lowPercentile, highPercentile, boot, floorSplits, ignoreCalibration, seed);
+		}
+
+		public Options withIgnoreCalibration(final boolean ignore) {
+			return new Options(patches, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignore, seed);
+		}
+	}
+
+	/**
+	 * One property: its distance result ↔ references with a bootstrap interval [low, high] (NaN without
+	 * bootstrap), the floor, the input's distance (NaN without input) and the gap closed (NaN without input, or
+	 * when the input is already within the floor).
+	 */
+	public record Row(String property, double distance, double low, double high, double floor, double baseline, double gapClosed) {}
+
+	/**
+	 * The table of the check.
+	 *
+	 * @param rows {@link #PATCHES} first, then the {@link Marginals#NAMES}
+	 * @param volumetricPatches whether the patches were 3D
+	 * @param grid the common voxel size (the result's), or null when calibrations were ignored
+	 */
+	public record Report(List<Row> rows, boolean volumetricPatches, VoxelSize grid, int patchDimension) {
+
+		public Row row(final String property) {
+			for (final Row r : rows)
+				if (r.property().equals(property)) return r;
+			throw new IllegalArgumentException("No row '" + property + "' in the report");
+		}
+
+		/** The headline number: the sliced distance of the patches. */
+		public double distance() {
+			return rows.get(0).distance();
+		}
+
+		/** Tab-separated table with a header line, for logs and tests. */
+		public String toText() {
+			final StringBuilder sb = new StringBuilder("property\tdistance\tlow\thigh\tfloor\tbaseline\tgap closed\n");
+			for (final Row r : rows)
+				sb.append(String.format(Locale.ROOT, "%s\t%.5g\t%.5g\t%.5g\t%.5g\t%.5g\t%.3f%n", r.property(), r.distance(), r.low(), r.high(), r.floor(),
+						r.baseline(), r.gapClosed()));
+			return sb.toString();
+		}
+	}
+
+	/** The references, prepared once: resampled, normalised, sampled, projected and sorted; and the floor. */
+	public static final class References {
+		final Options options;
+		final VoxelSize grid;
+		final boolean threeD, volumetric;
+		final double[] spacing;
+		final double[][] directions;
+		final SlicedWasserstein.Projected patches;
+		final SlicedWasserstein.Projected[] marginals;
+		final double[] floor;
+		final int count;
+
+		References(final Options options, final VoxelSize grid, final boolean threeD, final boolean volumetric, final double[] spacing, final double[][] directions,
+				final SlicedWasserstein.Projected patches, final SlicedWasserstein.Projected[] marginals, final double[] floor, final int count) {
+			this.options = options;
+			this.grid = grid;
+			this.threeD = threeD;
+			this.volumetric = volumetric;
+			this.spacing = spacing;
+			this.directions = directions;
+			this.patches = patches;
+			this.marginals = marginals;
+			this.floor = floor;
+			this.count = count;
+		}
+
+		public Options options() { return options; }
+
+		/** Number of reference images. */
+		public int count() { return count; }
+
+		/** Floor of each row, in report order. */
+		public double[] floor() { return floor.clone(); }
+	}
+
+	/** {@link #prepare} then {@link #compare}; {@code blurredInput} may be null. */
+	public static Report compare(final Volume result, final List<Volume> references, final Volume blurredInput, final Options options, final Monitor monitor) {
+		return compare(prepare(references, result, options, monitor), result, blurredInput, monitor);
+	}
+
+	/**
+	 * Prepares {@code references} (not modified) for comparisons with results shaped and calibrated like
+	 * {@code resultLike} (only its dimensionality and voxel size are used).
+	 *
+	 * @throws IllegalArgumentException with one line for: no references, a reference of the other
+	 *         dimensionality, calibrated and uncalibrated images mixed (unless calibrations are ignored), an
+	 *         unknown length unit, an image smaller than the patch, a constant image, a non-finite value
+	 */
+	public static References prepare(final List<Volume> references, final Volume resultLike, final Options o, final Monitor monitor) {
+		if (references == null || references.isEmpty())
+			throw new IllegalArgumentException("No reference images given: give at least one sharp image of the same kind of structure");
+		final boolean threeD = resultLike.is3D();
+		for (int i = 0; i < references.size(); i++) {
+			final Volume r = references.get(i);
+			if (r.is3D() != threeD)
+				throw new IllegalArgumentException(refName(i) + " is " + (r.is3D() ? "3D (" + r.nz() + " slices)" : "2D") + " but the result is "
+						+ (threeD ? "3D (" + resultLike.nz() + " slices)" : "2D") + ": use references of the same dimensionality");
+		}
+		final VoxelSize grid = grid(references, resultLike.voxelSize(), o.ignoreCalibration());
+		final double[] spacing = spacing(grid == null ? resultLike.voxelSize() : grid);
+		final int total = 2 + o.floorSplits();
+		int step = 0;
+		monitor.progress(step++, total, "Preparing the references");
+		final List<Volume> prepared = new ArrayList<>(references.size());
+		final List<String> names = new ArrayList<>(references.size());
+		for (int i = 0; i < references.size(); i++) {
+			monitor.checkCancelled();
+			prepared.add(onGrid(references.get(i), grid, o, refName(i)));
+			names.add(refName(i));
+		}
+		final boolean volumetric = o.patches().volumetric() && threeD;
+		final double[][] directions = SlicedWasserstein.randomDirections(o.patches().dimension(volumetric), o.directions(), mix(o.seed(), 1));
+		monitor.progress(step++, total, "Sampling the references");
+		final SlicedWasserstein.Projected patches = new SlicedWasserstein.Projected(Patches.sample(prepared, names, o.patches(), o.patchCount(), mix(o.seed(), 2)),
+				directions);
+		final SlicedWasserstein.Projected[] marginals = marginals(prepared, spacing, o.marginalSamples(), mix(o.seed(), 3));
+		// Noise floor: distances between two halves of the reference set, with the sample counts of a comparison.
+		final double[] floor = new double[1 + Marginals.NAMES.size()];
+		for (int s = 0; s < o.floorSplits(); s++) {
+			monitor.checkCancelled();
+			monitor.progress(step++, total, "Noise floor " + (s + 1) + " of " + o.floorSplits());
+			final List<Volume> a = new ArrayList<>(), b = new ArrayList<>();
+			final List<String> an = new ArrayList<>(), bn = new ArrayList<>();
+			split(prepared, names, s, mix(o.seed(), 100 + s), a, an, b, bn);
+			final long sa = mix(o.seed(), 1000 + 2L * s), sb = mix(o.seed(), 1001 + 2L * s);
+			final SlicedWasserstein.Projected pa = new SlicedWasserstein.Projected(Patches.sample(a, an, o.patches(), o.patchCount(), mix(sa, 4)), directions);
+			final SlicedWasserstein.Projected pb = new SlicedWasserstein.Projected(Patches.sample(b, bn, o.patches(), o.patchCount(), mix(sb, 2)), directions);
+			floor[0] += pa.distance(pb, o.power());
+			final SlicedWasserstein.Projected[] ma = marginals(a, spacing, o.marginalSamples(), mix(sa, 5)), mb = marginals(b, spacing, o.marginalSamples(), mix(sb, 3));
+			for (int k = 0; k < ma.length; k++) floor[1 + k] += ma[k].distance(mb[k], 1);
+		}
+		for (int k = 0; k < floor.length; k++) floor[k] /= o.floorSplits();
+		monitor.progress(total, total, "References ready");
+		return new References(o, grid, threeD, volumetric, spacing, directions, patches, marginals, floor, references.size());
+	}
+
+	/**
+	 * The check of {@code result} against prepared references; {@code blurredInput} (may be null) gives the
+	 * baseline. Neither is modified.
+	 */
+	public static Report compare(final References refs, final Volume result, final Volume blurredInput, final Monitor monitor) {
+		final Options o = refs.options;
+		if (result.is3D() != refs.threeD)
+			throw new IllegalArgumentException("The result is " + (result.is3D() ? "3D" : "2D") + " but the references were prepared for " + (refs.threeD ? "3D" : "2D") + " images");
+		monitor.checkCancelled();
+		final Side out = side(refs, result, "The result", monitor);
+		final Side in = blurredInput == null ? null : side(refs, checkedInput(blurredInput, result, refs), "The blurred input", monitor);
+		final int rows = 1 + Marginals.NAMES.size();
+		final double[] d = new double[rows], base = new double[rows];
+		d[0] = out.patches.distance(refs.patches, o.power());
+		for (int k = 0; k < out.marginals.length; k++) d[1 + k] = out.marginals[k].distance(refs.marginals[k], 1);
+		Arrays.fill(base, Double.NaN);
+		if (in != null) {
+			base[0] = in.patches.distance(refs.patches, o.power());
+			for (int k = 0; k < in.marginals.length; k++) base[1 + k] = in.marginals[k].distance(refs.marginals[k], 1);
+		}
+		// Bootstrap: resample both samples with replacement (multiplicities), sequentially seeded.
+		final double[][] boot = new double[rows][o.bootstrap()];
+		final SplittableRandom rnd = new SplittableRandom(mix(o.seed(), 6));
+		for (int b = 0; b < o.bootstrap(); b++) {
+			monitor.checkCancelled();
+			final int[] cr = counts(rnd, out.patches.count()), cf = counts(rnd, refs.patches.count());
+			boot[0][b] = out.patches.distance(refs.patches, cr, cf, o.power());
+			for (int k = 0; k < out.marginals.length; k++) {
+				final int[] mr = counts(rnd, out.marginals[k].count()), mf = counts(rnd, refs.marginals[k].count());
+				boot[1 + k][b] = out.marginals[k].distance(refs.marginals[k], mr, mf, 1);
+			}
+		}
+		final List<Row> table = new ArrayList<>(rows);
+		for (int k = 0; k < rows; k++) {
+			double lo = Double.NaN, hi = Double.NaN;
+			if (o.bootstrap() > 0) {
+				final double[] sorted = boot[k].clone();
+				Arrays.sort(sorted);
+				lo = percentileOfSorted(sorted, 2.5);
+				hi = percentileOfSorted(sorted, 97.5);
+			}
+			final double gap = base[k] - refs.floor[k] > 0 ? (base[k] - d[k]) / (base[k] - refs.floor[k]) : Double.NaN;
+			table.add(new Row(k == 0 ? PATCHES : Marginals.NAMES.get(k - 1), d[k], lo, hi, refs.floor[k], base[k], gap));
+		}
+		return new Report(List.copyOf(table), refs.volumetric, refs.grid, o.patches().dimension(refs.volumetric));
+	}
+
+	/** The sliced patch distance of {@code result} alone, without marginals or bootstrap (the cheap watch-mode number). */
+	public static double patchDistance(final References refs, final Volume result) {
+		final Volume v = onGrid(result, refs.grid, refs.options, "The result");
+		final PointSet p = Patches.sample(List.of(v), List.of("The result"), refs.options.patches(), refs.options.patchCount(), mix(refs.options.seed(), 4));
+		return new SlicedWasserstein.Projected(p, refs.directions).distance(refs.patches, refs.options.power());
+	}
+
+	// -- internals --
+
+	private record Side(SlicedWasserstein.Projected patches, SlicedWasserstein.Projected[] marginals) {}
+
+	private static Side side(final References refs, final Volume image, final String name, final Monitor monitor) {
+		final Options o = refs.options;
+		final Volume v = onGrid(image, refs.grid, o, name);
+		monitor.checkCancelled();
+		final PointSet p = Patches.sample(List.of(v), List.of(name), o.patches(), o.patchCount(), mix(o.seed(), 4));
+		return new Side(new SlicedWasserstein.Projected(p, refs.directions), marginals(List.of(v), refs.spacing, o.marginalSamples(), mix(o.seed(), 5)));
+	}
+
+	private static Volume checkedInput(final Volume input, final Volume result, final References refs) {
+		if (input.is3D() != result.is3D())
+			throw new IllegalArgumentException("The blurred input is " + (input.is3D() ? "3D" : "2D") + " but the result is " + (result.is3D() ? "3D" : "2D"));
+		if (refs.grid != null && !input.voxelSize().isCalibrated())
+			throw new IllegalArgumentException("The blurred input has no calibration but the result has (" + refs.grid + "): calibrate the input, or ignore calibrations");
+		return input;
+	}
+
+	private static SlicedWasserstein.Projected[] marginals(final List<Volume> images, final double[] spacing, final int count, final long seed) {
+		final double[][] m = Marginals.sample(images, spacing, count, seed);
+		final SlicedWasserstein.Projected[] p = new SlicedWasserstein.Projected[m.length];
+		for (int k = 0; k < m.length; k++) p[k] = SlicedWasserstein.Projected.ofValues(m[k]);
+		return p;
+	}
+
+	/** Resampled to the grid (when there is one) and normalised. */
+	static Volume onGrid(final Volume v, final VoxelSize grid, final Options o, final String name) {
+		final int bad = v.firstNonFinite();
+		if (bad >= 0) throw new IllegalArgumentException(name + " has a non-finite value (" + v.data()[bad] + ") at " + v.position(bad));
+		Volume g = v;
+		if (grid != null) {
+			if (!v.voxelSize().isCalibrated())
+				throw new IllegalArgumentException(name + " has no calibration but the result has (" + grid + "): calibrate it, or ignore calibrations");
+			g = Resampling.toVoxelSize(v, grid);
+		}
+		return Normalization.robust(g, o.lowPercentile(), o.highPercentile(), name);
+	}
+
+	/** The common grid: the result's voxel size, or null when nothing is resampled. */
+	static VoxelSize grid(final List<Volume> refs, final VoxelSize result, final boolean ignore) {
+		if (ignore) return null;
+		for (int i = 0; i < refs.size(); i++) {
+			final VoxelSize r = refs.get(i).voxelSize();
+			if (r.isCalibrated() != result.isCalibrated())
+				throw new IllegalArgumentException(result.isCalibrated()
+						? refName(i) + " has no calibration but the result has (" + result + "): calibrate the reference, or ignore calibrations to compare voxel for voxel"
+						: "The result has no calibration but " + refName(i).toLowerCase(Locale.ROOT) + " has (" + r + "): calibrate the result, or ignore calibrations to compare voxel for voxel");
+			if (r.isCalibrated()) Resampling.microns(r, refName(i));
+		}
+		if (!result.isCalibrated()) return null;
+		Resampling.microns(result, "The result");
+		return result;
+	}
+
+	/** {1, dy/dx, dz/dx}. */
+	static double[] spacing(final VoxelSize v) {
+		return new double[] { 1, v.dy() / v.dx(), v.dz() / v.dx() };
+	}
+
+	/** Two halves of the reference set for split s: by image (seeded shuffle), or a single image cut in two. */
+	private static void split(final List<Volume> imgs, final List<String> names, final int s, final long seed, final List<Volume> a, final List<String> an,
+			final List<Volume> b, final List<String> bn) {
+		final int n = imgs.size();
+		if (n >= 2) {
+			final int[] order = new int[n];
+			for (int i = 0; i < n; i++) order[i] = i;
+			final SplittableRandom r = new SplittableRandom(seed);
+			for (int i = n - 1; i > 0; i--) {
+				final int j = r.nextInt(i + 1), t = order[i];
+				order[i] = order[j];
+				order[j] = t;
+			}
+			for (int i = 0; i < n; i++) {
+				(i < n / 2 ? a : b).add(imgs.get(order[i]));
+				(i < n / 2 ? an : bn).add(names.get(order[i]));
+			}
+			return;
+		}
+		final Volume v = imgs.get(0);
+		final boolean alongX = v.nx() >= v.ny();
+		final Volume first = half(v, alongX, false), second = half(v, alongX, true);
+		final String axis = alongX ? (s % 2 == 0 ? "left" : "right") : (s % 2 == 0 ? "top" : "bottom");
+		final String other = alongX ? (s % 2 == 0 ? "right" : "left") : (s % 2 == 0 ? "bottom" : "top");
+		a.add(s % 2 == 0 ? first : second);
+		an.add(names.get(0) + " (" + axis + " half, for the noise floor with a single reference)");
+		b.add(s % 2 == 0 ? second : first);
+		bn.add(names.get(0) + " (" + other + " half, for the noise floor with a single reference)");
+	}
+
+	private static Volume half(final Volume v, final boolean alongX, final boolean second) {
+		final int nx = alongX ? v.nx() / 2 : v.nx(), ny = alongX ? v.ny() : v.ny() / 2;
+		final int ox = alongX && second ? v.nx() - nx : 0, oy = !alongX && second ? v.ny() - ny : 0;
+		final Volume h = Volume.zeros(nx, ny, v.nz(), v.voxelSize());
+		for (int z = 0; z < v.nz(); z++)
+			for (int y = 0; y < ny; y++)
+				System.arraycopy(v.data(), ox + v.nx() * (y + oy + v.ny() * z), h.data(), nx * (y + ny * z), nx);
+		return h;
+	}
+
+	private static int[] counts(final SplittableRandom r, final int n) {
+		final int[] c = new int[n];
+		for (int i = 0; i < n; i++) c[r.nextInt(n)]++;
+		return c;
+	}
+
+	/** NumPy's "linear" percentile of an ascending array. */
+	static double percentileOfSorted(final double[] s, final double q) {
+		final double h = (s.length - 1) * q / 100;
+		final int lo = (int) Math.floor(h);
+		return lo + 1 < s.length ? s[lo] + (h - lo) * (s[lo + 1] - s[lo]) : s[lo];
+	}
+
+	static String refName(final int i) {
+		return "Reference " + (i + 1);
+	}
+
+	/** SplitMix64 finaliser of seed + stream·φ: independent, reproducible sub-seeds (Steele, Lea &amp; Flood, OOPSLA 2014). */
+	static long mix(final long seed, final long stream) {
+		long z = seed + stream * 0x9E3779B97F4A7C15L;
+		z = (z ^ (z >>> 30)) * 0xBF58476D1CE4E5B9L;
+		z = (z ^ (z >>> 27)) * 0x94D049BB133111EBL;
+		return z ^ (z >>> 31);
+	}
+}
