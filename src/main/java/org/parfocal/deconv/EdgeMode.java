@@ -1,0 +1,45 @@
+package org.parfocal.deconv;
+
+/**
+ * What the deconvolution assumes about the object beyond the edges of the recorded stack. The keys are the
+ * macro values of the {@code edges=} option: keep them.
+ * <ul>
+ * <li>{@link #NON_CIRCULANT} (default): the object lives on a domain larger than the image by the PSF size
+ * minus one along each axis, and only the image window is compared with the data; the update is divided by
+ * Hᵀ1, the sensitivity of the data to each object voxel (Bertero &amp; Boccacci, Astron. Astrophys. 2005).
+ * Light from outside the field of view is accounted for, so there is no wrap-around ringing at the stack
+ * edges. Voxels of the extended domain that the data hardly see (Hᵀ1 below {@value #MIN_SENSITIVITY} of its
+ * maximum) are held at zero. For the Wiener filter, which has no non-circulant form, the data are extended by
+ * mirroring instead.</li>
+ * <li>{@link #PERIODIC}: the image is one period of a periodic object (circular convolution on the image
+ * grid). Fast and exact for periodic data, rings at the edges of real stacks.</li>
+ * <li>{@link #ZERO}: the object is zero outside the image and nothing is normalised: the model of
+ * {@code scipy.signal.convolve(mode="same")}, used by scikit-image's {@code richardson_lucy}. Edge voxels
+ * are underestimated; offered for comparison with that reference.</li>
+ * </ul>
+ */
+public enum EdgeMode {
+	NON_CIRCULANT("non-circulant"), PERIODIC("periodic"), ZERO("zero");
+
+	/** Fraction of the largest Hᵀ1 below which an extended-domain voxel is held at zero. */
+	public static final double MIN_SENSITIVITY = 1e-3;
+
+	private final String key;
+
+	EdgeMode(final String key) { this.key = key; }
+
+	public String key() { return key; }
+
+	public static EdgeMode parse(final String s) {
+		for (final EdgeMode m : values())
+			if (m.key.equalsIgnoreCase(s.trim())) return m;
+		throw new IllegalArgumentException("Unknown edge mode '" + s + "': use non-circulant, periodic or zero");
+	}
+
+	public static String[] keys() {
+		final EdgeMode[] v = values();
+		final String[] k = new String[v.length];
+		for (int i = 0; i < v.length; i++) k[i] = v[i].key;
+		return k;
+	}
+}

@@ -1,0 +1,25 @@
+package org.parfocal.deconv;
+
+import org.parfocal.core.Volume;
+
+/**
+ * Read-only view of the current iterate on the image grid (x fastest, as {@link Volume}). It reads the
+ * solver's live buffer: valid only during the {@link IterationListener} call that received it; copy what must
+ * outlive the call.
+ */
+public interface EstimateView {
+
+	int nx();
+
+	int ny();
+
+	int nz();
+
+	float get(int x, int y, int z);
+
+	/** Copies the iterate into {@code dst} (length nx·ny·nz, x fastest). */
+	void copyTo(float[] dst);
+
+	/** A new volume holding a copy of the iterate. */
+	Volume toVolume();
+}

@@ -1,0 +1,26 @@
+package org.parfocal.deconv;
+
+/**
+ * A constant intensity level (camera offset or background): none, a value given by the user, or estimated
+ * from the image (see {@link Preprocessing}).
+ */
+public record Level(Kind kind, double value) {
+
+	public enum Kind { NONE, VALUE, ESTIMATED }
+
+	public static final Level NONE = new Level(Kind.NONE, 0);
+	public static final Level ESTIMATED = new Level(Kind.ESTIMATED, 0);
+
+	public Level {
+		if (kind == null) kind = Kind.NONE;
+		if (kind != Kind.VALUE) value = 0;
+		else if (!Double.isFinite(value)) throw new IllegalArgumentException("Level must be a finite number, got " + value);
+	}
+
+	public static Level of(final double value) { return new Level(Kind.VALUE, value); }
+
+	@Override
+	public String toString() {
+		return kind == Kind.VALUE ? Double.toString(value) : kind.name().toLowerCase(java.util.Locale.ROOT);
+	}
+}

@@ -1,0 +1,152 @@
+package org.parfocal.deconv;
+
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.List;
+import java.util.Locale;
+
+import org.parfocal.conv.ConvolutionOperator;
+import org.parfocal.conv.Psfs;
+import org.parfocal.core.Volume;
+
+/**
+ * Preparation of the recorded data and of the PSF before deconvolution. Inputs are never modified.
+ * <p>
+ * <b>Data</b>, in this order:
+ * <ol>
+ * <li>non-finite values are rejected;</li>
+ * <li>the camera offset o (a constant the camera adds without noise) is subtracted: given, or estimated by
+ * {@link #estimateOffset} as the 0.1 % quantile of the recorded values, which assumes the darkest voxels
+ * received almost no light (give the value from a dark frame when the whole field has background);</li>
+ * <li>values that fall below zero (read noise around the offset) are set to zero: the Poisson model needs
+ * y ≥ 0; how many is reported;</li>
+ * <li>the background b (light that is not from the in-focus object, with shot noise) is kept in the model
+ * Hx + b rather than subtracted, which would bias dim regions after clipping: given, or estimated by
+ * {@link #estimateBackground} as a sigma-clipped median.</li>
+ * </ol>
+ * <b>PSF</b>: negative values are set to zero and the PSF is scaled to unit sum, each with a note, so that RL
+ * keeps the flux.
+ */
+public final class Preprocessing {
+
+	/** At most this many voxels are sorted by the estimators (an evenly strided sample of larger images). */
+	static final int SAMPLE = 1 << 21;
+
+	private Preprocessing() {}
+
+	/** Prepared data: y on the image grid (a new array) and the levels used. */
+	record Data(float[] y, double offset, double background, List<String> notes) {}
+
+	/** Prepared PSF (a new volume) and notes. */
+	record Psf(Volume psf, List<String> notes) {}
+
+	static Data data(final Volume image, final Level offsetLevel, final Level backgroundLevel) {
+		final List<String> notes = new ArrayList<>();
+		final int bad = image.firstNonFinite();
+		if (bad >= 0) throw new IllegalArgumentException("The image has a non-finite value (" + image.data()[bad] + ") at " + image.position(bad));
+		final float[] in = image.data();
+		final double offset;
+		switch (offsetLevel.kind()) {
+		case VALUE:
+			offset = offsetLevel.value();
+			break;
+		case ESTIMATED:
+			offset = estimateOffset(image);
+			notes.add(String.format(Locale.ROOT, "Camera offset estimated as %.4g (0.1%% quantile of the image)", offset));
+			break;
+		default:
+			offset = 0;
+		}
+		final float[] y = new float[in.length];
+		int clipped = 0;
+		double sum = 0;
+		for (int i = 0; i < in.length; i++) {
+			final float v = (float) (in[i] - offset);
+			if (v < 0) clipped++;
+			y[i] = v > 0 ? v : 0f;
+			sum += y[i];
+		}
+		if (!(sum > 0))
+			throw new IllegalArgumentException(offset == 0 ? "The image is all zero (or negative): nothing to deconvolve"
+					: String.format(Locale.ROOT, "The image is at or below the camera offset (%.4g) everywhere: nothing to deconvolve", offset));
+		if (clipped > 0)
+			notes.add(String.format(Locale.ROOT, "%d voxels (%.2g%%) below %s set to zero", clipped, 100.0 * clipped / in.length,
+					offset == 0 ? "zero" : "the camera offset"));
+		final double background;
+		switch (backgroundLevel.kind()) {
+		case VALUE:
+			background = backgroundLevel.value();
+			break;
+		case ESTIMATED:
+			background = estimateBackground(y);
+			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (sigma-clipped median)", background));
+			break;
+		default:
+			background = 0;
+		}
+		float max = 0;
+		for (final float v : y) max = Math.max(max, v);
+		if (background >= max)
+			throw new IllegalArgumentException(String.format(Locale.ROOT,
+					"The background (%.4g) is at or above the brightest offset-corrected voxel (%.4g): nothing is left to deconvolve", background, max));
+		return new Data(y, offset, background, notes);
+	}
+
+	static Psf psf(final Volume psf, final int[] imageShape) {
+		ConvolutionOperator.checkPsfFor(psf, imageShape);
+		final List<String> notes = new ArrayList<>();
+		final int[] clipped = new int[1];
+		Volume p = Psfs.clipNegative(psf, clipped);
+		if (clipped[0] > 0) notes.add("The PSF had " + clipped[0] + " negative values; they were set to zero");
+		final double s = p.sum();
+		if (!(s > 0)) throw new IllegalArgumentException("The PSF has no positive values");
+		if (Math.abs(s - 1) > 1e-4) {
+			p = Psfs.normalized(p);
+			notes.add(String.format(Locale.ROOT, "The PSF was scaled to unit sum (its sum was %.6g)", s));
+		}
+		return new Psf(p, notes);
+	}
+
+	/** Camera offset estimate: the 0.1 % quantile of the image values. */
+	public static double estimateOffset(final Volume image) {
+		final float[] s = sortedSample(image.data());
+		return s[(int) Math.floor(0.001 * (s.length - 1))];
+	}
+
+	/**
+	 * Background estimate of offset-corrected data: the median, then five times the median of the values below
+	 * median + 3σ with σ = 1.4826·MAD (the median absolute deviation scaled to a normal standard deviation).
+	 * Bright structures are excluded step by step, so for a sparse specimen the result is the level most
+	 * voxels share.
+	 */
+	public static double estimateBackground(final float[] y) {
+		float[] s = sortedSample(y);
+		double med = median(s, s.length);
+		for (int round = 0; round < 5; round++) {
+			final float[] dev = new float[s.length];
+			for (int i = 0; i < s.length; i++) dev[i] = (float) Math.abs(s[i] - med);
+			Arrays.sort(dev);
+			final double sigma = 1.4826 * median(dev, dev.length);
+			final double cut = med + 3 * sigma;
+			int keep = s.length;
+			while (keep > 1 && s[keep - 1] > cut) keep--;
+			final double next = median(s, keep);
+			s = Arrays.copyOf(s, keep);
+			if (next == med) break;
+			med = next;
+		}
+		return med;
+	}
+
+	private static double median(final float[] sorted, final int n) {
+		return n % 2 == 1 ? sorted[n / 2] : 0.5 * ((double) sorted[n / 2 - 1] + sorted[n / 2]);
+	}
+
+	private static float[] sortedSample(final float[] a) {
+		final int step = Math.max(1, (int) Math.ceil((double) a.length / SAMPLE));
+		final float[] s = new float[(a.length + step - 1) / step];
+		for (int i = 0, j = 0; i < a.length; i += step) s[j++] = a[i];
+		Arrays.sort(s);
+		return s;
+	}
+}

@@ -1,0 +1,472 @@
+package org.parfocal.deconv;
+
+import java.util.Arrays;
+
+import org.parfocal.core.MemoryBudget;
+import org.parfocal.core.Parallel;
+import org.parfocal.core.Volume;
+import org.parfocal.fft.FastSizes;
+import org.parfocal.fft.RealFft;
+
+/**
+ * The iterative engine: Richardson–Lucy, RL-TV and accelerated RL on one FFT grid.
+ * <p>
+ * <b>Grids.</b> Three boxes, all with x fastest: the image window (n voxels, where data y live), the object
+ * domain (m voxels, where the estimate x lives; it starts at the origin of the FFT grid) and the FFT grid (p
+ * voxels, 5-smooth sizes). The PSF origin is voxel c = ⌊(k − 1)/2⌋ per axis, as in
+ * {@link org.parfocal.conv.ConvolutionOperator}.
+ * <ul>
+ * <li>non-circulant: m = n + k − 1, the window starts at k − 1 − c, p = next5smooth(n + k − 1) ≥ m. Every
+ * window output of the circular convolution on p reads object voxels within [0, m) only and the
+ * correlation back onto [0, m) reads window voxels only, so H and Hᵀ are exact, without wrap-around;</li>
+ * <li>zero: m = n, the window is the object domain, p = next5smooth(n + k − 1): no wrap-around reaches it;</li>
+ * <li>periodic: m = n = p, plain circular convolution on the image grid.</li>
+ * </ul>
+ * <b>One iteration</b> is two fused convolutions ({@link RealFft#convolve}) and two passes over the grid:
+ * t ← x (kept from the previous update), t ← H t, t ← y / max(t + b, floor) in the window and 0 elsewhere
+ * (log-likelihood and Σ Hx summed on the way), t ← Hᵀ t, x ← x · t / Hᵀ1 (change and Σx summed on the way,
+ * the new x also written to t for the next iteration). Reductions are per row of the grid, combined in row
+ * order with compensation, so 1 and N threads give identical results.
+ * <p>
+ * <b>Memory</b>: the grid t, a spectrum scratch and the transfer function (≈ p each), the object x and,
+ * non-circulant, 1/Hᵀ1 (m each), the data (n). The accelerated method adds three object arrays.
+ */
+final class RichardsonLucySolver {
+
+	/** Floor of Hx + b relative to the mean of y: guards the ratio y / (Hx + b) where the model is ~0. */
+	static final double FLOOR = 1e-6;
+	/** ε of the TV gradient norm sqrt(ε² + |∇x|²), relative to the mean of y. */
+	static final double TV_EPSILON = 1e-4;
+
+	private final int nx, ny, nz, mx, my, mz, wx, wy, wz, px, py, pz;
+	private final RealFft fft;
+	private final float[] transfer, t, spec, x, invW, y;
+	private final float b, floor;
+	private final DeconvolutionMethod method;
+	private final float lambda, eps;
+	private final float[] xPrev, g1, g2;
+	private float[] gNew, gOld;
+	private final double[] r1, r2, r3, r4, norm3;
+	/** Extrapolation factor of the next prediction and the number of RL steps done (accelerated method). */
+	private double alpha;
+	private int accelSteps;
+
+	/** Largest extrapolation factor (Biggs & Andrews keep 0 ≤ α < 1). */
+	static final double MAX_ALPHA = 0.999;
+
+	RichardsonLucySolver(final Volume psf, final int[] n, final EdgeMode mode, final float[] y, final double background,
+			final DeconvolutionMethod method, final double regularization, final float[] initial) {
+		final int[] k = psf.shape(), m = new int[3], w = new int[3], p = new int[3];
+		for (int d = 0; d < 3; d++) {
+			final int c = (k[d] - 1) / 2;
+			switch (mode) {
+			case PERIODIC:
+				p[d] = m[d] = n[d];
+				break;
+			case ZERO:
+				m[d] = n[d];
+				p[d] = FastSizes.next(n[d] + k[d] - 1);
+				break;
+			default:
+				m[d] = n[d] + k[d] - 1;
+				w[d] = k[d] - 1 - c;
+				p[d] = FastSizes.next(m[d]);
+			}
+		}
+		MemoryBudget.require(bytesNeeded(n, k, mode, method), "deconvolving a " + n[0] + " x " + n[1] + " x " + n[2] + " image");
+		nx = n[0]; ny = n[1]; nz = n[2];
+		mx = m[0]; my = m[1]; mz = m[2];
+		wx = w[0]; wy = w[1]; wz = w[2];
+		px = p[0]; py = p[1]; pz = p[2];
+		this.y = y;
+		this.method = method;
+		this.fft = new RealFft(px, py, pz);
+		this.t = new float[fft.realLength()];
+		placeKernel(psf, t);
+		this.transfer = fft.transferFunction(t);
+		this.spec = fft.newSpectrum();
+		final int rows = py * pz;
+		r1 = new double[rows];
+		r2 = new double[rows];
+		r3 = new double[rows];
+		r4 = new double[rows];
+		norm3 = method == DeconvolutionMethod.RL_ACCELERATED ? new double[rows] : null;
+		double mean = 0;
+		for (final float v : y) mean += v;
+		mean /= y.length;
+		this.b = (float) background;
+		this.floor = (float) Math.max(FLOOR * mean, Float.MIN_NORMAL);
+		this.lambda = method == DeconvolutionMethod.RL_TV ? (float) regularization : 0f;
+		this.eps = (float) Math.max(TV_EPSILON * mean, Float.MIN_NORMAL);
+		this.invW = mode == EdgeMode.NON_CIRCULANT ? sensitivityInverse() : null;
+		this.x = new float[mx * my * mz];
+		initialise(initial, (float) Math.max(mean - background, floor));
+		final boolean acc = method == DeconvolutionMethod.RL_ACCELERATED;
+		xPrev = acc ? new float[x.length] : null;
+		g1 = acc ? new float[x.length] : null;
+		g2 = acc ? new float[x.length] : null;
+		gNew = g1;
+		gOld = g2;
+		copyObjectToGrid();
+	}
+
+	/** Bytes the solver allocates (the prepared data y included). */
+	static long bytesNeeded(final int[] n, final int[] k, final EdgeMode mode, final DeconvolutionMethod method) {
+		long p = 1, s = 2, m = 1, img = 1;
+		for (int d = 0; d < 3; d++) {
+			final long pd = mode == EdgeMode.PERIODIC ? n[d] : FastSizes.next(n[d] + k[d] - 1);
+			p *= pd;
+			s *= d == 0 ? pd / 2 + 1 : pd;
+			m *= mode == EdgeMode.NON_CIRCULANT ? n[d] + k[d] - 1 : n[d];
+			img *= n[d];
+		}
+		final int objects = 1 + (mode == EdgeMode.NON_CIRCULANT ? 1 : 0) + (method == DeconvolutionMethod.RL_ACCELERATED ? 3 : 0);
+		return 4 * (p + 2 * s + objects * m + img);
+	}
+
+	int[] gridShape() { return new int[] { px, py, pz }; }
+
+	int[] objectShape() { return new int[] { mx, my, mz }; }
+
+	// -- setup --
+
+	private void placeKernel(final Volume psf, final float[] dst) {
+		final int[] k = psf.shape();
+		for (int z = 0; z < k[2]; z++) {
+			final int qz = Math.floorMod(z - (k[2] - 1) / 2, pz);
+			for (int yy = 0; yy < k[1]; yy++) {
+				final int qy = Math.floorMod(yy - (k[1] - 1) / 2, py);
+				for (int xx = 0; xx < k[0]; xx++) {
+					final int qx = Math.floorMod(xx - (k[0] - 1) / 2, px);
+					dst[qx + px * (qy + py * qz)] += psf.get(xx, yy, z);
+				}
+			}
+		}
+	}
+
+	/** 1 / Hᵀ1_window on the object domain, 0 where Hᵀ1 is below {@link EdgeMode#MIN_SENSITIVITY} of its maximum. */
+	private float[] sensitivityInverse() {
+		Parallel.forRange(py * pz, r -> {
+			final int o = r * px;
+			Arrays.fill(t, o, o + px, 0f);
+			if (windowRow(r) >= 0) Arrays.fill(t, o + wx, o + wx + nx, 1f);
+		});
+		fft.convolve(t, transfer, true, spec);
+		float max = 0;
+		for (int r = 0; r < my * mz; r++) {
+			final int o = gridRowOfObjectRow(r) * px;
+			for (int i = 0; i < mx; i++) max = Math.max(max, t[o + i]);
+		}
+		final float min = (float) (EdgeMode.MIN_SENSITIVITY * max);
+		final float[] inv = new float[mx * my * mz];
+		Parallel.forRange(my * mz, r -> {
+			final int o = gridRowOfObjectRow(r) * px, c = r * mx;
+			for (int i = 0; i < mx; i++) {
+				final float v = t[o + i];
+				inv[c + i] = v >= min ? 1f / v : 0f;
+			}
+		});
+		return inv;
+	}
+
+	private void initialise(final float[] initial, final float constant) {
+		Parallel.forRange(my * mz, r -> {
+			final int iy = r % my, iz = r / my, c = r * mx;
+			final int sy = clamp(iy - wy, ny), sz = clamp(iz - wz, nz);
+			for (int i = 0; i < mx; i++) {
+				float v = initial == null ? constant : initial[clamp(i - wx, nx) + nx * (sy + ny * sz)];
+				if (!(v > 0)) v = 0;
+				if (invW != null && invW[c + i] == 0f) v = 0;
+				x[c + i] = v;
+			}
+		});
+	}
+
+	private static int clamp(final int i, final int n) {
+		return i < 0 ? 0 : i >= n ? n - 1 : i;
+	}
+
+	// -- geometry of rows --
+
+	/** Grid row of object row r = iy + my·iz. */
+	private int gridRowOfObjectRow(final int r) {
+		return r % my + py * (r / my);
+	}
+
+	/** Object row of grid row r, or -1. */
+	private int objectRow(final int r) {
+		final int gy = r % py, gz = r / py;
+		return gy < my && gz < mz ? gy + my * gz : -1;
+	}
+
+	/** Image row of grid row r, or -1. */
+	private int windowRow(final int r) {
+		final int iy = r % py - wy, iz = r / py - wz;
+		return iy >= 0 && iy < ny && iz >= 0 && iz < nz ? iy + ny * iz : -1;
+	}
+
+	// -- iteration --
+
+	/** Result of one iteration: stats of the entering iterate and of the change. */
+	record Step(double logLikelihood, double modelSum, double relativeChange, double estimateSum) {}
+
+	/** One iteration; {@code cancelCheck} runs between the two convolutions. */
+	Step iterate(final Runnable cancelCheck) {
+		if (method == DeconvolutionMethod.RL_ACCELERATED) predict();
+		fft.convolve(t, transfer, false, spec);
+		final double[] lm = ratio(true);
+		cancelCheck.run();
+		fft.convolve(t, transfer, true, spec);
+		final double[] cs = method == DeconvolutionMethod.RL_TV ? updateTv() : update();
+		return new Step(lm[0], lm[1], cs[0], cs[1]);
+	}
+
+	/** Log-likelihood and Σ Hx of the current estimate (one convolution); leaves t holding a copy of x. */
+	double[] likelihood() {
+		fft.convolve(t, transfer, false, spec);
+		final double[] lm = ratio(false);
+		copyObjectToGrid();
+		return lm;
+	}
+
+	/**
+	 * t ← y / max(t + b, floor) in the window, 0 elsewhere (if {@code divide}); returns {log-likelihood, Σ t}.
+	 */
+	private double[] ratio(final boolean divide) {
+		Parallel.forRange(py * pz, r -> {
+			final int o = r * px, wr = windowRow(r);
+			if (wr < 0) {
+				if (divide) Arrays.fill(t, o, o + px, 0f);
+				r1[r] = 0;
+				r2[r] = 0;
+				return;
+			}
+			final int q = o + wx, yo = wr * nx;
+			double ll = 0, model = 0;
+			for (int i = 0; i < nx; i++) {
+				final float hx = t[q + i];
+				float den = hx + b;
+				if (!(den >= floor)) den = floor;
+				final float yy = y[yo + i];
+				model += hx;
+				ll -= den;
+				if (yy > 0) ll += yy * FastLog.ln(den);
+				if (divide) t[q + i] = yy / den;
+			}
+			if (divide) {
+				Arrays.fill(t, o, q, 0f);
+				Arrays.fill(t, q + nx, o + px, 0f);
+			}
+			r1[r] = ll;
+			r2[r] = model;
+		});
+		return new double[] { ordered(r1), ordered(r2) };
+	}
+
+	/** x ← x · t / Hᵀ1 (≥ 0), written to x and to t (zero outside the object); returns {change, Σx}. */
+	private double[] update() {
+		final boolean acc = method == DeconvolutionMethod.RL_ACCELERATED;
+		if (acc) {
+			final float[] s = gOld;
+			gOld = gNew;
+			gNew = s;
+		}
+		final float[] gn = gNew, go = gOld, ref = acc ? xPrev : null;
+		Parallel.forRange(py * pz, r -> {
+			final int o = r * px, or = objectRow(r);
+			if (or < 0) {
+				Arrays.fill(t, o, o + px, 0f);
+				r1[r] = r2[r] = r3[r] = r4[r] = 0;
+				return;
+			}
+			final int c = or * mx;
+			double change = 0, before = 0, after = 0, dot = 0, norm = 0;
+			for (int i = 0; i < mx; i++) {
+				final float xo = x[c + i];
+				float v = xo * t[o + i];
+				if (invW != null) v = v * invW[c + i];
+				if (!(v > 0)) v = 0;
+				if (acc) {
+					final float g = v - xo, gp = go[c + i], prev = ref[c + i];
+					gn[c + i] = g;
+					dot += (double) g * gp;
+					norm += (double) gp * gp;
+					change += Math.abs(v - prev);
+					before += prev;
+				} else {
+					change += Math.abs(v - xo);
+					before += xo;
+				}
+				after += v;
+				x[c + i] = v;
+				t[o + i] = v;
+			}
+			Arrays.fill(t, o + mx, o + px, 0f);
+			r1[r] = change;
+			r2[r] = before;
+			r3[r] = after;
+			if (acc) {
+				r4[r] = dot;
+				norm3[r] = norm;
+			}
+		});
+		if (acc) {
+			final double dot = ordered(r4), norm = ordered(norm3);
+			alpha = norm > 0 ? Math.max(0, Math.min(MAX_ALPHA, dot / norm)) : 0;
+			accelSteps++;
+		}
+		final double before = ordered(r2);
+		return new double[] { before > 0 ? ordered(r1) / before : 0, ordered(r3) };
+	}
+
+
+	/**
+	 * Biggs–Andrews prediction: x_(k−1) ← x_k, x ← max(x_k + α (x_k − x_(k−1)), 0), t ← x; α = Σ g_(k−1) g_(k−2)
+	 * / Σ g_(k−2)², from the last two RL steps g = RL(prediction) − prediction, and 0 until both exist.
+	 */
+	private void predict() {
+		final float a = accelSteps >= 2 ? (float) alpha : 0f;
+		Parallel.forRange(py * pz, r -> {
+			final int o = r * px, or = objectRow(r);
+			if (or < 0) {
+				Arrays.fill(t, o, o + px, 0f);
+				return;
+			}
+			final int c = or * mx;
+			for (int i = 0; i < mx; i++) {
+				final float xk = x[c + i];
+				float v = xk + a * (xk - xPrev[c + i]);
+				if (!(v > 0)) v = 0;
+				xPrev[c + i] = xk;
+				x[c + i] = v;
+				t[o + i] = v;
+			}
+			Arrays.fill(t, o + mx, o + px, 0f);
+		});
+	}
+
+	/**
+	 * RL-TV (Dey et al. 2006): x ← x · t / Hᵀ1 / (1 − λ div(∇x/|∇x|)), forward differences for ∇ and their
+	 * negative adjoint (backward differences) for div, zero flux across the edges of the object domain,
+	 * |∇x| = sqrt(ε² + Σ (∂x)²). Near the edges of a non-circulant domain the TV term is weighted by Hᵀ1 like
+	 * the data term (denominator Hᵀ1 · (1 − λ div)). The new x goes to t (the old one is still needed for div)
+	 * and is then copied back.
+	 */
+	private double[] updateTv() {
+		final int plane = mx * my;
+		Parallel.forRange(py * pz, r -> {
+			final int o = r * px, or = objectRow(r);
+			if (or < 0) {
+				Arrays.fill(t, o, o + px, 0f);
+				r1[r] = r2[r] = r3[r] = 0;
+				return;
+			}
+			final int c = or * mx, iy = or % my, iz = or / my;
+			double change = 0, before = 0, after = 0;
+			for (int i = 0; i < mx; i++) {
+				final int l = c + i;
+				final float xo = x[l];
+				float v = xo * t[o + i];
+				if (invW != null) v = v * invW[l];
+				// div of the normalised gradient: N(l) − N(l − e_d) summed over the axes
+				final float g = gradNorm(l, i, iy, iz, plane);
+				float div = 0;
+				if (i + 1 < mx) div += (x[l + 1] - xo) / g;
+				if (iy + 1 < my) div += (x[l + mx] - xo) / g;
+				if (iz + 1 < mz) div += (x[l + plane] - xo) / g;
+				if (i > 0) div -= (xo - x[l - 1]) / gradNorm(l - 1, i - 1, iy, iz, plane);
+				if (iy > 0) div -= (xo - x[l - mx]) / gradNorm(l - mx, i, iy - 1, iz, plane);
+				if (iz > 0) div -= (xo - x[l - plane]) / gradNorm(l - plane, i, iy, iz - 1, plane);
+				v = v / (1f - lambda * div);
+				if (!(v > 0)) v = 0;
+				change += Math.abs(v - xo);
+				before += xo;
+				after += v;
+				t[o + i] = v;
+			}
+			Arrays.fill(t, o + mx, o + px, 0f);
+			r1[r] = change;
+			r2[r] = before;
+			r3[r] = after;
+		});
+		Parallel.forRange(my * mz, r -> System.arraycopy(t, gridRowOfObjectRow(r) * px, x, r * mx, mx));
+		final double before = ordered(r2);
+		return new double[] { before > 0 ? ordered(r1) / before : 0, ordered(r3) };
+	}
+
+	/** sqrt(ε² + |∇x|²) at object voxel l = (i, iy, iz), forward differences, 0 across the far edges. */
+	private float gradNorm(final int l, final int i, final int iy, final int iz, final int plane) {
+		final float xl = x[l];
+		final float dx = i + 1 < mx ? x[l + 1] - xl : 0f;
+		final float dy = iy + 1 < my ? x[l + mx] - xl : 0f;
+		final float dz = iz + 1 < mz ? x[l + plane] - xl : 0f;
+		return (float) Math.sqrt(eps * eps + dx * dx + dy * dy + dz * dz);
+	}
+
+	private void copyObjectToGrid() {
+		Parallel.forRange(py * pz, r -> {
+			final int o = r * px, or = objectRow(r);
+			if (or < 0) {
+				Arrays.fill(t, o, o + px, 0f);
+				return;
+			}
+			System.arraycopy(x, or * mx, t, o, mx);
+			Arrays.fill(t, o + mx, o + px, 0f);
+		});
+	}
+
+	/** Σ of per-row partials in row order, compensated: independent of the thread count. */
+	private static double ordered(final double[] a) {
+		double s = 0, c = 0;
+		for (final double v : a) {
+			final double u = s + v;
+			c += Math.abs(s) >= Math.abs(v) ? (s - u) + v : (v - u) + s;
+			s = u;
+		}
+		return s + c;
+	}
+
+	// -- output --
+
+	/** The current estimate on the image window, read in place. */
+	EstimateView view() {
+		return new EstimateView() {
+			@Override
+			public int nx() { return nx; }
+
+			@Override
+			public int ny() { return ny; }
+
+			@Override
+			public int nz() { return nz; }
+
+			@Override
+			public float get(final int ix, final int iy, final int iz) {
+				if (ix < 0 || iy < 0 || iz < 0 || ix >= nx || iy >= ny || iz >= nz)
+					throw new IndexOutOfBoundsException("(" + ix + ", " + iy + ", " + iz + ") is outside the " + nx + " x " + ny + " x " + nz + " image");
+				return x[ix + wx + mx * (iy + wy + my * (iz + wz))];
+			}
+
+			@Override
+			public void copyTo(final float[] dst) {
+				crop(dst);
+			}
+
+			@Override
+			public Volume toVolume() {
+				final Volume v = Volume.zeros(nx, ny, nz, null);
+				crop(v.data());
+				return v;
+			}
+		};
+	}
+
+	/** dst ← the estimate on the image window. */
+	void crop(final float[] dst) {
+		if (dst.length != nx * ny * nz) throw new IllegalArgumentException("Array of " + dst.length + " values does not match the image");
+		Parallel.forRange(ny * nz, r -> {
+			final int iy = r % ny, iz = r / ny;
+			System.arraycopy(x, wx + mx * (iy + wy + my * (iz + wz)), dst, r * nx, nx);
+		});
+	}
+}

@@ -1,0 +1,174 @@
+package org.parfocal.deconv;
+
+import java.lang.management.ManagementFactory;
+import java.lang.management.MemoryPoolMXBean;
+import java.lang.management.MemoryType;
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.List;
+import java.util.Locale;
+import java.util.Random;
+
+import net.imglib2.parallel.Parallelization;
+
+import org.parfocal.conv.Acquisition;
+import org.parfocal.core.Boundary;
+import org.parfocal.core.Monitor;
+import org.parfocal.core.Volume;
+import org.parfocal.fft.FastSizes;
+import org.parfocal.fft.RealFft;
+
+/**
+ * Benchmark (not a unit test) of the deconvolution engine, every figure measured in the same run:
+ * <ol>
+ * <li>seconds per Richardson–Lucy iteration (non-circulant edges) on 64×256×256 and 64×512×512 stacks with
+ * a 33×65×65 PSF, with 1 and 2 threads, and the speed-up;</li>
+ * <li>the bare FFT lower bound: 2 forward + 2 inverse real FFTs ({@link RealFft}) of the padded size, and
+ * the ratio of an iteration to it;</li>
+ * <li>peak heap during the run against the padded volume in float (JMX pool peaks, an upper bound that
+ * includes uncollected garbage) and the solver's own accounting;</li>
+ * <li>time-to-quality on 64×256×256: wall time of plain RL for 50 iterations and of accelerated RL until its
+ * log-likelihood reaches plain RL's after 50.</li>
+ * </ol>
+ * Run with a large heap, e.g. {@code java -Xmx8g -cp target/classes:target/test-classes:<deps>
+ * org.parfocal.deconv.DeconvolutionBenchmark}. Per-iteration times are medians of the intervals between
+ * successive iterations (setup excluded).
+ */
+public final class DeconvolutionBenchmark {
+
+	private static final int[] PSF = { 65, 65, 33 };
+
+	public static void main(final String[] args) {
+		System.out.printf(Locale.ROOT, "Parfocal deconvolution benchmark: Java %s, %d cores, max heap %s%n", System.getProperty("java.version"),
+				Runtime.getRuntime().availableProcessors(), org.parfocal.core.MemoryBudget.format(Runtime.getRuntime().maxMemory()));
+		final Volume psf = Synthetic.gaussianPsf(PSF[0], PSF[1], PSF[2], 2.0, 2.0, 4.0);
+		for (final int[] n : new int[][] { { 256, 256, 64 }, { 512, 512, 64 } }) {
+			final Volume image = recording(n, psf);
+			perIteration(image, psf);
+			if (n[0] == 256) timeToQuality(image, psf);
+		}
+	}
+
+	/** A noisy recording of an invented cell (project acquisition model, mirror edges). */
+	private static Volume recording(final int[] n, final Volume psf) {
+		final Volume object = Synthetic.cell(1, n[0], n[1], n[2], 3, n[0] / 2);
+		return new Acquisition(psf, n, new Acquisition.Options(Boundary.MIRROR, true, 2, 5, 7, 100)).record(object, Monitor.NONE);
+	}
+
+	private static DeconvolutionOptions options(final DeconvolutionMethod m, final int iterations) {
+		return DeconvolutionOptions.of(m, iterations).withOffset(Level.of(100)).withBackground(Level.of(2));
+	}
+
+	private static void perIteration(final Volume image, final Volume psf) {
+		final int[] n = image.shape();
+		final int[] p = new int[3];
+		for (int d = 0; d < 3; d++) p[d] = FastSizes.next(n[d] + PSF[d] - 1);
+		final long padded = (long) p[0] * p[1] * p[2];
+		System.out.printf(Locale.ROOT, "%nimage %d x %d x %d (z y x), PSF %d x %d x %d, padded %d x %d x %d = %.1f M voxels%n", n[2], n[1], n[0], PSF[2],
+				PSF[1], PSF[0], p[2], p[1], p[0], padded / 1e6);
+		final double[] iter = new double[3], fft = new double[3];
+		for (final int threads : new int[] { 1, 2 }) {
+			fft[threads] = Parallelization.runWithNumThreads(threads, () -> bareFft(p));
+			iter[threads] = Parallelization.runWithNumThreads(threads, () -> secondsPerIteration(image, psf, 5));
+			System.out.printf(Locale.ROOT, "  %d thread(s): RL iteration %.3f s | bare FFT bound %.3f s | ratio %.3f%n", threads, iter[threads], fft[threads],
+					iter[threads] / fft[threads]);
+		}
+		System.out.printf(Locale.ROOT, "  speed-up 2 threads vs 1: %.2f (FFT bound alone: %.2f)%n", iter[1] / iter[2], fft[1] / fft[2]);
+		// memory: the live heap measured by a full GC inside an iteration (all solver arrays live), minus the heap
+		// before the run (the input image); JMX pool peaks are also printed, an upper bound with garbage
+		final long base = usedAfterGc();
+		resetPeaks();
+		final long[] live = new long[1];
+		Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, 2), null, Monitor.NONE, (r, v) -> {
+			if (r.iteration() == 1) live[0] = usedAfterGc();
+		});
+		System.out.printf(Locale.ROOT, "  heap during RL: live %.2f x padded volume in float (solver accounting %.2f), JMX pool peaks %.2f x%n",
+				(live[0] - base) / (4.0 * padded), Deconvolution.bytesNeeded(n, PSF, options(DeconvolutionMethod.RL, 1)) / (4.0 * padded),
+				(peakHeap() - base) / (4.0 * padded));
+	}
+
+	/** Median interval between successive iteration reports. */
+	private static double secondsPerIteration(final Volume image, final Volume psf, final int iterations) {
+		final List<Long> stamps = new ArrayList<>();
+		Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, iterations), null, Monitor.NONE, (r, v) -> stamps.add(System.nanoTime()));
+		final double[] d = new double[stamps.size() - 1];
+		for (int i = 1; i < stamps.size(); i++) d[i - 1] = (stamps.get(i) - stamps.get(i - 1)) / 1e9;
+		return median(d);
+	}
+
+	/** Median time of 2 forward + 2 inverse real FFTs of the padded shape. */
+	private static double bareFft(final int[] p) {
+		final RealFft f = new RealFft(p[0], p[1], p[2]);
+		final float[] real = new float[f.realLength()], spec = f.newSpectrum();
+		final Random r = new Random(3);
+		for (int i = 0; i < real.length; i++) real[i] = r.nextFloat();
+		final double[] t = new double[4];
+		for (int rep = 0; rep < t.length; rep++) {
+			final long s = System.nanoTime();
+			for (int k = 0; k < 2; k++) {
+				f.forward(real, spec);
+				f.inverse(spec, real);
+			}
+			t[rep] = (System.nanoTime() - s) / 1e9;
+		}
+		return median(Arrays.copyOfRange(t, 1, t.length)); // first is warm-up
+	}
+
+	private static void timeToQuality(final Volume image, final Volume psf) {
+		Parallelization.runWithNumThreads(2, () -> {
+			long s = System.nanoTime();
+			final DeconvolutionResult plain = Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, 50), Monitor.NONE);
+			final double plainSeconds = (System.nanoTime() - s) / 1e9;
+			final double target = plain.logLikelihood();
+			final List<double[]> reports = new ArrayList<>();
+			final long start = System.nanoTime();
+			Deconvolution.run(image, psf, options(DeconvolutionMethod.RL_ACCELERATED, 50), null, Monitor.NONE,
+					(r, v) -> reports.add(new double[] { r.iteration(), r.logLikelihood(), (System.nanoTime() - start) / 1e9 }));
+			int reached = -1;
+			for (final double[] r : reports)
+				if (r[1] >= target) {
+					reached = (int) r[0];
+					break;
+				}
+			if (reached < 0) {
+				System.out.println("  time-to-quality: accelerated RL did not reach plain RL's 50-iteration log-likelihood in 50 iterations");
+				return null;
+			}
+			// the report of iteration j is the log-likelihood of the extrapolated point entering it; the RL step from
+			// that point cannot lower it (EM property), so a run of j iterations ends at or above the target: verified
+			final int k = reached;
+			s = System.nanoTime();
+			final DeconvolutionResult acc = Deconvolution.run(image, psf, options(DeconvolutionMethod.RL_ACCELERATED, k), Monitor.NONE);
+			final double accSeconds = (System.nanoTime() - s) / 1e9;
+			System.out.printf(Locale.ROOT,
+					"  time-to-quality (2 threads): plain RL 50 iterations %.1f s (log-likelihood %.6g); accelerated RL %d iterations %.1f s (%.6g, %s); ratio %.2f%n",
+					plainSeconds, target, k, accSeconds, acc.logLikelihood(), acc.logLikelihood() >= target ? "reached" : "NOT reached", plainSeconds / accSeconds);
+			return null;
+		});
+	}
+
+	private static long usedAfterGc() {
+		System.gc();
+		System.gc();
+		final Runtime rt = Runtime.getRuntime();
+		return rt.totalMemory() - rt.freeMemory();
+	}
+
+	private static void resetPeaks() {
+		for (final MemoryPoolMXBean b : ManagementFactory.getMemoryPoolMXBeans())
+			if (b.getType() == MemoryType.HEAP) b.resetPeakUsage();
+	}
+
+	private static long peakHeap() {
+		long s = 0;
+		for (final MemoryPoolMXBean b : ManagementFactory.getMemoryPoolMXBeans())
+			if (b.getType() == MemoryType.HEAP) s += b.getPeakUsage().getUsed();
+		return s;
+	}
+
+	static double median(final double[] a) {
+		final double[] s = a.clone();
+		Arrays.sort(s);
+		return s.length % 2 == 1 ? s[s.length / 2] : 0.5 * (s[s.length / 2 - 1] + s[s.length / 2]);
+	}
+}
