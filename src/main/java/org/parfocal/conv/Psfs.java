@@ -1,6 +1,7 @@
 package org.parfocal.conv;
 
 import org.parfocal.core.Volume;
+import org.parfocal.core.VoxelSize;
 
 /**
  * Preparation of a PSF before use: the conventions every operator assumes are unit sum (flux is kept) and
@@ -77,5 +78,58 @@ public final class Psfs {
 				for (int x = 0; x < psf.nx(); x++)
 					out.set(Math.floorMod(x + dx, psf.nx()), Math.floorMod(y + dy, psf.ny()), Math.floorMod(z + dz, psf.nz()), psf.get(x, y, z));
 		return out;
+	}
+
+	/**
+	 * Copy resampled to another voxel size by trilinear interpolation about the origin voxel, so the PSF stays
+	 * centred: the new size along each axis is the largest odd size whose half-extent does not exceed the old
+	 * one, and the result is scaled to unit sum. Used when a PSF was recorded or computed at another voxel size
+	 * than the image (sizes in the same unit).
+	 */
+	public static Volume resampleTo(final Volume psf, final VoxelSize target) {
+		final VoxelSize from = psf.voxelSize();
+		final double[] dOld = { from.dx(), from.dy(), from.dz() }, dNew = { target.dx(), target.dy(), target.dz() };
+		final int[] k = psf.shape(), kn = new int[3], c = new int[3], cn = new int[3];
+		for (int d = 0; d < 3; d++) {
+			c[d] = (k[d] - 1) / 2;
+			if (k[d] == 1) {
+				kn[d] = 1;
+				continue;
+			}
+			final int half = (int) Math.floor(c[d] * dOld[d] / dNew[d] + 1e-9);
+			kn[d] = 2 * half + 1;
+			cn[d] = half;
+		}
+		final Volume out = Volume.zeros(kn[0], kn[1], kn[2], target);
+		for (int z = 0; z < kn[2]; z++) {
+			final double pz = k[2] == 1 ? 0 : c[2] + (z - cn[2]) * dNew[2] / dOld[2];
+			for (int y = 0; y < kn[1]; y++) {
+				final double py = c[1] + (y - cn[1]) * dNew[1] / dOld[1];
+				for (int x = 0; x < kn[0]; x++) {
+					final double px = c[0] + (x - cn[0]) * dNew[0] / dOld[0];
+					out.set(x, y, z, (float) trilinear(psf, px, py, pz));
+				}
+			}
+		}
+		final double sum = out.sum();
+		if (!(sum > 0)) throw new IllegalArgumentException("The PSF resampled to " + target + " is empty");
+		final float[] d = out.data();
+		for (int i = 0; i < d.length; i++) d[i] = (float) (d[i] / sum);
+		return out;
+	}
+
+	private static double trilinear(final Volume v, final double x, final double y, final double z) {
+		final int x0 = (int) Math.floor(x), y0 = (int) Math.floor(y), z0 = (int) Math.floor(z);
+		final double fx = x - x0, fy = y - y0, fz = z - z0;
+		double s = 0;
+		for (int dz = 0; dz <= 1; dz++)
+			for (int dy = 0; dy <= 1; dy++)
+				for (int dx = 0; dx <= 1; dx++) {
+					final int xi = x0 + dx, yi = y0 + dy, zi = z0 + dz;
+					if (xi < 0 || yi < 0 || zi < 0 || xi >= v.nx() || yi >= v.ny() || zi >= v.nz()) continue;
+					final double w = (dx == 0 ? 1 - fx : fx) * (dy == 0 ? 1 - fy : fy) * (dz == 0 ? 1 - fz : fz);
+					if (w != 0) s += w * v.get(xi, yi, zi);
+				}
+		return s;
 	}
 }

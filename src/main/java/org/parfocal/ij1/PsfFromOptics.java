@@ -76,7 +76,7 @@ public class PsfFromOptics implements PlugIn {
 	@Override
 	public void run(final String arg) {
 		Commands.run(COMMAND, () -> {
-			final Options o = showDialog();
+			final Options o = showDialog(WindowManager.getCurrentImage(), true);
 			if (o == null) return;
 			final Result r = run(o);
 			if (o.showProfiles()) {
@@ -90,8 +90,12 @@ public class PsfFromOptics implements PlugIn {
 	/** The PSF, its profile plot and its FWHM table (not shown). */
 	public record Result(ImagePlus psf, Plot profiles, ResultsTable table, String warning) {}
 
-	Options showDialog() {
-		final ImagePlus cur = WindowManager.getCurrentImage();
+	/**
+	 * The dialog, or null if cancelled. Voxel sizes default to {@code calibrationSource}'s (may be null).
+	 * {@code withProfiles} adds the show_profiles checkbox; Deconvolve, which asks for the optics with this
+	 * same dialog when the PSF is to be computed, leaves it out.
+	 */
+	static Options showDialog(final ImagePlus cur, final boolean withProfiles) {
 		VoxelSize vs = cur == null ? VoxelSize.UNCALIBRATED : ImageBridge.voxelSize(cur.getCalibration());
 		double dxy = 0, dz = 0;
 		try {
@@ -125,7 +129,7 @@ public class PsfFromOptics implements PlugIn {
 		gd.addNumericField("Voxel_z:", dz, 4, 8, "µm");
 		gd.addNumericField("Size_xy:", 0, 0, 6, "voxels, odd; 0 = from the optics");
 		gd.addNumericField("Size_z:", 0, 0, 6, "voxels, odd; 0 = from the optics");
-		gd.addCheckbox("Show_profiles and FWHM table", true);
+		if (withProfiles) gd.addCheckbox("Show_profiles and FWHM table", true);
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String model = Commands.checkChoice("model", gd.getNextChoice(), "PSF model (" + String.join(", ", PsfModels.keys()) + ")");
@@ -138,7 +142,7 @@ public class PsfFromOptics implements PlugIn {
 		final double pinhole = Commands.number(gd, "pinhole"), sheet = Commands.number(gd, "sheet_thickness");
 		final double vxy = Commands.number(gd, "voxel_xy"), vz = Commands.number(gd, "voxel_z");
 		final double sxy = Commands.number(gd, "size_xy"), sz = Commands.number(gd, "size_z");
-		final boolean show = gd.getNextBoolean();
+		final boolean show = withProfiles && gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		if (!Commands.isMacro()) {
 			Prefs.set(PREFS + "model", model);

@@ -1,0 +1,215 @@
+package org.parfocal.ij1;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertNull;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.awt.Choice;
+import java.awt.TextField;
+import java.awt.event.KeyEvent;
+import java.util.List;
+import java.util.concurrent.atomic.AtomicBoolean;
+
+import ij.IJ;
+import ij.ImagePlus;
+import ij.macro.Interpreter;
+
+import org.junit.jupiter.api.AfterEach;
+import org.junit.jupiter.api.Tag;
+import org.junit.jupiter.api.Test;
+import org.parfocal.conv.Acquisition;
+import org.parfocal.core.Boundary;
+import org.parfocal.core.Monitor;
+import org.parfocal.core.Volume;
+import org.parfocal.core.VoxelSize;
+import org.parfocal.deconv.Deconvolution;
+import org.parfocal.deconv.DeconvolutionMethod;
+import org.parfocal.deconv.DeconvolutionOptions;
+import org.parfocal.deconv.EdgeMode;
+import org.parfocal.deconv.Level;
+import org.parfocal.deconv.Stopping;
+import org.parfocal.demo.SampleScene;
+import org.parfocal.psf.Optics;
+import org.parfocal.psf.PsfGrid;
+import org.parfocal.psf.PsfModels;
+import org.parfocal.testing.ImageJCommandException;
+import org.parfocal.testing.ImageJHarness;
+
+class DeconvolveCommandTest {
+
+	private static final String CMD = "Deconvolve...";
+	static final List<String> KEYS = List.of("image", "psf", "method", "iterations", "regularization", "stop", "threshold", "edges", "offset",
+			"background", "plot");
+	private static final VoxelSize VOXEL = VoxelSize.microns(0.08, 0.08, 0.2);
+
+	/** Own synthetic data: the sample scene's cell, small, blurred by a Gaussian PSF with Poisson noise and an offset. */
+	static Volume truth() {
+		return SampleScene.cell(40, 36, 10, 7);
+	}
+
+	static Volume gaussianPsf() {
+		return SampleScene.gaussianPsf(9, 9, 5);
+	}
+
+	static ImagePlus recorded(final String title) {
+		final Volume y = new Acquisition(gaussianPsf(), truth().shape(), new Acquisition.Options(Boundary.ZERO, true, 2, 1, 5, 100)).record(truth(),
+				Monitor.NONE);
+		return ImageBridge.toImagePlus(y.withVoxelSize(VOXEL), title);
+	}
+
+	static void open(final ImagePlus... imps) {
+		Interpreter.batchMode = true;
+		for (final ImagePlus imp : imps) Interpreter.addBatchModeImage(imp);
+	}
+
+	@AfterEach
+	void closeAll() {
+		for (final int id : Interpreter.getBatchModeImageIDs()) {
+			final ImagePlus imp = ij.WindowManager.getImage(id);
+			if (imp != null) Interpreter.removeBatchModeImage(imp);
+		}
+	}
+
+	static final String OPTIONS = "image=cell.tif psf=psf.tif method=richardson-lucy-tv iterations=12 regularization=0.002 stop=fixed "
+			+ "threshold=0.001 edges=non-circulant offset=100 background=auto";
+
+	@Test
+	void runByMenuNameEqualsTheCoreWithProvenanceAndKeepsTheInput() {
+		final ImagePlus img = recorded("cell.tif"), psf = ImageBridge.toImagePlus(gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
+		open(img, psf);
+		final float[] before = ((float[]) img.getStack().getPixels(5)).clone();
+		final ImagePlus out = ImageJHarness.run(img, CMD, OPTIONS).onlyCreated();
+		assertArrayEquals(before, (float[]) img.getStack().getPixels(5), "input unchanged");
+		assertEquals(0.2, out.getCalibration().pixelDepth, 1e-12);
+		final DeconvolutionOptions d = new DeconvolutionOptions(DeconvolutionMethod.RL_TV, 12, 0.002, Stopping.FIXED, 0.001, EdgeMode.NON_CIRCULANT,
+				Level.of(100), Level.ESTIMATED);
+		final Volume core = Deconvolution.run(ImageBridge.toCore(img).first(), gaussianPsf(), d, Monitor.NONE).estimate();
+		assertArrayEquals(core.data(), ImageBridge.toCore(out).first().data(), 1e-6f * max(core.data()), "command = core");
+		final var p = Provenance.of(out).orElseThrow();
+		assertEquals(KEYS.subList(0, KEYS.size() - 1), List.copyOf(p.options().keySet()));
+		assertEquals(12L, p.run().get("iterations"));
+		assertTrue(p.run().get("stop_reason").toString().contains("12 iteration"));
+		assertEquals(Provenance.sha256(psf), p.inputs().get(1).sha256());
+	}
+
+	@Test
+	void psfFromOpticsInTheSameCommand() {
+		final ImagePlus img = recorded("cell.tif");
+		open(img);
+		final String optics = "model=born-wolf modality=widefield na=1.2 immersion_index=1.333 immersion_index_design=1.333 sample_index=1.333 "
+				+ "coverslip_index=1.522 coverslip_index_design=1.522 coverslip_thickness=170 coverslip_thickness_design=170 working_distance=150 "
+				+ "depth=0 emission=0.52 excitation=0.488 pinhole=1 sheet_thickness=2 voxel_xy=0.08 voxel_z=0.2 size_xy=15 size_z=7";
+		final String options = OPTIONS.replace("psf=psf.tif", "psf=from_optics").replace("iterations=12", "iterations=5") + " " + optics;
+		final ImagePlus out = ImageJHarness.run(img, CMD, options).onlyCreated();
+		final Volume psf = PsfModels.get("born-wolf").compute(Optics.builder().na(1.2).immersionIndex(1.333).emissionWavelength(0.52).build(),
+				new PsfGrid(15, 15, 7, 0.08, 0.08, 0.2));
+		final DeconvolutionOptions d = new DeconvolutionOptions(DeconvolutionMethod.RL_TV, 5, 0.002, Stopping.FIXED, 0.001, EdgeMode.NON_CIRCULANT,
+				Level.of(100), Level.ESTIMATED);
+		final Volume core = Deconvolution.run(ImageBridge.toCore(img).first(), psf, d, Monitor.NONE).estimate();
+		assertArrayEquals(core.data(), ImageBridge.toCore(out).first().data(), 1e-6f * max(core.data()));
+		final var keys = Provenance.of(out).orElseThrow().options().keySet();
+		assertTrue(keys.containsAll(List.of("na", "sample_index", "voxel_z", "size_xy")), keys.toString());
+	}
+
+	@Test
+	void aPsfAtAnotherVoxelSizeIsResampledAndSaysSo() {
+		final ImagePlus img = recorded("cell.tif");
+		final ImagePlus fine = ImageBridge.toImagePlus(SampleScene.gaussianPsf(17, 17, 9).withVoxelSize(VoxelSize.microns(0.04, 0.04, 0.1)), "psf.tif");
+		open(img, fine);
+		final ImageJHarness.Result r = ImageJHarness.run(img, CMD, OPTIONS.replace("iterations=12", "iterations=2"));
+		assertTrue(String.join("\n", r.log()).contains("PSF resampled from 0.04 x 0.04 x 0.1 µm"), () -> String.join("\n", r.log()));
+		assertTrue(Provenance.of(r.onlyCreated()).orElseThrow().run().get("notes").toString().contains("resampled"));
+	}
+
+	@Test
+	void badInputIsRefusedInOneLineAndNothingIsCreated() {
+		final ImagePlus img = recorded("cell.tif"), psf = ImageBridge.toImagePlus(gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
+		final ImagePlus flat = ImageBridge.toImagePlus(SampleScene.gaussianPsf(9, 9, 1).withVoxelSize(VOXEL), "flat.tif");
+		final Volume nanVol = ImageBridge.toCore(img).first().copy();
+		nanVol.set(3, 3, 3, Float.NaN);
+		final ImagePlus nan = ImageBridge.toImagePlus(nanVol, "nan.tif");
+		open(img, psf, flat, nan);
+		assertFails("Iterations must be between 1 and 10000", img, OPTIONS.replace("iterations=12", "iterations=0"));
+		assertFails("Iterations must be between 1 and 10000", img, OPTIONS.replace("iterations=12", "iterations=20000"));
+		assertFails("regularisation weight must be 0 or more", img, OPTIONS.replace("regularization=0.002", "regularization=-1"));
+		assertFails("'sharpest'", img, OPTIONS.replace("method=richardson-lucy-tv", "method=sharpest"));
+		assertFails("'dark' is not a number or auto (offset=)", img, OPTIONS.replace("offset=100", "offset=dark"));
+		assertFails("2D", img, OPTIONS.replace("psf=psf.tif", "psf=flat.tif"));
+		assertFails("non-finite", nan, OPTIONS.replace("image=cell.tif", "image=nan.tif"));
+	}
+
+	private static void assertFails(final String expected, final ImagePlus current, final String options) {
+		final int before = Interpreter.getBatchModeImageIDs().length;
+		final ImageJCommandException e = assertThrows(ImageJCommandException.class, () -> ImageJHarness.run(current, CMD, options));
+		assertTrue(e.getMessage().contains(expected), e.getMessage());
+		assertEquals(before, Interpreter.getBatchModeImageIDs().length, "nothing created");
+	}
+
+	/** Esc (ImageJ's escape flag) stops the run: no output, input untouched. */
+	@Test
+	void escapeCancelsCleanly() throws Exception {
+		final ImagePlus img = recorded("cell.tif"), psf = ImageBridge.toImagePlus(gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
+		open(img, psf);
+		final float[] before = ((float[]) img.getStack().getPixels(3)).clone();
+		final AtomicBoolean done = new AtomicBoolean();
+		final Thread presser = new Thread(() -> {
+			while (!done.get()) {
+				IJ.setKeyDown(KeyEvent.VK_ESCAPE);
+				try {
+					Thread.sleep(5);
+				} catch (final InterruptedException e) {
+					return;
+				}
+			}
+		});
+		presser.start();
+		final ImageJHarness.Result r;
+		try {
+			r = ImageJHarness.run(img, CMD, OPTIONS.replace("iterations=12", "iterations=10000"));
+		} finally {
+			done.set(true);
+			presser.join();
+			IJ.resetEscape();
+			IJ.setKeyUp(KeyEvent.VK_ESCAPE);
+		}
+		assertTrue(r.created().stream().noneMatch(i -> i.getTitle().contains("deconvolved")), "nothing created: " + r.created());
+		assertEquals(2, Interpreter.getBatchModeImageIDs().length, "only the two inputs are open");
+		assertArrayEquals(before, (float[]) img.getStack().getPixels(3));
+		assertNull(Provenance.of(img).orElse(null), "input untouched");
+	}
+
+	@Test
+	@Tag("display")
+	void recordedLineReplaysHeadless() throws Exception {
+		ImageJHarness.assumeDisplay();
+		final ImagePlus img = recorded("cell.tif"), psf = ImageBridge.toImagePlus(gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
+		open(img, psf);
+		final ImageJHarness.Recording rec = ImageJHarness.record(img, CMD, dialog -> {
+			final List<Choice> ch = dialog.getChoices().stream().map(Choice.class::cast).toList();
+			ch.get(0).select("cell.tif");
+			ch.get(1).select("psf.tif");
+			ch.get(2).select("accelerated-richardson-lucy");
+			ch.get(3).select("relative-change");
+			final List<TextField> num = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
+			num.get(0).setText("15");
+			num.get(2).setText("0.002");
+			final List<TextField> str = dialog.getStringFields().stream().map(TextField.class::cast).toList();
+			str.get(0).setText("100");
+			str.get(1).setText("auto");
+		});
+		final String opts = ImageJHarness.parseRunLine(rec.line())[1];
+		for (final String k : KEYS) assertTrue(opts.matches("(^|.* )" + k + "(=.*| .*|$)"), "recorded line lacks " + k + ": " + rec.line());
+		final ImagePlus recorded = rec.result().created().stream().filter(i -> i.getTitle().equals("cell-deconvolved.tif")).findFirst().orElseThrow();
+		assertEquals(List.copyOf(org.parfocal.provenance.MacroOptions.parse(opts).keySet()),
+				List.copyOf(Provenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
+		ImageJHarness.assertSamePixels(recorded, ImageJHarness.replayInHeadlessJvm(rec.line(), img, psf), 0);
+	}
+
+	private static float max(final float[] a) {
+		float m = 0;
+		for (final float v : a) m = Math.max(m, Math.abs(v));
+		return m;
+	}
+}
