@@ -30,7 +30,8 @@ import ij.macro.Interpreter;
  *
  * <p>The macro sees {@code argument} through {@code getArgument()}. Everything the macro writes with
  * {@code print()}/{@code IJ.log} goes to standard output. Exit code 0 means the macro ran to its end
- * (or called {@code exit}); 1 means it failed, with one line {@code Macro failed: <message> (line N)}
+ * (or called {@code exit}); 1 means it failed — a macro error, a plugin error, or {@code exit("Error: ...")} —
+ * with one line {@code Macro failed: <message> (line N)}
  * on standard error; 2 means bad usage or a JVM started without the recipe above.
  *
  * <p>ImageJ's own {@code -batch} mode exits 0 when a macro fails, and a plugin exception inside a
@@ -50,6 +51,9 @@ public final class HeadlessMacro {
 	public static void main(final String[] args) {
 		System.exit(runMain(args));
 	}
+
+	/** A macro that ends with {@code exit("Error: ...")} has failed; see {@link #run}. */
+	public static final String EXIT_ERROR_PREFIX = "Error:";
 
 	/** Does the work of {@link #main} and returns the exit code instead of exiting. */
 	static int runMain(final String[] args) {
@@ -138,12 +142,14 @@ public final class HeadlessMacro {
 		IJ.getErrorMessage(); // clear any earlier error
 		String returned = null;
 		String unexpected = null;
+		boolean cancelled = false;
 		try {
 			returned = interpreter.run(macro, argument);
 		}
 		catch (final RuntimeException e) {
 			// errors, aborts and exit() unwind with MACRO_CANCELED; anything else is a failure itself
 			if (!Macro.MACRO_CANCELED.equals(e.getMessage())) unexpected = e.toString();
+			else cancelled = true;
 		}
 		finally {
 			out.abortOnException(null);
@@ -167,6 +173,10 @@ public final class HeadlessMacro {
 			if (trace != null) error = trace.firstLine();
 		}
 		if (error == null) error = unexpected;
+		// Convention for batch macros: exit("Error: <why>") ends the macro as a failure (a plain exit() or an
+		// exit with any other message is a normal end). Without a display, exit's message is the last line.
+		if (error == null && cancelled && !log.isEmpty() && log.get(log.size() - 1).startsWith(EXIT_ERROR_PREFIX))
+			error = log.get(log.size() - 1).substring(EXIT_ERROR_PREFIX.length()).strip();
 		return new Outcome(log, error, line, returned);
 	}
 

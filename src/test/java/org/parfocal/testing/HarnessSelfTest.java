@@ -212,6 +212,16 @@ class HarnessSelfTest {
 		assertEquals("Macro failed: Undefined variable (line 2)", e.getMessage());
 	}
 
+	/** Parfocal's batch convention: exit("Error: ...") fails the run; a plain exit or another message does not. */
+	@Test
+	void exitWithAnErrorMessageIsAFailureAndOtherExitsAreNot() {
+		final ImageJCommandException e = assertThrows(ImageJCommandException.class,
+			() -> ImageJHarness.runMacro("print(1);\nexit(\"Error: no stacks in /data/in\");\nprint(2);", null));
+		assertTrue(e.getMessage().startsWith("Macro failed: no stacks in /data/in"), e.getMessage());
+		assertEquals(List.of("1", "all done"), ImageJHarness.runMacro("print(1);\nexit(\"all done\");", null).log());
+		assertEquals(List.of("1"), ImageJHarness.runMacro("print(1);\nexit;\nprint(2);", null).log());
+	}
+
 	@Test
 	void unknownCommandInAMacroFailsAtItsLine() {
 		final ImageJCommandException e = assertThrows(ImageJCommandException.class,
