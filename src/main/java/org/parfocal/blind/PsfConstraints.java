@@ -1,0 +1,182 @@
+package org.parfocal.blind;
+
+import org.parfocal.fft.FastSizes;
+import org.parfocal.fft.RealFft;
+
+/**
+ * The projections applied to the PSF estimate after each PSF update, in this order: band limit (optional),
+ * non-negativity, cylindrical symmetry (optional), centring (optional), unit sum. The support limit is built
+ * in: the estimate lives on its box. Each step works in place on the box array (x fastest) and is
+ * single-threaded (the box is small), so results do not depend on the thread count.
+ * <p>
+ * Written by hand: these are small, specific projections with no library counterpart.
+ */
+final class PsfConstraints {
+
+	private final int kx, ky, kz;
+	private final double dx, dy, dz;
+	/** Band-limit filter on a zero-padded grid, or null. */
+	private final RealFft fft;
+	private final boolean[] keep;
+	private final float[] padded, spectrum;
+	private final boolean symmetric, centring;
+	/** Centroid to keep (voxels), set from the starting PSF. */
+	private final double[] target;
+
+	/**
+	 * @param support the band limit, or null for none
+	 * @param dx voxel sizes in µm (any positive values when there is no band limit)
+	 */
+	PsfConstraints(final int kx, final int ky, final int kz, final double dx, final double dy, final double dz, final OtfSupport support,
+			final boolean symmetric, final boolean centring, final float[] start) {
+		this.kx = kx;
+		this.ky = ky;
+		this.kz = kz;
+		this.dx = dx;
+		this.dy = dy;
+		this.dz = dz;
+		this.symmetric = symmetric;
+		this.centring = centring;
+		this.target = centroid(start);
+		if (support != null) {
+			// Zero padding to about twice the box: the filter's spread is cut back by the box, not wrapped around.
+			final int qx = FastSizes.next(2 * kx), qy = ky > 1 ? FastSizes.next(2 * ky) : 1, qz = kz > 1 ? FastSizes.next(2 * kz) : 1;
+			fft = new RealFft(qx, qy, qz);
+			padded = new float[fft.realLength()];
+			spectrum = fft.newSpectrum();
+			final int h = qx / 2 + 1;
+			keep = new boolean[h * qy * qz];
+			for (int iz = 0; iz < qz; iz++) {
+				final double fz = signed(iz, qz) / (qz * dz);
+				for (int iy = 0; iy < qy; iy++) {
+					final double fy = signed(iy, qy) / (qy * dy);
+					for (int ix = 0; ix < h; ix++) {
+						final double fx = ix / (qx * dx);
+						keep[ix + h * (iy + qy * iz)] = support.contains(Math.hypot(fx, fy), kz > 1 ? fz : 0);
+					}
+				}
+			}
+		} else {
+			fft = null;
+			padded = spectrum = null;
+			keep = null;
+		}
+	}
+
+	private static int signed(final int i, final int n) {
+		return i <= n / 2 ? i : i - n;
+	}
+
+	/** Applies every enabled constraint to {@code h} (box array), ending with unit sum. */
+	void apply(final float[] h) {
+		if (fft != null) bandLimit(h);
+		for (int i = 0; i < h.length; i++) if (!(h[i] > 0)) h[i] = 0;
+		if (symmetric) symmetrize(h);
+		if (centring) centre(h);
+		normalize(h);
+	}
+
+	/** Zeroes the transfer function outside the support (zero-padded DFT), crops back to the box. */
+	void bandLimit(final float[] h) {
+		final int qx = fft.nx(), qy = fft.ny();
+		java.util.Arrays.fill(padded, 0f);
+		for (int z = 0; z < kz; z++)
+			for (int y = 0; y < ky; y++)
+				System.arraycopy(h, kx * (y + ky * z), padded, qx * (y + qy * z), kx);
+		fft.forward(padded, spectrum);
+		for (int i = 0; i < keep.length; i++)
+			if (!keep[i]) {
+				spectrum[2 * i] = 0;
+				spectrum[2 * i + 1] = 0;
+			}
+		fft.inverse(spectrum, padded);
+		for (int z = 0; z < kz; z++)
+			for (int y = 0; y < ky; y++)
+				System.arraycopy(padded, qx * (y + qy * z), h, kx * (y + ky * z), kx);
+	}
+
+	/**
+	 * Cylindrical symmetry about the lateral origin voxel: in every plane, the ring average of h at radius r
+	 * (linear binning at a step of the smaller lateral voxel size), read back by linear interpolation.
+	 */
+	void symmetrize(final float[] h) {
+		final int cx = (kx - 1) / 2, cy = (ky - 1) / 2;
+		final double step = Math.min(dx, dy);
+		final int bins = (int) Math.ceil(Math.hypot((kx - cx) * dx, (ky - cy) * dy) / step) + 2;
+		final double[] sum = new double[bins], weight = new double[bins];
+		for (int z = 0; z < kz; z++) {
+			java.util.Arrays.fill(sum, 0);
+			java.util.Arrays.fill(weight, 0);
+			final int o = kx * ky * z;
+			for (int y = 0; y < ky; y++)
+				for (int x = 0; x < kx; x++) {
+					final double r = Math.hypot((x - cx) * dx, (y - cy) * dy) / step;
+					final int b = (int) r;
+					final double f = r - b;
+					final float v = h[o + x + kx * y];
+					sum[b] += (1 - f) * v;
+					weight[b] += 1 - f;
+					sum[b + 1] += f * v;
+					weight[b + 1] += f;
+				}
+			for (int b = 0; b < bins; b++) sum[b] = weight[b] > 0 ? sum[b] / weight[b] : 0;
+			for (int y = 0; y < ky; y++)
+				for (int x = 0; x < kx; x++) {
+					final double r = Math.hypot((x - cx) * dx, (y - cy) * dy) / step;
+					final int b = (int) r;
+					final double f = r - b;
+					final double lo = sum[b], hi = weight[b + 1] > 0 ? sum[b + 1] : lo;
+					h[o + x + kx * y] = (float) ((1 - f) * lo + f * hi);
+				}
+		}
+	}
+
+	/**
+	 * Shifts h by whole voxels (zero fill) so that its centroid lies within half a voxel of the starting PSF's
+	 * centroid along each axis. Object and PSF can trade a translation without changing the data; this pins it
+	 * to the start, without forcing an aberrated PSF (whose peak may lie off centre) to the box centre.
+	 */
+	void centre(final float[] h) {
+		final double[] c = centroid(h);
+		final int sx = (int) Math.round(target[0] - c[0]), sy = (int) Math.round(target[1] - c[1]), sz = (int) Math.round(target[2] - c[2]);
+		if (sx == 0 && sy == 0 && sz == 0) return;
+		final float[] src = h.clone();
+		java.util.Arrays.fill(h, 0f);
+		for (int z = 0; z < kz; z++) {
+			final int tz = z + sz;
+			if (tz < 0 || tz >= kz) continue;
+			for (int y = 0; y < ky; y++) {
+				final int ty = y + sy;
+				if (ty < 0 || ty >= ky) continue;
+				for (int x = 0; x < kx; x++) {
+					final int tx = x + sx;
+					if (tx >= 0 && tx < kx) h[tx + kx * (ty + ky * tz)] = src[x + kx * (y + ky * z)];
+				}
+			}
+		}
+	}
+
+	/** {x, y, z} centroid in voxels (the box centre for an all-zero array). */
+	double[] centroid(final float[] h) {
+		double s = 0, mx = 0, my = 0, mz = 0;
+		for (int z = 0; z < kz; z++)
+			for (int y = 0; y < ky; y++)
+				for (int x = 0; x < kx; x++) {
+					final double v = h[x + kx * (y + ky * z)];
+					s += v;
+					mx += v * x;
+					my += v * y;
+					mz += v * z;
+				}
+		if (!(s > 0)) return new double[] { (kx - 1) / 2, (ky - 1) / 2, (kz - 1) / 2 };
+		return new double[] { mx / s, my / s, mz / s };
+	}
+
+	/** Scales h to unit sum (compensated sum); an all-zero h cannot be scaled and is an error. */
+	static void normalize(final float[] h) {
+		final double s = org.parfocal.core.Sums.sum(h);
+		if (!(s > 0) || !Double.isFinite(s))
+			throw new IllegalStateException("The PSF estimate vanished (sum " + s + "): lower the PSF regularisation or relax the constraints");
+		for (int i = 0; i < h.length; i++) h[i] = (float) (h[i] / s);
+	}
+}
