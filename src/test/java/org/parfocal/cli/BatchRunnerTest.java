@@ -1,0 +1,71 @@
+package org.parfocal.cli;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.List;
+import java.util.Random;
+
+import ij.IJ;
+import ij.ImagePlus;
+import ij.io.FileSaver;
+
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import org.parfocal.core.VoxelSize;
+import org.parfocal.demo.SampleScene;
+import org.parfocal.ij1.ImageBridge;
+
+/** A batch over a folder with good stacks, a corrupt file and an RGB file (issue: batch must not stop). */
+class BatchRunnerTest {
+
+	@Test
+	void badFilesAreReportedAndSkippedTheRestIsProcessedInputsUntouched(@TempDir final Path dir) throws Exception {
+		final Path in = Files.createDirectories(dir.resolve("in")), out = dir.resolve("out");
+		for (final String name : new String[] { "cell-1.tif", "cell-2.tif" })
+			assertTrue(new FileSaver(ImageBridge.toImagePlus(SampleScene.cell(24, 24, 6, name.hashCode()).withVoxelSize(VoxelSize.microns(0.08, 0.08, 0.2)), name))
+					.saveAsTiff(in.resolve(name).toString()));
+		final byte[] junk = new byte[4096];
+		new Random(1).nextBytes(junk);
+		Files.write(in.resolve("cell-3-corrupt.tif"), junk);
+		final ImagePlus rgb = IJ.createImage("rgb", "RGB ramp", 24, 24, 1);
+		assertTrue(new FileSaver(rgb).saveAsTiff(in.resolve("cell-4-rgb.tif").toString()));
+		final Path psf = dir.resolve("psf.tif");
+		assertTrue(new FileSaver(ImageBridge.toImagePlus(SampleScene.gaussianPsf(5, 5, 3), "psf.tif")).saveAsTiff(psf.toString()));
+		final Path map = dir.resolve("map.csv");
+		Files.writeString(map, "pattern,psf\ncell-*.tif,psf.tif\n");
+		final Path recipe = dir.resolve("blur.ijm");
+		Files.writeString(recipe, "run(\"Convolve with PSF...\", \"image=[\" + inputTitle + \"] psf=[\" + psfTitle + \"] boundary=zero normalize "
+				+ "background=0 photons=0 seed=1 offset=0\");\n");
+		final byte[][] before = new byte[4][];
+		final List<Path> inputs = Files.list(in).sorted().toList();
+		for (int i = 0; i < 4; i++) before[i] = Files.readAllBytes(inputs.get(i));
+
+		final List<BatchRunner.Row> rows = BatchRunner.run(recipe, in, out, map);
+
+		assertEquals(4, rows.size());
+		assertTrue(rows.get(0).ok() && rows.get(1).ok(), rows.toString());
+		assertTrue(!rows.get(2).ok() && rows.get(2).message().contains("cannot open"), rows.get(2).toString());
+		assertTrue(!rows.get(3).ok() && rows.get(3).message().contains("RGB"), rows.get(3).toString());
+		assertTrue(Files.isRegularFile(out.resolve("cell-1-blur.tif")) && Files.isRegularFile(out.resolve("cell-2-blur.tif")));
+		final List<String> summary = Files.readAllLines(out.resolve("summary.csv"));
+		assertEquals("file,status,message,output,seconds", summary.get(0));
+		assertEquals(2, summary.stream().filter(l -> l.contains(",failed,")).count());
+		for (int i = 0; i < 4; i++) assertArrayEquals(before[i], Files.readAllBytes(inputs.get(i)), "input " + inputs.get(i) + " untouched");
+
+		// A second run never replaces the first one's outputs or summary.
+		BatchRunner.run(recipe, in, out, map);
+		assertTrue(Files.isRegularFile(out.resolve("cell-1-blur-2.tif")) && Files.isRegularFile(out.resolve("summary-2.csv")));
+	}
+
+	@Test
+	void theBatchRefusesToWriteIntoItsInputFolder(@TempDir final Path dir) throws Exception {
+		Files.writeString(dir.resolve("r.ijm"), "");
+		final IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> BatchRunner.run(dir.resolve("r.ijm"), dir, dir, null));
+		assertTrue(e.getMessage().contains("must differ"), e.getMessage());
+	}
+}
