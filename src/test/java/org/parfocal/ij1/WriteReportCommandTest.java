@@ -1,0 +1,64 @@
+package org.parfocal.ij1;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertNotNull;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.io.ByteArrayInputStream;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.Base64;
+import java.util.regex.Matcher;
+import java.util.regex.Pattern;
+
+import javax.imageio.ImageIO;
+
+import ij.ImagePlus;
+import ij.macro.Interpreter;
+
+import org.junit.jupiter.api.AfterEach;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import org.parfocal.testing.ImageJCommandException;
+import org.parfocal.testing.ImageJHarness;
+
+class WriteReportCommandTest {
+
+	@AfterEach
+	void closeAll() {
+		for (final int id : Interpreter.getBatchModeImageIDs()) {
+			final ImagePlus imp = ij.WindowManager.getImage(id);
+			if (imp != null) Interpreter.removeBatchModeImage(imp);
+		}
+	}
+
+	@Test
+	void reportOfADeconvolutionIsOneSelfContainedPageWithEveryParameterAndReadableFigures(@TempDir final Path dir) throws Exception {
+		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
+		final ImagePlus psf = ImageBridge.toImagePlus(DeconvolveCommandTest.gaussianPsf().withVoxelSize(img.getCalibration().pixelWidth > 0
+				? org.parfocal.core.VoxelSize.microns(0.08, 0.08, 0.2) : null), "psf.tif");
+		DeconvolveCommandTest.open(img, psf);
+		final ImagePlus out = ImageJHarness.run(img, "Deconvolve...", DeconvolveCommandTest.OPTIONS.replace("iterations=12", "iterations=4")).onlyCreated();
+		Interpreter.addBatchModeImage(out);
+		final Path html = dir.resolve("report.html");
+		ImageJHarness.run(out, "Write Report...", "file=[" + html + "]");
+		final String page = Files.readString(html);
+		assertTrue(page.startsWith("<!DOCTYPE html>"));
+		assertTrue(page.contains("Caution."), "the caution is shown");
+		for (final String key : DeconvolveCommandTest.KEYS.subList(0, DeconvolveCommandTest.KEYS.size() - 1))
+			assertTrue(page.contains("<td>" + key + "</td>"), "parameter " + key);
+		assertTrue(page.contains("PSF FWHM"));
+		assertFalse(page.contains("http://") || page.contains("https://") || page.contains("<script"), "self-contained, no scripts");
+		final Matcher m = Pattern.compile("data:image/png;base64,([A-Za-z0-9+/=]+)").matcher(page);
+		int figures = 0;
+		while (m.find()) {
+			assertNotNull(ImageIO.read(new ByteArrayInputStream(Base64.getDecoder().decode(m.group(1)))), "figure " + figures + " is a PNG");
+			figures++;
+		}
+		assertEquals(7, figures, "result XY+XZ, image XY+XZ, PSF XY+XZ, PSF profiles");
+		final ImageJCommandException e = assertThrows(ImageJCommandException.class, () -> ImageJHarness.run(out, "Write Report...", "file=[" + html + "]"));
+		assertTrue(e.getMessage().contains("exists"), e.getMessage());
+	}
+}
