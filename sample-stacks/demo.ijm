@@ -16,11 +16,13 @@ File.makeDirectory(out);
 if (!File.isDirectory(out)) exit("Cannot create the output folder " + out);
 
 function newPath(folder, name) {
-    // name.tif, or name-2.tif, name-3.tif ... if taken
-    base = replace(name, ".tif", "");
+    // name.ext, or name-2.ext, name-3.ext ... if taken
+    dot = lastIndexOf(name, ".");
+    base = substring(name, 0, dot);
+    ext = substring(name, dot);
     path = folder + name;
     i = 2;
-    while (File.exists(path)) { path = folder + base + "-" + i + ".tif"; i++; }
+    while (File.exists(path)) { path = folder + base + "-" + i + ext; i++; }
     return path;
 }
 
@@ -70,5 +72,13 @@ saveAs("Tiff", path);
 print("wrote " + path);
 Stack.getStatistics(voxels, mean, min, max);
 print("deconvolved: mean " + d2s(mean, 3) + ", max " + d2s(max, 1) + " (estimates: deconvolution can show artefacts that look like structure)");
+
+// 4. The record of how it was made: an HTML report, and a macro that rebuilds it from the files.
+path = newPath(out, "quillwort-deconvolved-report.html");
+run("Write Report...", "file=[" + path + "]");
+print("wrote " + path);
+path = newPath(out, "quillwort-deconvolved-rebuild.ijm");
+run("Export Provenance as Macro...", "macro=[" + path + "]");
+print("wrote " + path);
 
 print("Parfocal demo finished: outputs in " + out);
