@@ -43,7 +43,7 @@ public final class HtmlReport {
 		final StringBuilder h = new StringBuilder();
 		h.append("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>Parfocal report: ").append(esc(outputTitle)).append("</title>\n");
 		h.append("<style>body{font-family:sans-serif;max-width:60em;margin:2em auto;color:#222}table{border-collapse:collapse;margin:.5em 0 1.5em}"
-				+ "td,th{border:1px solid #bbb;padding:.25em .6em;text-align:left;vertical-align:top}th{background:#eee}"
+				+ "td,th{border:1px solid #bbb;padding:.25em .6em;text-align:left;vertical-align:top;overflow-wrap:anywhere}th{background:#eee}"
 				+ ".caution{border:2px solid #b60;background:#fff4e5;padding:.6em 1em}figure{display:inline-block;margin:.5em 1em .5em 0}"
 				+ "figcaption{font-size:.9em;color:#555}code{background:#f3f3f3;padding:0 .2em}</style></head><body>\n");
 		h.append("<h1>").append(esc(outputTitle)).append("</h1>\n");
