@@ -1,0 +1,344 @@
+package org.parfocal.ij1;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertNull;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.awt.Checkbox;
+import java.awt.Choice;
+import java.awt.EventQueue;
+import java.awt.TextField;
+import java.awt.event.ActionEvent;
+import java.awt.event.KeyEvent;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.concurrent.atomic.AtomicBoolean;
+
+import ij.IJ;
+import ij.ImagePlus;
+import ij.gui.GenericDialog;
+import ij.macro.Interpreter;
+import ij.measure.ResultsTable;
+
+import org.junit.jupiter.api.AfterEach;
+import org.junit.jupiter.api.Tag;
+import org.junit.jupiter.api.Test;
+import org.parfocal.blind.BlindDeconvolution;
+import org.parfocal.blind.BlindOptions;
+import org.parfocal.blind.BlindResult;
+import org.parfocal.blind.PsfSnapshot;
+import org.parfocal.blind.PsfStart;
+import org.parfocal.blind.SupportBox;
+import org.parfocal.core.Monitor;
+import org.parfocal.core.Volume;
+import org.parfocal.core.VoxelSize;
+import org.parfocal.deconv.EdgeMode;
+import org.parfocal.deconv.Level;
+import org.parfocal.demo.SampleScene;
+import org.parfocal.provenance.MacroOptions;
+import org.parfocal.psf.Optics;
+import org.parfocal.psf.PsfGrid;
+import org.parfocal.psf.PsfModels;
+import org.parfocal.testing.ImageJCommandException;
+import org.parfocal.testing.ImageJHarness;
+
+/**
+ * The command against the core it wraps ({@link BlindDeconvolution}, tested against outside references in its own
+ * package), on own synthetic data: the small sample-scene cell of {@link DeconvolveCommandTest} (Gaussian blur,
+ * Poisson noise, offset 100).
+ */
+class BlindDeconvolveCommandTest {
+
+	private static final String CMD = "Blind Deconvolve...";
+	static final List<String> KEYS = List.of("image", "psf", "fwhm_xy", "fwhm_z", "iterations", "object_updates", "psf_updates", "object_tv", "psf_tv",
+			"band_limit", "symmetric", "centring", "support_xy", "support_z", "support_units", "snapshot_interval", "edges", "offset", "background");
+	private static final List<String> BAND_KEYS = List.of("na", "immersion_index", "emission");
+
+	/** Gaussian start, band limit (optics from the second dialog), a 9 x 9 x 5 box, a snapshot every 2 of 4 iterations. */
+	static final String OPTIONS = "image=cell.tif psf=gaussian fwhm_xy=0.3 fwhm_z=0.8 iterations=4 object_updates=1 psf_updates=1 object_tv=0.002 "
+			+ "psf_tv=0.001 band_limit centring support_xy=9 support_z=5 support_units=voxels snapshot_interval=2 edges=non-circulant offset=100 "
+			+ "background=auto na=1.2 immersion_index=1.333 emission=0.52";
+
+	private static final Optics BAND = Optics.builder().na(1.2).immersionIndex(1.333).emissionWavelength(0.52).build();
+
+	@AfterEach
+	void closeAll() {
+		for (final int id : Interpreter.getBatchModeImageIDs()) {
+			final ImagePlus imp = ij.WindowManager.getImage(id);
+			if (imp != null) Interpreter.removeBatchModeImage(imp);
+		}
+	}
+
+	@Test
+	void runByMenuNameEqualsTheCoreWithHistoryTablePlotAndProvenance() {
+		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
+		DeconvolveCommandTest.open(img);
+		final float[] before = ((float[]) img.getStack().getPixels(5)).clone();
+		final ImageJHarness.Result run = ImageJHarness.run(img, CMD, OPTIONS);
+		assertArrayEquals(before, (float[]) img.getStack().getPixels(5), "input unchanged");
+		assertNull(Provenance.of(img).orElse(null), "input untouched");
+
+		final BlindOptions o = new BlindOptions(4, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5), true, false, true, BAND, 2,
+				EdgeMode.NON_CIRCULANT, Level.of(100), Level.ESTIMATED);
+		final BlindResult core = BlindDeconvolution.run(ImageBridge.toCore(img).first(), o, Monitor.NONE);
+
+		final ImagePlus out = created(run, "cell-blind.tif"), psf = created(run, "cell-blind-psf.tif"), hist = created(run, "cell-blind-psf-history.tif");
+		assertTrue(run.created().stream().anyMatch(i -> i.getTitle().equals("PSF convergence of cell")), "the plot: " + run.created());
+		assertEquals(out, run.current(), "the deblurred image is current for the next macro line");
+		assertClose(core.estimate().data(), ImageBridge.toCore(out).first().data(), "deblurred image = core");
+		assertClose(core.psf().data(), ImageBridge.toCore(psf).first().data(), "final PSF = core");
+		for (final ImagePlus i : List.of(out, psf, hist)) {
+			assertEquals(0.08, i.getCalibration().pixelWidth, 1e-12, i.getTitle());
+			assertEquals(0.2, i.getCalibration().pixelDepth, 1e-12, i.getTitle());
+			assertEquals(List.copyOf(MacroOptions.parse(OPTIONS).keySet()), List.copyOf(Provenance.of(i).orElseThrow().options().keySet()),
+					"provenance of " + i.getTitle() + " holds every key of the line");
+		}
+		assertEquals(9, psf.getWidth());
+		assertEquals(5, psf.getNSlices());
+
+		// history: one frame per snapshot (iterations 0, 2, 4), each = the core's snapshot, labelled, unit sum
+		final List<PsfSnapshot> snaps = core.snapshots();
+		assertEquals(List.of(0, 2, 4), snaps.stream().map(PsfSnapshot::iteration).toList());
+		assertEquals(3, hist.getNFrames());
+		assertEquals(5, hist.getNSlices());
+		assertTrue(hist.isHyperStack());
+		final List<Volume> frames = ImageBridge.toCore(hist).volumes();
+		for (int t = 0; t < 3; t++) {
+			assertClose(snaps.get(t).psf().data(), frames.get(t).data(), "history frame " + (t + 1));
+			double sum = 0;
+			for (final float v : frames.get(t).data()) sum += v;
+			assertEquals(1, sum, 1e-5, "unit-sum constraint at snapshot " + t);
+			assertEquals("iteration " + snaps.get(t).iteration() + ", z 3", hist.getStack().getSliceLabel(hist.getStackIndex(1, 3, t + 1)).replace("start (iteration 0)", "iteration 0"));
+		}
+		assertFalse(snaps.get(2).distanceToStart() == 0, "the PSF moved (PSF updates on)");
+
+		// table: one row per snapshot with the core's figures
+		final ResultsTable rt = BlindDeconvolve.table(snaps, "µm");
+		assertEquals(3, rt.size());
+		for (int t = 0; t < 3; t++) {
+			assertEquals(snaps.get(t).iteration(), rt.getValue("Iteration", t), 0);
+			assertEquals(snaps.get(t).fwhmLateral(), rt.getValue("FWHM lateral (µm)", t), 1e-12);
+			assertEquals(snaps.get(t).fwhmAxial(), rt.getValue("FWHM axial (µm)", t), 1e-12);
+			assertEquals(snaps.get(t).distanceToStart(), rt.getValue("Distance to start", t), 1e-12);
+			assertEquals(snaps.get(t).sum(), rt.getValue("Sum", t), 1e-12);
+		}
+		final var p = Provenance.of(out).orElseThrow();
+		assertEquals("9x9x5", p.run().get("psf_box"));
+		assertEquals(3L, p.run().get("snapshots"));
+	}
+
+	@Test
+	void openImageAndOpticsStarts() {
+		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
+		final Volume given = DeconvolveCommandTest.gaussianPsf().withVoxelSize(SampleScene.VOXEL);
+		final ImagePlus psfImp = ImageBridge.toImagePlus(given, "psf.tif");
+		DeconvolveCommandTest.open(img, psfImp);
+		final Volume image = ImageBridge.toCore(img).first();
+
+		// an open image as start, no band limit, symmetric, the box in microns: 0.72 / 0.08 = 9, 1.0 / 0.2 = 5 voxels
+		final String opt = OPTIONS.replace("psf=gaussian", "psf=psf.tif").replace("band_limit centring", "symmetric centring")
+				.replace("support_xy=9 support_z=5 support_units=voxels", "support_xy=0.72 support_z=1.0 support_units=microns")
+				.replace("iterations=4 object_updates=1 psf_updates=1", "iterations=3 object_updates=2 psf_updates=2")
+				.replace("snapshot_interval=2", "snapshot_interval=3").replace(" na=1.2 immersion_index=1.333 emission=0.52", "");
+		final ImageJHarness.Result r1 = ImageJHarness.run(img, CMD, opt);
+		final BlindOptions o1 = new BlindOptions(3, 2, 2, 0.002, 0.001, PsfStart.given(given), new SupportBox(9, 9, 5), false, true, true, null, 3,
+				EdgeMode.NON_CIRCULANT, Level.of(100), Level.ESTIMATED);
+		final BlindResult c1 = BlindDeconvolution.run(image, o1, Monitor.NONE);
+		assertClose(c1.estimate().data(), ImageBridge.toCore(created(r1, "cell-blind.tif")).first().data(), "open-image start = core");
+		assertClose(c1.psf().data(), ImageBridge.toCore(created(r1, "cell-blind-psf.tif")).first().data(), "open-image start: PSF = core");
+		final var p1 = Provenance.of(created(r1, "cell-blind.tif")).orElseThrow();
+		assertEquals(Provenance.sha256(psfImp), p1.inputs().get(1).sha256(), "the starting PSF is an input of the record");
+
+		// from the optics (Born & Wolf, second dialog) with the band limit from the same optics; z size automatic,
+		// cropped to the image's 10 slices (largest odd: 9)
+		final String optics = "model=born-wolf modality=widefield na=1.2 immersion_index=1.333 immersion_index_design=1.333 sample_index=1.333 "
+				+ "coverslip_index=1.522 coverslip_index_design=1.522 coverslip_thickness=170 coverslip_thickness_design=170 working_distance=150 "
+				+ "depth=0 emission=0.52 excitation=0.488 pinhole=1 sheet_thickness=2 voxel_xy=0.08 voxel_z=0.2 size_xy=15 size_z=0";
+		final String opt2 = OPTIONS.replace("psf=gaussian", "psf=from_optics").replace("support_xy=9 support_z=5", "support_xy=0 support_z=0")
+				.replace("iterations=4", "iterations=2").replace(" na=1.2 immersion_index=1.333 emission=0.52", "") + " " + optics;
+		final ImageJHarness.Result r2 = ImageJHarness.run(img, CMD, opt2);
+		final PsfGrid grid = PsfGrid.forOptics(BAND, 0.08, 0.08, 0.2);
+		assertTrue(grid.nz() > 9, "the automatic z size exceeds the image, so the crop is exercised: " + grid.nz());
+		final Volume model = PsfModels.get("born-wolf").compute(BAND, new PsfGrid(15, 15, grid.nz(), 0.08, 0.08, 0.2)).withVoxelSize(image.voxelSize());
+		final BlindOptions o2 = new BlindOptions(2, 1, 1, 0.002, 0.001, PsfStart.given(model), new SupportBox(15, 15, 9), true, false, true, BAND, 2,
+				EdgeMode.NON_CIRCULANT, Level.of(100), Level.ESTIMATED);
+		final BlindResult c2 = BlindDeconvolution.run(image, o2, Monitor.NONE);
+		final ImagePlus out2 = created(r2, "cell-blind.tif");
+		assertClose(c2.estimate().data(), ImageBridge.toCore(out2).first().data(), "optics start = core");
+		assertEquals(9, created(r2, "cell-blind-psf.tif").getNSlices());
+		assertTrue(String.join("\n", r2.log()).contains("cropped to the image"), () -> String.join("\n", r2.log()));
+		final var keys = List.copyOf(Provenance.of(out2).orElseThrow().options().keySet());
+		assertEquals(List.copyOf(MacroOptions.parse(opt2).keySet()), keys);
+		assertEquals(1, keys.stream().filter("na"::equals).count(), "the optics keys appear once");
+	}
+
+	@Test
+	void twoDimensionalImage() {
+		final Volume plane = ImageBridge.toCore(DeconvolveCommandTest.recorded("x")).first();
+		final Volume v = Volume.zeros(plane.nx(), plane.ny(), 1, SampleScene.VOXEL);
+		System.arraycopy(plane.data(), 5 * plane.nx() * plane.ny(), v.data(), 0, plane.nx() * plane.ny());
+		final ImagePlus img = ImageBridge.toImagePlus(v, "plane.tif");
+		DeconvolveCommandTest.open(img);
+		final String opt = OPTIONS.replace("image=cell.tif", "image=plane.tif").replace("band_limit centring", "centring")
+				.replace(" na=1.2 immersion_index=1.333 emission=0.52", "").replace("support_z=5", "support_z=0");
+		final ImageJHarness.Result r = ImageJHarness.run(img, CMD, opt);
+		final BlindOptions o = new BlindOptions(4, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 1), false, false, true, null, 2,
+				EdgeMode.NON_CIRCULANT, Level.of(100), Level.ESTIMATED);
+		final BlindResult core = BlindDeconvolution.run(v, o, Monitor.NONE);
+		assertClose(core.estimate().data(), ImageBridge.toCore(created(r, "plane-blind.tif")).first().data(), "2D = core");
+		final ImagePlus hist = created(r, "plane-blind-psf-history.tif");
+		assertEquals(1, hist.getNSlices());
+		assertEquals(3, hist.getNFrames());
+		assertEquals("iteration 4", hist.getStack().getSliceLabel(3));
+		assertFalse(Provenance.of(hist).orElseThrow().run().containsKey("fwhm_axial"), "no axial width in 2D");
+	}
+
+	@Test
+	void badInputIsRefusedInOneLineAndNothingIsCreated() {
+		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
+		final ImagePlus flat = ImageBridge.toImagePlus(SampleScene.gaussianPsf(9, 9, 1).withVoxelSize(SampleScene.VOXEL), "flat-psf.tif");
+		final ImagePlus psf = ImageBridge.toImagePlus(DeconvolveCommandTest.gaussianPsf().withVoxelSize(SampleScene.VOXEL), "psf.tif");
+		final ImagePlus raw = ImageBridge.toImagePlus(ImageBridge.toCore(img).first().withVoxelSize(VoxelSize.UNCALIBRATED), "raw.tif");
+		final ImagePlus two = ij.plugin.HyperStackConverter.toHyperStack(new ImagePlus("two.tif", ImageBridge.toImagePlus(ImageBridge.toCore(img).first(), "t")
+				.getStack().duplicate()), 2, 5, 1);
+		two.setTitle("two.tif");
+		DeconvolveCommandTest.open(img, flat, psf, raw, two);
+		final float[] before = ((float[]) img.getStack().getPixels(4)).clone();
+		assertFails("PSF support box (41 x 41 x 5) is larger than the image (40 x 36 x 10)", img, OPTIONS.replace("support_xy=9", "support_xy=41"));
+		assertFails("snapshot interval (9) is larger than the number of iterations (4)", img, OPTIONS.replace("snapshot_interval=2", "snapshot_interval=9"));
+		assertFails("starting PSF is 2D but the image is 3D", img, OPTIONS.replace("psf=gaussian", "psf=flat-psf.tif"));
+		assertFails("band-limit constraint needs the voxel size", raw, OPTIONS.replace("image=cell.tif", "image=raw.tif").replace("psf=gaussian", "psf=psf.tif"));
+		assertFails("support box in microns needs the voxel size", raw,
+				OPTIONS.replace("image=cell.tif", "image=raw.tif").replace("support_units=voxels", "support_units=microns"));
+		assertFails("odd sizes", img, OPTIONS.replace("support_xy=9", "support_xy=8"));
+		assertFails("Give both support sizes", img, OPTIONS.replace("support_z=5", "support_z=0"));
+		assertFails("'inches' is not a valid support unit", img, OPTIONS.replace("support_units=voxels", "support_units=inches"));
+		assertFails("Iterations must be a whole number", img, OPTIONS.replace("iterations=4", "iterations=2.5"));
+		assertFails("NA 1.5 must be below the immersion index 1.333", img, OPTIONS.replace("na=1.2", "na=1.5"));
+		assertFails("'dark' is not a number or auto (offset=)", img, OPTIONS.replace("offset=100", "offset=dark"));
+		assertFails("'two.tif' has 2 channels and 1 frames; blind deconvolution takes one of each", two, OPTIONS.replace("image=cell.tif", "image=two.tif"));
+		assertArrayEquals(before, (float[]) img.getStack().getPixels(4), "input unchanged");
+	}
+
+	private static void assertFails(final String expected, final ImagePlus current, final String options) {
+		final int before = Interpreter.getBatchModeImageIDs().length;
+		final ImageJCommandException e = assertThrows(ImageJCommandException.class, () -> ImageJHarness.run(current, CMD, options));
+		assertTrue(e.getMessage().contains(expected), e.getMessage());
+		assertFalse(e.getMessage().contains("Exception"), "no stack trace: " + e.getMessage());
+		assertEquals(before, Interpreter.getBatchModeImageIDs().length, "nothing created");
+	}
+
+	/** Esc (ImageJ's escape flag) stops the run: no output, input untouched. */
+	@Test
+	void escapeCancelsCleanly() throws Exception {
+		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
+		DeconvolveCommandTest.open(img);
+		final float[] before = ((float[]) img.getStack().getPixels(3)).clone();
+		final AtomicBoolean done = new AtomicBoolean();
+		final Thread presser = new Thread(() -> {
+			while (!done.get()) {
+				IJ.setKeyDown(KeyEvent.VK_ESCAPE);
+				try {
+					Thread.sleep(5);
+				} catch (final InterruptedException e) {
+					return;
+				}
+			}
+		});
+		presser.start();
+		final ImageJHarness.Result r;
+		try {
+			r = ImageJHarness.run(img, CMD, OPTIONS.replace("iterations=4", "iterations=10000"));
+		} finally {
+			done.set(true);
+			presser.join();
+			IJ.resetEscape();
+			IJ.setKeyUp(KeyEvent.VK_ESCAPE);
+		}
+		assertTrue(r.created().isEmpty(), "nothing created: " + r.created());
+		assertEquals(1, Interpreter.getBatchModeImageIDs().length, "only the input is open");
+		assertArrayEquals(before, (float[]) img.getStack().getPixels(3));
+		assertNull(Provenance.of(img).orElse(null), "input untouched");
+	}
+
+	@Test
+	@Tag("display")
+	void recordedLineReplaysHeadless() throws Exception {
+		ImageJHarness.assumeDisplay();
+		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
+		DeconvolveCommandTest.open(img);
+		final ImageJHarness.Recording rec = ImageJHarness.record(img, CMD, dialog -> {
+			final List<Choice> ch = dialog.getChoices().stream().map(Choice.class::cast).toList();
+			ch.get(0).select("cell.tif");
+			ch.get(1).select("gaussian");
+			ch.get(2).select("voxels");
+			ch.get(3).select("non-circulant");
+			final List<TextField> num = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
+			final String[] values = { "0.3", "0.8", "4", "1", "1", "0.002", "0", "9", "5", "2" };
+			for (int i = 0; i < values.length; i++) num.get(i).setText(values[i]);
+			final List<Checkbox> box = dialog.getCheckboxes().stream().map(Checkbox.class::cast).toList();
+			box.get(0).setState(true); // band limit: a second dialog asks for the optics
+			box.get(1).setState(false);
+			box.get(2).setState(true);
+			final List<TextField> str = dialog.getStringFields().stream().map(TextField.class::cast).toList();
+			str.get(0).setText("100");
+			str.get(1).setText("auto");
+			answerNextDialog(dialog, "1.2", "1.333", "0.52");
+		});
+		final String opts = ImageJHarness.parseRunLine(rec.line())[1];
+		final List<String> all = new ArrayList<>(KEYS);
+		all.remove("symmetric"); // unchecked boxes are not recorded
+		all.addAll(BAND_KEYS);
+		for (final String k : all) assertTrue(opts.matches("(^|.* )" + k + "(=.*| .*|$)"), "recorded line lacks " + k + ": " + rec.line());
+		final ImagePlus recorded = rec.result().created().stream().filter(i -> i.getTitle().equals("cell-blind.tif")).findFirst().orElseThrow();
+		for (final ImagePlus i : rec.result().created().stream().filter(i -> i.getTitle().startsWith("cell-blind")).toList())
+			assertEquals(List.copyOf(MacroOptions.parse(opts).keySet()), List.copyOf(Provenance.of(i).orElseThrow().options().keySet()),
+					"provenance of " + i.getTitle() + " holds exactly the recorded keys");
+		ImageJHarness.assertSamePixels(recorded, ImageJHarness.replayInHeadlessJvm(rec.line(), img), 0);
+	}
+
+	/** Waits (on its own thread) for the dialog that follows {@code first}, fills its numeric fields and presses OK. */
+	private static void answerNextDialog(final GenericDialog first, final String... numbers) {
+		final Thread t = new Thread(() -> {
+			final long end = System.nanoTime() + 60_000_000_000L;
+			while (System.nanoTime() < end) {
+				final GenericDialog d = GenericDialog.getInstance();
+				if (d != null && d != first && d.isShowing()) {
+					try {
+						EventQueue.invokeAndWait(() -> {
+							final List<TextField> num = d.getNumericFields().stream().map(TextField.class::cast).toList();
+							for (int i = 0; i < numbers.length; i++) num.get(i).setText(numbers[i]);
+							d.actionPerformed(new ActionEvent(d.getButtons()[0], ActionEvent.ACTION_PERFORMED, "OK"));
+						});
+					} catch (final Exception e) {
+						throw new IllegalStateException(e);
+					}
+					return;
+				}
+				try {
+					Thread.sleep(10);
+				} catch (final InterruptedException e) {
+					return;
+				}
+			}
+		}, "answer-second-dialog");
+		t.setDaemon(true);
+		t.start();
+	}
+
+	private static ImagePlus created(final ImageJHarness.Result r, final String title) {
+		return r.created().stream().filter(i -> i.getTitle().equals(title)).findFirst()
+				.orElseThrow(() -> new AssertionError("no image '" + title + "' among " + r.created()));
+	}
+
+	/** Max |ref − got| ≤ 1e-6 · max |ref| (the core is deterministic; the tolerance covers thread-count rounding). */
+	private static void assertClose(final float[] ref, final float[] got, final String what) {
+		assertEquals(ref.length, got.length, what + ": size");
+		float m = 0;
+		for (final float v : ref) m = Math.max(m, Math.abs(v));
+		assertArrayEquals(ref, got, 1e-6f * m, what);
+	}
+}
