@@ -1,0 +1,201 @@
+package org.parfocal.cli;
+
+import java.io.IOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Instant;
+import java.util.Locale;
+
+import ij.IJ;
+import ij.ImagePlus;
+
+import net.imglib2.parallel.Parallelization;
+
+import org.parfocal.blocks.BlockDeconvolution;
+import org.parfocal.blocks.BlockPlan;
+import org.parfocal.blocks.Recipe;
+import org.parfocal.conv.Psfs;
+import org.parfocal.core.Monitor;
+import org.parfocal.core.Volume;
+import org.parfocal.core.VoxelSize;
+import org.parfocal.ij1.ImageBridge;
+import org.parfocal.provenance.Provenance;
+import org.parfocal.psf.PsfGrid;
+
+/**
+ * Block-wise deconvolution of one TIFF stack on disk, for stacks larger than the heap.
+ *
+ * <pre>
+ * BlockRunner RECIPE input.tif output.tif [--budget MB] [--block X,Y,Z] [--psf FILE] [--threads N]
+ * </pre>
+ *
+ * RECIPE is a file holding the {@code Deconvolve...} macro options or a provenance JSON record of a recorded run
+ * (or the options text itself). The PSF is the recipe's {@code psf=} file, the recorded PSF input's path,
+ * {@code --psf FILE}, or computed with {@code psf=from_optics}. The input is read and the output written a block
+ * at a time ({@link TiffBlockSource}, {@link TiffBlockSink}); the block plan follows the heap (or
+ * {@code --budget}) unless {@code --block} gives the tile size. The output's Info holds the provenance record
+ * with the block plan. Exit 0 on success, 1 with one line {@code Error: …} on failure (nothing is left under the
+ * output name), 2 for bad usage.
+ */
+public final class BlockRunner {
+
+	private BlockRunner() {}
+
+	public static void main(final String[] args) {
+		System.exit(runMain(args));
+	}
+
+	static int runMain(final String[] args) {
+		String budget = null, block = null, psf = null, threads = null;
+		final java.util.List<String> pos = new java.util.ArrayList<>();
+		for (int i = 0; i < args.length; i++) {
+			final String a = args[i];
+			if (a.startsWith("--") && i + 1 >= args.length) return usage("missing value after " + a);
+			switch (a) {
+			case "--budget" -> budget = args[++i];
+			case "--block" -> block = args[++i];
+			case "--psf" -> psf = args[++i];
+			case "--threads" -> threads = args[++i];
+			default -> {
+				if (a.startsWith("--")) return usage("unknown option " + a);
+				pos.add(a);
+			}
+			}
+		}
+		if (pos.size() != 3) return usage(null);
+		try {
+			return runChecked(pos, budget, block, psf, threads);
+		} catch (final RuntimeException e) {
+			// Parallelization wraps what the task threw
+			Throwable c = e;
+			while (c.getClass() == RuntimeException.class && c.getCause() != null) c = c.getCause();
+			if (c instanceof IllegalArgumentException || c instanceof IllegalStateException || c instanceof Monitor.CancelledException) {
+				System.err.println("Error: " + TiffBlockSource.oneLine(c));
+				return 1;
+			}
+			if (c instanceof IOException || c instanceof java.io.UncheckedIOException) {
+				System.err.println("Error: input/output failed: " + TiffBlockSource.oneLine(c));
+				return 1;
+			}
+			throw e;
+		}
+	}
+
+	private static int runChecked(final java.util.List<String> pos, final String budget, final String block, final String psf, final String threads) {
+		try {
+			final long start = System.nanoTime();
+			final Recipe base = readRecipe(pos.get(0));
+			final Recipe recipe = psf != null ? base.withPsfFile(psf) : base;
+			final long bytes = budget == null ? 0 : (long) (positive(budget, "--budget") * 1024 * 1024);
+			final int[] tile = block == null ? null : tiles(block);
+			final int n = threads == null ? Runtime.getRuntime().availableProcessors() : (int) positive(threads, "--threads");
+			final Outcome out = Parallelization.runWithNumThreads(n, () -> run(recipe, Path.of(pos.get(1)), Path.of(pos.get(2)), bytes, tile, Monitor.NONE));
+			System.out.println(String.format(Locale.ROOT, "Done: %s -> %s, %s, %.1f s", pos.get(1), pos.get(2), out.plan(),
+					(System.nanoTime() - start) / 1e9));
+			return 0;
+		} catch (final IllegalArgumentException | IllegalStateException | Monitor.CancelledException e) {
+			System.err.println("Error: " + TiffBlockSource.oneLine(e));
+			return 1;
+		} catch (final IOException | java.io.UncheckedIOException e) {
+			System.err.println("Error: input/output failed: " + TiffBlockSource.oneLine(e));
+			return 1;
+		} catch (final OutOfMemoryError e) {
+			if (Boolean.getBoolean("parfocal.debug")) e.printStackTrace();
+			System.err.println("Error: out of memory; give a smaller --budget or --block, or more heap (-Xmx)");
+			return 1;
+		}
+	}
+
+	/** What a run did. */
+	public record Outcome(BlockPlan plan, BlockDeconvolution.Result result, Path output) {}
+
+	/**
+	 * Runs one recipe on one TIFF stack block-wise into {@code output}.
+	 *
+	 * @param budget bytes per block, 0 for the heap's free memory
+	 * @param tile tile size {x, y, z}, or null to plan from the budget
+	 */
+	public static Outcome run(final Recipe recipe, final Path input, final Path output, final long budget, final int[] tile, final Monitor monitor)
+			throws IOException {
+		recipe.requirePsf();
+		if (input.toAbsolutePath().normalize().equals(output.toAbsolutePath().normalize()))
+			throw new IllegalArgumentException("The output must differ from the input (inputs are never written)");
+		try (TiffBlockSource source = TiffBlockSource.open(input)) {
+			final Volume psf = loadPsf(recipe, source.voxelSize(), source.shape()[2]);
+			final BlockPlan plan = tile != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), tile)
+					: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), budget > 0 ? budget : BlockPlan.heapBudget());
+			final Provenance.Builder prov = Provenance.of("Deconvolve", recipe.text())
+					.input(new Provenance.Input("image", input.getFileName().toString(), input.toAbsolutePath().toString(), null,
+							source.shape()[0] + "x" + source.shape()[1] + "x" + source.shape()[2], null))
+					.run("block_plan", plan.describe()).run("runner", "BlockRunner");
+			if (recipe.psfPath() != null) prov.input(new Provenance.Input("psf", Path.of(recipe.psfPath()).getFileName().toString(), recipe.psfPath(), null,
+					psf.nx() + "x" + psf.ny() + "x" + psf.nz(), null));
+			prov.versions(BlockRunner.class.getPackage().getImplementationVersion(), IJ.getVersion(), System.getProperty("java.version"))
+					.timing(0, Parallelization.getTaskExecutor().getParallelism(), Instant.now().toString());
+			final TiffBlockSink sink = new TiffBlockSink(output, source.shape(), source.voxelSize(), prov.build().toInfoText());
+			final BlockDeconvolution.Result r = BlockDeconvolution.run(source, psf, recipe.options(), plan, sink, monitor);
+			return new Outcome(plan, r, output);
+		}
+	}
+
+	/** Recipe from a file (options text or provenance JSON) or from the argument itself. */
+	public static Recipe readRecipe(final String arg) throws IOException {
+		final Path p = Path.of(arg);
+		final boolean file = !arg.contains("=") && Files.isRegularFile(p);
+		if (!file && !arg.contains("=")) throw new IllegalArgumentException("Recipe " + arg + " is neither a file nor macro options (key=value ...)");
+		return Recipe.read(file ? Files.readString(p, StandardCharsets.UTF_8) : arg);
+	}
+
+	/**
+	 * The recipe's PSF, as {@code Deconvolve...} prepares it: a file resampled to the image's voxel size when
+	 * both are calibrated, or computed from the optics (its central plane for a 2D image).
+	 */
+	public static Volume loadPsf(final Recipe recipe, final VoxelSize image, final int nz) {
+		recipe.requirePsf();
+		if (recipe.optics() != null) {
+			final Volume v = recipe.optics().compute();
+			if (nz > 1 || v.nz() == 1) return v;
+			final Volume out = Volume.zeros(v.nx(), v.ny(), 1, v.voxelSize());
+			System.arraycopy(v.data(), ((v.nz() - 1) / 2) * v.nx() * v.ny(), out.data(), 0, v.nx() * v.ny());
+			return Psfs.normalized(out);
+		}
+		final Path p = Path.of(recipe.psfPath());
+		if (!Files.isRegularFile(p)) throw new IllegalArgumentException("PSF file " + p + " does not exist");
+		final ImagePlus imp = IJ.openImage(p.toString());
+		if (imp == null) throw new IllegalArgumentException("PSF file " + p + " cannot be opened as an image");
+		Volume psf = ImageBridge.toVolume(imp, "PSF");
+		final VoxelSize pv = psf.voxelSize();
+		if (pv.isCalibrated() && image.isCalibrated()) {
+			final double fp = PsfGrid.micronsPer(pv), fi = PsfGrid.micronsPer(image);
+			final double[] a = { pv.dx() * fp, pv.dy() * fp, pv.dz() * fp }, b = { image.dx() * fi, image.dy() * fi, image.dz() * fi };
+			boolean same = true;
+			for (int d = 0; d < (psf.nz() > 1 ? 3 : 2); d++) same &= Math.abs(a[d] - b[d]) <= 1e-3 * b[d];
+			if (!same) psf = Psfs.resampleTo(psf.withVoxelSize(VoxelSize.microns(a[0], a[1], a[2])), VoxelSize.microns(b[0], b[1], b[2]));
+		}
+		return psf;
+	}
+
+	private static int[] tiles(final String s) {
+		final String[] p = s.split(",");
+		final int[] t = new int[p.length];
+		for (int i = 0; i < p.length; i++) t[i] = (int) positive(p[i], "--block");
+		return t;
+	}
+
+	private static double positive(final String s, final String what) {
+		try {
+			final double v = Double.parseDouble(s.trim());
+			if (!(v > 0)) throw new IllegalArgumentException(what + " must be positive, got " + s);
+			return v;
+		} catch (final NumberFormatException e) {
+			throw new IllegalArgumentException(what + " takes a number, got '" + s + "'");
+		}
+	}
+
+	private static int usage(final String problem) {
+		if (problem != null) System.err.println("Error: " + problem);
+		System.err.println("Usage: BlockRunner <recipe (options file, provenance JSON or options text)> <input.tif> <output.tif> [--budget MB] [--block X,Y,Z] [--psf FILE] [--threads N]");
+		return HeadlessMacro.EXIT_USAGE;
+	}
+}

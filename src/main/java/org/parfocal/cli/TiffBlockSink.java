@@ -1,0 +1,202 @@
+package org.parfocal.cli;
+
+import java.io.BufferedOutputStream;
+import java.io.IOException;
+import java.io.OutputStream;
+import java.nio.ByteBuffer;
+import java.nio.ByteOrder;
+import java.nio.channels.FileChannel;
+import java.nio.file.AtomicMoveNotSupportedException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.nio.file.StandardCopyOption;
+import java.nio.file.StandardOpenOption;
+
+import ij.VirtualStack;
+import ij.io.FileInfo;
+import ij.io.TiffEncoder;
+import ij.process.FloatProcessor;
+import ij.process.ImageProcessor;
+
+import org.parfocal.blocks.BlockSink;
+import org.parfocal.core.Volume;
+import org.parfocal.core.VoxelSize;
+
+/**
+ * A block-wise result written to a 32-bit TIFF stack on disk without holding it in memory.
+ * <p>
+ * Blocks are added into a scratch file of raw floats ({@code .NAME.accumulating}, beside the output). On
+ * {@link #commit()} ImageJ's {@link TiffEncoder} writes the TIFF plane by plane from the scratch file into
+ * {@code .NAME.partial}, which is then renamed to the output name; only a complete TIFF ever carries that name.
+ * {@link #abort()} deletes both temporary files. An existing output is never replaced.
+ */
+public final class TiffBlockSink implements BlockSink {
+
+	private final Path output, scratch, partial;
+	private final int nx, ny, nz;
+	private final VoxelSize voxelSize;
+	private final String info;
+	private FileChannel channel;
+	private boolean done;
+
+	/**
+	 * @param info text for the image's Info (ImageJ shows it with Image &gt; Show Info; provenance goes here)
+	 * @throws IllegalArgumentException when the output exists or its folder is missing or not writable
+	 */
+	public TiffBlockSink(final Path output, final int[] shape, final VoxelSize voxelSize, final String info) {
+		this.output = output.toAbsolutePath();
+		final Path dir = this.output.getParent();
+		if (Files.exists(this.output)) throw new IllegalArgumentException("Output " + output + " exists: choose a new name (outputs are never replaced)");
+		if (dir == null || !Files.isDirectory(dir)) throw new IllegalArgumentException("Cannot write " + output + ": the folder " + dir + " does not exist");
+		if (!Files.isWritable(dir)) throw new IllegalArgumentException("Cannot write " + output + ": the folder " + dir + " is not writable");
+		final String name = this.output.getFileName().toString();
+		scratch = dir.resolve("." + name + ".accumulating");
+		partial = dir.resolve("." + name + ".partial");
+		nx = shape[0];
+		ny = shape[1];
+		nz = shape[2];
+		this.voxelSize = voxelSize == null ? VoxelSize.UNCALIBRATED : voxelSize;
+		this.info = info;
+		try {
+			channel = FileChannel.open(scratch, StandardOpenOption.CREATE_NEW, StandardOpenOption.READ, StandardOpenOption.WRITE);
+			channel.truncate(0);
+			// zeros: a sparse file of the output's size
+			channel.write(ByteBuffer.allocate(1), 4L * nx * ny * nz - 1);
+		} catch (final IOException e) {
+			abort();
+			throw new IllegalArgumentException("Cannot write beside " + output + ": " + TiffBlockSource.oneLine(e));
+		}
+	}
+
+	/** The output path (exists only after {@link #commit()}). */
+	public Path output() {
+		return output;
+	}
+
+	@Override
+	public synchronized void add(final Volume part, final int[] o) throws IOException {
+		if (done) throw new IllegalStateException("The output is already closed");
+		final int sx = part.nx(), sy = part.ny(), sz = part.nz();
+		if (o[0] < 0 || o[1] < 0 || o[2] < 0 || o[0] + sx > nx || o[1] + sy > ny || o[2] + sz > nz)
+			throw new IllegalArgumentException("Block outside the " + nx + " x " + ny + " x " + nz + " output");
+		final ByteBuffer buf = ByteBuffer.allocate(4 * sy * nx).order(ByteOrder.BIG_ENDIAN);
+		final float[] src = part.data();
+		for (int z = 0; z < sz; z++) {
+			final long pos = 4L * (nx * (long) ny * (o[2] + z) + (long) nx * o[1]);
+			buf.clear();
+			readFully(buf, pos);
+			for (int y = 0; y < sy; y++) {
+				final int b = 4 * (y * nx + o[0]), a = sx * (y + sy * z);
+				for (int x = 0; x < sx; x++) buf.putFloat(b + 4 * x, buf.getFloat(b + 4 * x) + src[a + x]);
+			}
+			buf.rewind();
+			while (buf.hasRemaining()) channel.write(buf, pos + buf.position());
+		}
+	}
+
+	private void readFully(final ByteBuffer buf, final long pos) throws IOException {
+		while (buf.hasRemaining()) {
+			final int r = channel.read(buf, pos + buf.position());
+			if (r < 0) throw new IOException("scratch file ended early");
+		}
+	}
+
+	/** Plane {@code z} of the accumulated result. */
+	float[] plane(final int z) throws IOException {
+		final ByteBuffer buf = ByteBuffer.allocate(4 * nx * ny).order(ByteOrder.BIG_ENDIAN);
+		readFully(buf, 4L * nx * ny * z);
+		buf.rewind();
+		final float[] p = new float[nx * ny];
+		buf.asFloatBuffer().get(p);
+		return p;
+	}
+
+	@Override
+	public synchronized void commit() throws IOException {
+		if (done) throw new IllegalStateException("The output is already closed");
+		try {
+			final FileInfo fi = new FileInfo();
+			fi.fileFormat = FileInfo.TIFF;
+			fi.fileType = FileInfo.GRAY32_FLOAT;
+			fi.width = nx;
+			fi.height = ny;
+			fi.nImages = nz;
+			fi.info = info;
+			// ImageJ's own spelling of µm, which survives the TIFF's ASCII description
+			final String unit = voxelSize.unit().equals("µm") || voxelSize.unit().equals("um") ? "micron" : voxelSize.unit();
+			if (voxelSize.isCalibrated()) {
+				fi.pixelWidth = voxelSize.dx();
+				fi.pixelHeight = voxelSize.dy();
+				fi.pixelDepth = voxelSize.dz();
+				fi.unit = unit;
+			}
+			fi.description = "ImageJ=" + ij.IJ.getVersion() + "\n" + (nz > 1 ? "images=" + nz + "\nslices=" + nz + "\n" : "")
+					+ (voxelSize.isCalibrated() ? "unit=" + unit + "\nspacing=" + voxelSize.dz() + "\n" : "") + "loop=false\n";
+			if (nz == 1) fi.pixels = plane(0);
+			else fi.virtualStack = new ScratchStack();
+			try (OutputStream out = new BufferedOutputStream(Files.newOutputStream(partial, StandardOpenOption.CREATE_NEW), 1 << 20)) {
+				new TiffEncoder(fi).write(out);
+			}
+			try {
+				Files.move(partial, output, StandardCopyOption.ATOMIC_MOVE);
+			} catch (final AtomicMoveNotSupportedException e) {
+				Files.move(partial, output);
+			}
+			done = true;
+		} finally {
+			cleanUp();
+		}
+	}
+
+	@Override
+	public synchronized void abort() {
+		done = true;
+		cleanUp();
+	}
+
+	private void cleanUp() {
+		try {
+			if (channel != null) channel.close();
+		} catch (final IOException e) {
+			// closing a scratch file that is deleted next: nothing to keep
+		}
+		try {
+			Files.deleteIfExists(scratch);
+			Files.deleteIfExists(partial);
+		} catch (final IOException e) {
+			System.err.println("Could not delete the temporary file beside " + output + ": " + TiffBlockSource.oneLine(e));
+		}
+	}
+
+	/** The planes of the scratch file, for {@link TiffEncoder} (ImageJ's writer streams virtual stacks plane by plane). */
+	private final class ScratchStack extends VirtualStack {
+		ScratchStack() {
+			super(nx, ny, null, null);
+		}
+
+		@Override
+		public int getSize() {
+			return nz;
+		}
+
+		@Override
+		public int getBitDepth() {
+			return 32;
+		}
+
+		@Override
+		public ImageProcessor getProcessor(final int n) {
+			try {
+				return new FloatProcessor(nx, ny, plane(n - 1));
+			} catch (final IOException e) {
+				throw new java.io.UncheckedIOException(e);
+			}
+		}
+
+		@Override
+		public String getSliceLabel(final int n) {
+			return null;
+		}
+	}
+
+}
