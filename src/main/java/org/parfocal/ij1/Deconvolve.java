@@ -27,6 +27,9 @@ import org.parfocal.deconv.IterationReport;
 import org.parfocal.deconv.Level;
 import org.parfocal.deconv.Stopping;
 import org.parfocal.provenance.MacroOptions;
+import org.parfocal.quality.QualityWatch;
+import org.parfocal.quality.ReferenceComparison;
+import org.parfocal.quality.StoppingRule;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
 
@@ -38,8 +41,18 @@ import org.parfocal.psf.PsfModels;
  * Esc cancels: nothing is created and the input is untouched.
  * <p>
  * Macro keys (public API): {@code image psf method iterations regularization stop threshold edges offset
- * background plot}; with {@code psf=from_optics} also the keys of {@code PSF from Optics...} (without
+ * background plot watch}; with {@code psf=from_optics} also the keys of {@code PSF from Optics...} (without
  * {@code show_profiles}). {@code offset} and {@code background} take a number or {@code auto}.
+ * <p>
+ * <b>Watch mode</b> ({@code watch}, off by default; iterative methods only): a second dialog (keys {@code every
+ * references open_references photons read_noise stop_at_suggestion ignore_calibration}) sets up a
+ * {@link QualityWatch} per channel and frame: every {@code every} iterations the iterate's patch distance to
+ * sharp references (a folder of TIFFs and/or open images matching a title pattern; optional) and its re-blur
+ * χ² against the data (noise model: {@code photons} per intensity unit, {@code read_noise}) are computed; a
+ * plot shows both against the iteration, and {@link StoppingRule} suggests an iteration. With
+ * {@code stop_at_suggestion} the output is the suggested iterate: the watch keeps a copy of the best iterate
+ * so far (4 bytes per voxel more) rather than running a second time to that iteration, which would double the
+ * time. The suggestion, the rule and the curve go into the provenance.
  */
 public class Deconvolve implements PlugIn {
 
@@ -51,18 +64,29 @@ public class Deconvolve implements PlugIn {
 	/**
 	 * What the dialogs decide. {@code optics} is set when {@code psf} is {@link #FROM_OPTICS}.
 	 */
-	public record Options(String image, String psf, PsfFromOptics.Options optics, DeconvolutionOptions deconvolution, boolean plot) {
+	public record Options(String image, String psf, PsfFromOptics.Options optics, DeconvolutionOptions deconvolution, boolean plot, Watch watch) {
+
+		/** Without watch mode. */
+		public Options(final String image, final String psf, final PsfFromOptics.Options optics, final DeconvolutionOptions deconvolution, final boolean plot) {
+			this(image, psf, optics, deconvolution, plot, null);
+		}
+
+		public Options {
+			if (watch != null && deconvolution != null && deconvolution.method() == DeconvolutionMethod.WIENER)
+				throw new IllegalArgumentException("Watch mode needs an iterative method: the Wiener filter has no iterations to watch");
+		}
 
 		public String macroOptions() {
 			final DeconvolutionOptions d = deconvolution;
 			final String s = "image=" + MacroOptions.quote(image) + " psf=" + MacroOptions.quote(psf) + " method=" + d.method().key() + " iterations="
 					+ d.iterations() + " regularization=" + MacroOptions.number(d.regularization()) + " stop=" + d.stopping().key() + " threshold="
 					+ MacroOptions.number(d.changeThreshold()) + " edges=" + d.edges().key() + " offset=" + level(d.offset()) + " background="
-					+ level(d.background()) + (plot ? " plot" : "");
-			return optics == null ? s : s + " " + optics.macroOptions();
+					+ level(d.background()) + (plot ? " plot" : "") + (watch != null ? " watch" : "");
+			final String withOptics = optics == null ? s : s + " " + optics.macroOptions();
+			return watch == null ? withOptics : withOptics + " " + watch.macroOptions();
 		}
 
-		private static String level(final Level l) {
+		static String level(final Level l) {
 			return switch (l.kind()) {
 			case ESTIMATED -> "auto";
 			case NONE -> "0";
@@ -71,19 +95,69 @@ public class Deconvolve implements PlugIn {
 		}
 	}
 
+	/**
+	 * Watch-mode settings (the second dialog).
+	 *
+	 * @param every evaluate every this many iterations
+	 * @param referenceFolder folder of sharp reference TIFFs, or ""
+	 * @param openReferences wildcard pattern of open reference images, or ""
+	 * @param photons photons per intensity unit of the data (noise model of the χ²)
+	 * @param readNoise read-noise σ in intensity units
+	 * @param stopAtSuggestion return the suggested iterate instead of the last one
+	 * @param ignoreCalibration compare with references voxel for voxel
+	 */
+	public record Watch(int every, String referenceFolder, String openReferences, double photons, double readNoise, boolean stopAtSuggestion,
+			boolean ignoreCalibration) {
+
+		public Watch {
+			if (every < 1 || every > DeconvolutionOptions.MAX_ITERATIONS)
+				throw new IllegalArgumentException("Evaluate every 1 to " + DeconvolutionOptions.MAX_ITERATIONS + " iterations, got " + every + " (every=)");
+			if (!(photons > 0) || !Double.isFinite(photons)) throw new IllegalArgumentException("Photons per unit must be positive, got " + photons + " (photons=)");
+			if (!(readNoise >= 0) || !Double.isFinite(readNoise)) throw new IllegalArgumentException("Read noise must be 0 or more, got " + readNoise + " (read_noise=)");
+		}
+
+		public String macroOptions() {
+			return "every=" + every + " references=" + MacroOptions.quote(referenceFolder) + " open_references=" + MacroOptions.quote(openReferences)
+					+ " photons=" + MacroOptions.number(photons) + " read_noise=" + MacroOptions.number(readNoise) + (stopAtSuggestion ? " stop_at_suggestion" : "")
+					+ (ignoreCalibration ? " ignore_calibration" : "");
+		}
+
+		Watch withIgnoreCalibration() {
+			return new Watch(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, true);
+		}
+	}
+
 	@Override
 	public void run(final String arg) {
 		Commands.run(COMMAND, () -> {
-			final Options o = showDialog();
+			Options o = showDialog();
 			if (o == null) return;
+			if (o.watch() != null && !o.watch().ignoreCalibration()) {
+				final ImagePlus imp = Commands.image(o.image(), "image");
+				final String problem = CompareWithReferences.calibrationProblem(imp,
+						CompareWithReferences.references(o.watch().referenceFolder(), o.watch().openReferences(), List.of(o.image(), o.psf())), null);
+				if (problem != null) {
+					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) return;
+					o = new Options(o.image(), o.psf(), o.optics(), o.deconvolution(), o.plot(), o.watch().withIgnoreCalibration());
+				}
+			}
 			final Output out = run(o);
 			if (out.convergence() != null) out.convergence().show();
+			if (out.quality() != null) out.quality().show();
 			out.image().show(); // last, so that it is the current image for the next macro line
 		});
 	}
 
-	/** The deconvolved image and the convergence plot (null for Wiener or when not asked). */
-	public record Output(ImagePlus image, Plot convergence, List<DeconvolutionResult> results) {}
+	/**
+	 * The deconvolved image, the convergence plot (null for Wiener or when not asked), and in watch mode the
+	 * quality plot and the watches (one per channel and frame; otherwise null and empty).
+	 */
+	public record Output(ImagePlus image, Plot convergence, List<DeconvolutionResult> results, Plot quality, List<QualityWatch> watches) {
+
+		public Output(final ImagePlus image, final Plot convergence, final List<DeconvolutionResult> results) {
+			this(image, convergence, results, null, List.of());
+		}
+	}
 
 	Options showDialog() {
 		final String[] titles = Commands.imageTitles();
@@ -103,6 +177,7 @@ public class Deconvolve implements PlugIn {
 		gd.addStringField("Offset:", Prefs.get(PREFS + "offset", "auto"), 8);
 		gd.addStringField("Background:", Prefs.get(PREFS + "background", "auto"), 8);
 		gd.addCheckbox("Plot convergence", true);
+		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
 		gd.addHelp("Offset: camera offset subtracted first (a number, or auto = 0.1 % quantile). Background: constant in the model "
 				+ "H x + b (a number, or auto = sigma-clipped median). PSF: an open image, or from_optics to compute it in the next dialog.");
 		gd.showDialog();
@@ -116,6 +191,7 @@ public class Deconvolve implements PlugIn {
 		final EdgeMode edges = EdgeMode.parse(Commands.checkChoice("edges", gd.getNextChoice(), "edge mode"));
 		final String offset = gd.getNextString().trim(), background = gd.getNextString().trim();
 		final boolean plot = gd.getNextBoolean();
+		final boolean watch = gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		if (iterations != Math.rint(iterations)) throw new IllegalArgumentException("Iterations must be a whole number, got " + iterations);
 		final DeconvolutionOptions d = new DeconvolutionOptions(method, (int) iterations, regularization, stop,
@@ -125,6 +201,11 @@ public class Deconvolve implements PlugIn {
 		if (FROM_OPTICS.equals(psf)) {
 			optics = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
 			if (optics == null) return null;
+		}
+		Watch w = null;
+		if (watch) {
+			w = showWatchDialog();
+			if (w == null) return null;
 		}
 		if (!Commands.isMacro()) {
 			Prefs.set(PREFS + "method", method.key());
@@ -136,7 +217,40 @@ public class Deconvolve implements PlugIn {
 			Prefs.set(PREFS + "offset", offset);
 			Prefs.set(PREFS + "background", background);
 		}
-		return new Options(image, psf, optics, d, plot);
+		return new Options(image, psf, optics, d, plot, w);
+	}
+
+	/** The watch-mode dialog; in a macro, values not given take the defaults (never remembered ones). */
+	static Watch showWatchDialog() {
+		final boolean macro = Commands.isMacro();
+		final GenericDialog gd = new GenericDialog(COMMAND + ": watch quality");
+		gd.addNumericField("Every:", macro ? 5 : Prefs.get(PREFS + "every", 5), 0, 6, "iterations");
+		gd.addStringField("References:", macro ? "" : Prefs.get(PREFS + "references", ""), 30);
+		gd.addStringField("Open_references:", macro ? "" : Prefs.get(PREFS + "open_references", ""), 20);
+		gd.addNumericField("Photons:", macro ? 1 : Prefs.get(PREFS + "photons", 1), 4, 8, "per intensity unit (1 = photon counts)");
+		gd.addNumericField("Read_noise:", macro ? 0 : Prefs.get(PREFS + "read_noise", 0), 3, 8, "sigma, intensity units");
+		gd.addCheckbox("Stop_at_suggestion (return the suggested iterate)", false);
+		gd.addCheckbox("Ignore_calibration of the references", false);
+		gd.addHelp("Every k iterations the iterate is compared with sharp reference images of the same kind of structure (every .tif in the "
+				+ "folder and/or open images whose title matches the pattern, * and ? wildcards; both may be empty) and re-blurred against the data "
+				+ "(chi-square, noise model: photons per unit and read noise). The suggested iteration is the one closest to the references "
+				+ "(without references: the last with chi-square >= 1).");
+		gd.showDialog();
+		if (gd.wasCanceled()) return null;
+		final double every = Commands.number(gd, "every");
+		final String folder = gd.getNextString().trim(), pattern = gd.getNextString().trim();
+		final double photons = Commands.number(gd, "photons"), readNoise = Commands.number(gd, "read_noise");
+		final boolean stop = gd.getNextBoolean(), ignore = gd.getNextBoolean();
+		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
+		if (every != Math.rint(every)) throw new IllegalArgumentException("Every must be a whole number of iterations, got " + every + " (every=)");
+		if (!macro) {
+			Prefs.set(PREFS + "every", (int) every);
+			Prefs.set(PREFS + "references", folder);
+			Prefs.set(PREFS + "open_references", pattern);
+			Prefs.set(PREFS + "photons", photons);
+			Prefs.set(PREFS + "read_noise", readNoise);
+		}
+		return new Watch((int) every, folder, pattern, photons, readNoise, stop, ignore);
 	}
 
 	/** "auto" = estimated, "0" or "" = none, else a number. */
@@ -159,16 +273,36 @@ public class Deconvolve implements PlugIn {
 		final ImagePlus psfImp = o.optics() == null ? Commands.image(o.psf(), "PSF") : null;
 		final List<String> notes = new ArrayList<>();
 		final List<Volume> psfs = psfsFor(in, psfImp, o.optics(), notes);
-		MemoryBudget.require(Deconvolution.bytesNeeded(in.first().shape(), psfs.get(0).shape(), o.deconvolution()) + 8L * in.first().size(),
-				"deconvolving " + in.nx() + " x " + in.ny() + " x " + in.nz());
+		MemoryBudget.require(Deconvolution.bytesNeeded(in.first().shape(), psfs.get(0).shape(), o.deconvolution()) + 8L * in.first().size()
+				+ (o.watch() == null ? 0 : 8L * in.first().size() * in.volumes().size()), "deconvolving " + in.nx() + " x " + in.ny() + " x " + in.nz());
 		final IjMonitor monitor = new IjMonitor(COMMAND);
 		final int n = in.volumes().size();
+		final List<CompareWithReferences.Reference> refs = o.watch() == null ? List.of()
+				: CompareWithReferences.references(o.watch().referenceFolder(), o.watch().openReferences(), List.of(o.image(), o.psf()));
+		if (o.watch() != null && !o.watch().ignoreCalibration()) {
+			final String problem = CompareWithReferences.calibrationProblem(imp, refs, null);
+			if (problem != null) throw new IllegalArgumentException(problem + ": calibrate it, or add ignore_calibration to compare voxel for voxel");
+		}
+		final List<QualityWatch> watches = new ArrayList<>();
 		final List<DeconvolutionResult> results = Commands.withImageJThreads(() -> {
 			final List<DeconvolutionResult> rs = new ArrayList<>();
+			final ReferenceComparison.References prepared = o.watch() == null || refs.isEmpty() ? null
+					: CompareWithReferences.named(refs, () -> ReferenceComparison.prepare(refs.stream().map(CompareWithReferences.Reference::volume).toList(), in.first(),
+							ReferenceComparison.Options.defaults().withIgnoreCalibration(o.watch().ignoreCalibration()), monitor));
 			for (int t = 0; t < in.frames(); t++)
 				for (int c = 0; c < in.channels(); c++) {
 					final int index = rs.size();
 					final String where = n > 1 ? " (channel " + (c + 1) + ", frame " + (t + 1) + ")" : "";
+					final org.parfocal.deconv.IterationListener listener;
+					if (o.watch() != null) {
+						final DeconvolutionOptions d = o.deconvolution();
+						final double[] lv = QualityWatch.Consistency.levels(in.get(c, t), d.offset(), d.background());
+						final QualityWatch w = new QualityWatch(prepared, QualityWatch.Consistency.forDeconvolution(in.get(c, t), psfs.get(c),
+								d.edges() == EdgeMode.PERIODIC, lv[0], lv[1], o.watch().photons(), o.watch().readNoise()), o.watch().every(),
+								o.watch().stopAtSuggestion(), in.voxelSize());
+						watches.add(w);
+						listener = w;
+					} else listener = org.parfocal.deconv.IterationListener.NONE;
 					rs.add(Deconvolution.run(in.get(c, t), psfs.get(c), o.deconvolution(), null, new org.parfocal.core.Monitor() {
 						@Override
 						public void progress(final int done, final int total, final String status) {
@@ -179,13 +313,15 @@ public class Deconvolve implements PlugIn {
 						public boolean isCancelled() {
 							return monitor.isCancelled();
 						}
-					}, org.parfocal.deconv.IterationListener.NONE));
+					}, listener));
 				}
 			return rs;
 		});
 		final List<Volume> vols = new ArrayList<>();
-		for (final DeconvolutionResult r : results) {
-			vols.add(r.estimate());
+		for (int i = 0; i < results.size(); i++) {
+			final DeconvolutionResult r = results.get(i);
+			final boolean best = o.watch() != null && o.watch().stopAtSuggestion() && watches.get(i).best() != null;
+			vols.add(best ? watches.get(i).best() : r.estimate());
 			for (final String note : r.notes()) if (!notes.contains(note)) notes.add(note);
 		}
 		final String title = WindowManager.makeUniqueName(ConvolveWithPsf.stripExtension(imp.getTitle()) + "-deconvolved.tif");
@@ -194,14 +330,85 @@ public class Deconvolve implements PlugIn {
 		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", imp));
 		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
 		final DeconvolutionResult first = results.get(0);
-		prov.run("iterations", first.iterations()).run("stop_reason", stopReason(o.deconvolution(), first)).run("offset", first.offset())
+		prov.run("iterations", first.iterations()).run("stop_reason", stopReason(o.deconvolution(), first) + (o.watch() != null && o.watch().stopAtSuggestion() && !watches.isEmpty()
+				&& watches.get(0).best() != null ? "; the suggested iterate " + watches.get(0).suggestion().iteration() + " was returned (watch mode)" : "")).run("offset", first.offset())
 				.run("background", first.background());
 		if (n > 1) prov.run("volumes", n);
+		if (o.watch() != null) watchProvenance(prov, o.watch(), watches, refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		Provenance.attach(out, prov, start);
 		monitor.done(String.format(Locale.ROOT, "%d iteration(s), %.1f s", first.iterations(), (System.nanoTime() - start) / 1e9));
 		final Plot plot = o.plot() && !first.history().isEmpty() ? convergencePlot(results, title) : null;
-		return new Output(out, plot, results);
+		final Plot quality = o.watch() == null ? null : qualityPlot(watches, title);
+		return new Output(out, plot, results, quality, List.copyOf(watches));
+	}
+
+	/** Watch-mode facts: the rule, the suggestion(s), what was returned, and the curve(s). */
+	static void watchProvenance(final org.parfocal.provenance.Provenance.Builder prov, final Watch w, final List<QualityWatch> watches,
+			final List<CompareWithReferences.Reference> refs) {
+		prov.run("watch_rule", StoppingRule.DESCRIPTION).run("watch_references", refs.size());
+		for (final CompareWithReferences.Reference r : refs) prov.input(Provenance.input("reference", r.image()));
+		final int n = watches.size();
+		for (int i = 0; i < n; i++) {
+			final QualityWatch q = watches.get(i);
+			final String suffix = n > 1 ? "_" + (i + 1) : "";
+			final StoppingRule.Suggestion s = q.suggestion();
+			prov.run("suggested_iteration" + suffix, s.iteration()).run("suggestion" + suffix, s.reason());
+			if (w.stopAtSuggestion()) prov.run("returned_iteration" + suffix, q.best() != null ? s.iteration() : q.points().isEmpty() ? 0 : q.points().get(q.points().size() - 1).iteration());
+			if (!Double.isNaN(q.floor())) prov.run("watch_floor" + suffix, q.floor());
+			final StringBuilder sb = new StringBuilder();
+			for (final StoppingRule.Point p : q.points()) {
+				if (sb.length() > 0) sb.append("; ");
+				sb.append(String.format(Locale.ROOT, "%d: d %.5g chi2 %.5g", p.iteration(), p.distance(), p.chiSquare()));
+			}
+			prov.run("watch_curve" + suffix, sb.toString());
+		}
+	}
+
+	/**
+	 * Patch distance ÷ its noise floor and re-blur χ² against the iteration, on one log axis where 1 means
+	 * "indistinguishable from the references" and "consistent with the noise" respectively; a dotted line marks
+	 * the suggested iteration (first channel and frame).
+	 */
+	static Plot qualityPlot(final List<QualityWatch> watches, final String title) {
+		final Plot plot = new Plot("Quality of " + title, "Iteration", "Distance / floor, chi-square");
+		plot.setLogScaleY();
+		final Color[] colors = { new Color(0, 90, 170), new Color(200, 80, 0), new Color(0, 140, 60), new Color(120, 0, 140) };
+		final StringBuilder legend = new StringBuilder();
+		double xmax = 1, ymin = 1, ymax = 1;
+		for (int i = 0; i < watches.size(); i++) {
+			final QualityWatch q = watches.get(i);
+			final List<StoppingRule.Point> pts = q.points();
+			final double[] x = new double[pts.size()], d = new double[pts.size()], chi = new double[pts.size()];
+			for (int k = 0; k < x.length; k++) {
+				x[k] = pts.get(k).iteration();
+				d[k] = pts.get(k).distance() / q.floor();
+				chi[k] = pts.get(k).chiSquare();
+				xmax = Math.max(xmax, x[k]);
+				for (final double v : new double[] { d[k], chi[k] }) if (v > 0 && Double.isFinite(v)) { ymin = Math.min(ymin, v); ymax = Math.max(ymax, v); }
+			}
+			final String which = watches.size() > 1 ? " (" + (i + 1) + ")" : "";
+			plot.setColor(colors[i % colors.length]);
+			if (!Double.isNaN(q.floor())) {
+				plot.setLineWidth(2);
+				plot.addPoints(x, d, Plot.CONNECTED_CIRCLES);
+				legend.append("distance / floor").append(which).append('\t');
+			}
+			plot.setLineWidth(1);
+			plot.addPoints(x, chi, Plot.LINE);
+			legend.append("chi-square").append(which).append('\t');
+		}
+		plot.setLimits(0, xmax * 1.02, ymin / 1.2, ymax * 1.2);
+		plot.setColor(Color.GRAY);
+		plot.drawDottedLine(0, 1, xmax * 1.02, 1, 2);
+		if (!watches.isEmpty() && watches.get(0).suggestion().iteration() > 0) {
+			final int s = watches.get(0).suggestion().iteration();
+			plot.drawDottedLine(s, ymin / 1.2, s, ymax * 1.2, 4);
+			plot.addLabel(0.02, 0.08, "suggested: iteration " + s);
+		}
+		plot.setColor(Color.BLACK);
+		plot.addLegend(legend.toString().strip());
+		return plot;
 	}
 
 	/** Why the run stopped, in words, for provenance. */

@@ -180,6 +180,92 @@ class DeconvolveCommandTest {
 		assertNull(Provenance.of(img).orElse(null), "input untouched");
 	}
 
+	/** Sharp references of the same kind: other cells of the sample scene (our own synthetic data), calibrated like the recording. */
+	static ImagePlus[] sharpReferences() {
+		final ImagePlus[] refs = new ImagePlus[3];
+		for (int i = 0; i < refs.length; i++) refs[i] = ImageBridge.toImagePlus(SampleScene.cell(40, 36, 10, 100 + i).withVoxelSize(VOXEL), "sharp-" + i + ".tif");
+		return refs;
+	}
+
+	/** A dimmer recording (0.02 photons per unit), where RL starts fitting noise within 60 iterations. */
+	static ImagePlus dimRecorded(final String title) {
+		final Volume y = new Acquisition(gaussianPsf(), truth().shape(), new Acquisition.Options(Boundary.ZERO, true, 2, 0.02, 5, 100)).record(truth(),
+				Monitor.NONE);
+		return ImageBridge.toImagePlus(y.withVoxelSize(VOXEL), title);
+	}
+
+	static final String WATCH = "image=cell.tif psf=psf.tif method=richardson-lucy iterations=60 regularization=0 stop=fixed threshold=0.001 "
+			+ "edges=non-circulant offset=100 background=2 watch every=3 references=[] open_references=sharp-* photons=0.02 read_noise=0";
+
+	/**
+	 * Watch mode: the suggestion equals the core watch's (same references, same noise model), the plot is made,
+	 * and with stop_at_suggestion the output is the iterate of a run stopped at the suggested iteration; the
+	 * provenance holds the keys, the rule, the suggestion and the curve.
+	 */
+	@Test
+	void watchModeSuggestsAnIterationAndCanReturnIt() {
+		final ImagePlus img = dimRecorded("cell.tif"), psf = ImageBridge.toImagePlus(gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
+		final ImagePlus[] refs = sharpReferences();
+		open(img, psf, refs[0], refs[1], refs[2]);
+		final ImageJHarness.Result r = ImageJHarness.run(img, CMD, WATCH + " stop_at_suggestion");
+		final ImagePlus out = r.created().stream().filter(i -> i.getTitle().equals("cell-deconvolved.tif")).findFirst().orElseThrow();
+		assertTrue(r.created().stream().anyMatch(i -> i.getTitle().startsWith("Quality of cell-deconvolved")), "quality plot: " + r.created());
+		// the core watch with the same settings
+		final Volume y = ImageBridge.toCore(img).first();
+		final java.util.List<Volume> refVolumes = java.util.Arrays.stream(refs).map(i -> ImageBridge.toCore(i).first()).toList();
+		final org.parfocal.quality.QualityWatch w = new org.parfocal.quality.QualityWatch(
+				org.parfocal.quality.ReferenceComparison.prepare(refVolumes, y, org.parfocal.quality.ReferenceComparison.Options.defaults(), Monitor.NONE),
+				org.parfocal.quality.QualityWatch.Consistency.forDeconvolution(y, gaussianPsf(), false, 100, 2, 0.02, 0), 3, false, VOXEL);
+		final DeconvolutionOptions d = new DeconvolutionOptions(DeconvolutionMethod.RL, 60, 0, Stopping.FIXED, 0.001, EdgeMode.NON_CIRCULANT, Level.of(100),
+				Level.of(2));
+		Deconvolution.run(y, gaussianPsf(), d, null, Monitor.NONE, w);
+		final int k = w.suggestion().iteration();
+		assertEquals(20, w.points().size());
+		final var p = Provenance.of(out).orElseThrow();
+		assertEquals((long) k, p.run().get("suggested_iteration"));
+		assertEquals((long) k, p.run().get("returned_iteration"));
+		assertTrue(p.run().get("stop_reason").toString().contains("suggested iterate " + k), p.run().get("stop_reason").toString());
+		assertEquals(20, p.run().get("watch_curve").toString().split(";").length);
+		assertEquals(org.parfocal.quality.StoppingRule.DESCRIPTION, p.run().get("watch_rule"));
+		assertEquals(List.of("image", "psf", "method", "iterations", "regularization", "stop", "threshold", "edges", "offset", "background", "watch", "every",
+				"references", "open_references", "photons", "read_noise", "stop_at_suggestion"), List.copyOf(p.options().keySet()));
+		final Volume stopped = Deconvolution.run(y, gaussianPsf(), d.withIterations(k), Monitor.NONE).estimate();
+		assertArrayEquals(stopped.data(), ImageBridge.toCore(out).first().data(), 1e-6f * max(stopped.data()), "output = the iterate at the suggestion");
+		// χ² only (no references): the last iterate with χ² ≥ 1, here well before the end
+		final ImagePlus chiOnly = ImageJHarness.run(img, CMD, WATCH.replace("open_references=sharp-*", "open_references=[]") + " stop_at_suggestion").created()
+				.stream().filter(i -> i.getTitle().startsWith("cell-deconvolved")).findFirst().orElseThrow();
+		final org.parfocal.quality.QualityWatch wc = new org.parfocal.quality.QualityWatch(null,
+				org.parfocal.quality.QualityWatch.Consistency.forDeconvolution(y, gaussianPsf(), false, 100, 2, 0.02, 0), 3, false, VOXEL);
+		Deconvolution.run(y, gaussianPsf(), d, null, Monitor.NONE, wc);
+		final int kc = wc.suggestion().iteration();
+		assertTrue(kc > 0 && kc < 60, "chi-square-only suggestion " + kc);
+		assertEquals((long) kc, Provenance.of(chiOnly).orElseThrow().run().get("returned_iteration"));
+		final Volume stoppedChi = Deconvolution.run(y, gaussianPsf(), d.withIterations(kc), Monitor.NONE).estimate();
+		assertArrayEquals(stoppedChi.data(), ImageBridge.toCore(chiOnly).first().data(), 1e-6f * max(stoppedChi.data()));
+		// without stop_at_suggestion the output is the last iterate, as without watch mode
+		final ImagePlus last = ImageJHarness.run(img, CMD, WATCH).created().stream()
+				.filter(i -> i.getTitle().startsWith("cell-deconvolved")).findFirst().orElseThrow();
+		final Volume core = Deconvolution.run(y, gaussianPsf(), d, Monitor.NONE).estimate();
+		assertArrayEquals(core.data(), ImageBridge.toCore(last).first().data(), 1e-6f * max(core.data()));
+	}
+
+	@Test
+	void watchModeBadInputIsRefusedInOneLine() {
+		final ImagePlus img = recorded("cell.tif"), psf = ImageBridge.toImagePlus(gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
+		final ImagePlus[] refs = sharpReferences();
+		final ImagePlus bare = ImageBridge.toImagePlus(SampleScene.cell(40, 36, 10, 200).withVoxelSize(VoxelSize.UNCALIBRATED), "bare-ref.tif");
+		final ImagePlus flat = ImageBridge.toImagePlus(SampleScene.cell(40, 36, 1, 200).withVoxelSize(VOXEL), "flat-ref.tif");
+		open(img, psf, refs[0], refs[1], refs[2], bare, flat);
+		final String w = WATCH;
+		assertFails("Watch mode needs an iterative method", img, w.replace("method=richardson-lucy", "method=wiener").replace("regularization=0", "regularization=0.001"));
+		assertFails("Evaluate every 1 to 10000 iterations, got 0 (every=)", img, w.replace("every=3", "every=0"));
+		assertFails("The reference folder '/no/such/folder' does not exist", img, w.replace("references=[]", "references=/no/such/folder"));
+		assertFails("No open image matches the reference pattern 'lantern-*'", img, w.replace("sharp-*", "lantern-*"));
+		assertFails("add ignore_calibration", img, w.replace("sharp-*", "bare-ref.tif"));
+		assertFails("Reference 1 ('flat-ref.tif') is 2D but the result is 3D", img, w.replace("sharp-*", "flat-ref.tif"));
+		assertFails("Photons per unit must be positive", img, w.replace("photons=0.02", "photons=0"));
+	}
+
 	@Test
 	@Tag("display")
 	void recordedLineReplaysHeadless() throws Exception {
