@@ -28,7 +28,7 @@ public interface BlockSink extends AutoCloseable {
 	}
 
 	/** An output in memory, zero-filled, of the given shape. */
-	static Memory memory(final int[] shape, final VoxelSize voxelSize) {
+	public static Memory memory(final int[] shape, final VoxelSize voxelSize) {
 		return new Memory(Volume.zeros(shape[0], shape[1], shape[2], voxelSize));
 	}
 

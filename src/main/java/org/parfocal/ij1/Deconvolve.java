@@ -13,6 +13,10 @@ import ij.gui.GenericDialog;
 import ij.gui.Plot;
 import ij.plugin.PlugIn;
 
+import org.parfocal.blocks.BlockDeconvolution;
+import org.parfocal.blocks.BlockPlan;
+import org.parfocal.blocks.BlockSink;
+import org.parfocal.blocks.BlockSource;
 import org.parfocal.conv.Psfs;
 import org.parfocal.core.Hyperstack;
 import org.parfocal.core.MemoryBudget;
@@ -273,6 +277,9 @@ public class Deconvolve implements PlugIn {
 		final ImagePlus psfImp = o.optics() == null ? Commands.image(o.psf(), "PSF") : null;
 		final List<String> notes = new ArrayList<>();
 		final List<Volume> psfs = psfsFor(in, psfImp, o.optics(), notes);
+		final long budget = Long.getLong(BUDGET_PROPERTY, BlockPlan.heapBudget());
+		if (o.watch() == null && BlockPlan.needed(in.first().shape(), psfs.get(0).shape(), o.deconvolution(), budget))
+			return runInBlocks(o, imp, in, psfImp, psfs, notes, budget, start);
 		MemoryBudget.require(Deconvolution.bytesNeeded(in.first().shape(), psfs.get(0).shape(), o.deconvolution()) + 8L * in.first().size()
 				+ (o.watch() == null ? 0 : 8L * in.first().size() * in.volumes().size()), "deconvolving " + in.nx() + " x " + in.ny() + " x " + in.nz());
 		final IjMonitor monitor = new IjMonitor(COMMAND);
@@ -341,6 +348,63 @@ public class Deconvolve implements PlugIn {
 		final Plot plot = o.plot() && !first.history().isEmpty() ? convergencePlot(results, title) : null;
 		final Plot quality = o.watch() == null ? null : qualityPlot(watches, title);
 		return new Output(out, plot, results, quality, List.copyOf(watches));
+	}
+
+	/** System property (bytes) that overrides the memory budget deciding when to work block by block. */
+	public static final String BUDGET_PROPERTY = "parfocal.blocks.budget";
+
+	/**
+	 * The same run block by block, when the padded stack would not fit in the memory budget: the user is told,
+	 * and the provenance records the block plan. Watch mode is not available this way.
+	 */
+	static Output runInBlocks(final Options o, final ImagePlus imp, final Hyperstack in, final ImagePlus psfImp, final List<Volume> psfs,
+			final List<String> notes, final long budget, final long start) {
+		final BlockPlan plan = BlockPlan.forBudget(in.first().shape(), psfs.get(0).shape(), o.deconvolution(), budget);
+		IJ.log(COMMAND + ": the padded stack does not fit in " + MemoryBudget.format(budget) + "; deconvolving block by block: " + plan);
+		MemoryBudget.require(4L * in.first().size() * in.volumes().size(), "the block-wise result");
+		final IjMonitor monitor = new IjMonitor(COMMAND);
+		final int n = in.volumes().size();
+		final List<BlockDeconvolution.Result> runs = new ArrayList<>();
+		final List<Volume> vols = Commands.withImageJThreads(() -> {
+			final List<Volume> vs = new ArrayList<>();
+			for (int t = 0; t < in.frames(); t++)
+				for (int c = 0; c < in.channels(); c++) {
+					final int index = vs.size();
+					final BlockSink.Memory sink = BlockSink.memory(in.first().shape(), in.voxelSize());
+					try {
+						runs.add(BlockDeconvolution.run(BlockSource.of(in.get(c, t)), psfs.get(c), o.deconvolution(), plan, sink, new org.parfocal.core.Monitor() {
+							@Override
+							public void progress(final int done, final int total, final String status) {
+								monitor.progress(index * total + done, n * total, status);
+							}
+
+							@Override
+							public boolean isCancelled() {
+								return monitor.isCancelled();
+							}
+						}));
+					} catch (final java.io.IOException e) {
+						throw new IllegalStateException("Block-wise run failed: " + e.getMessage());
+					}
+					vs.add(sink.result());
+				}
+			return vs;
+		});
+		for (final BlockDeconvolution.Result r : runs) for (final String note : r.notes()) if (!notes.contains(note)) notes.add(note);
+		final String title = WindowManager.makeUniqueName(ConvolveWithPsf.stripExtension(imp.getTitle()) + "-deconvolved.tif");
+		final ImagePlus out = ImageBridge.toImagePlus(new Hyperstack(in.channels(), in.frames(), vols), title, imp.getCalibration());
+		for (final String note : notes) IJ.log(COMMAND + ": " + note);
+		final BlockDeconvolution.Result first = runs.get(0);
+		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", imp));
+		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		prov.run("iterations", first.maxIterations()).run("stop_reason", "block by block (" + plan.count() + " blocks); each block ran "
+				+ (first.minIterations() == first.maxIterations() ? first.maxIterations() : first.minIterations() + " to " + first.maxIterations()) + " iteration(s)")
+				.run("offset", first.levels().offset()).run("background", first.levels().background()).run("block_plan", plan.describe());
+		if (n > 1) prov.run("volumes", n);
+		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
+		Provenance.attach(out, prov, start);
+		monitor.done("block by block, " + plan.count() + " blocks");
+		return new Output(out, null, List.of());
 	}
 
 	/** Watch-mode facts: the rule, the suggestion(s), what was returned, and the curve(s). */

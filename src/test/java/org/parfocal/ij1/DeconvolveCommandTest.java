@@ -113,6 +113,41 @@ class DeconvolveCommandTest {
 		assertTrue(keys.containsAll(List.of("na", "sample_index", "voxel_z", "size_xy")), keys.toString());
 	}
 
+	/** A stack whose padded transform does not fit the memory budget is deconvolved block by block, and says so. */
+	@Test
+	void tooLargeForTheBudgetGoesBlockByBlockAndMatchesTheWholeRun() {
+		final Volume big = SampleScene.cell(140, 120, 10, 7);
+		final Volume y = new Acquisition(gaussianPsf(), big.shape(), new Acquisition.Options(Boundary.ZERO, true, 2, 1, 5, 100)).record(big, Monitor.NONE);
+		final ImagePlus img = ImageBridge.toImagePlus(y.withVoxelSize(VOXEL), "cell.tif");
+		final ImagePlus psf = ImageBridge.toImagePlus(gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
+		open(img, psf);
+		final String options = OPTIONS.replace("iterations=12", "iterations=8");
+		final ImagePlus whole = ImageJHarness.run(img, CMD, options).onlyCreated();
+		final ImageJHarness.Result r;
+		final Volume v = ImageBridge.toCore(img).first();
+		final DeconvolutionOptions d = new DeconvolutionOptions(DeconvolutionMethod.RL_TV, 8, 0.002, Stopping.FIXED, 0.001, EdgeMode.NON_CIRCULANT,
+				Level.of(100), Level.ESTIMATED);
+		// 60 % of what the whole-stack run needs: too little, so the stack is cut into a few blocks
+		final long needed = Deconvolution.bytesNeeded(v.shape(), gaussianPsf().shape(), d) + 8L * v.size();
+		System.setProperty(Deconvolve.BUDGET_PROPERTY, Long.toString(needed * 6 / 10));
+		try {
+			r = ImageJHarness.run(img, CMD, options);
+		} finally {
+			System.clearProperty(Deconvolve.BUDGET_PROPERTY);
+		}
+		assertTrue(String.join("\n", r.log()).contains("deconvolving block by block"), () -> String.join("\n", r.log()));
+		final ImagePlus blocks = r.onlyCreated();
+		final var p = Provenance.of(blocks).orElseThrow();
+		assertTrue(p.run().get("block_plan") instanceof java.util.Map<?, ?>, "the block plan is in the provenance");
+		final float[] a = ImageBridge.toCore(whole).first().data(), b = ImageBridge.toCore(blocks).first().data();
+		float range = 0, diff = 0;
+		for (int i = 0; i < a.length; i++) {
+			range = Math.max(range, a[i]);
+			diff = Math.max(diff, Math.abs(a[i] - b[i]));
+		}
+		assertTrue(diff <= 0.01 * range, "block-wise within 1 % of the range: " + diff / range);
+	}
+
 	@Test
 	void aPsfAtAnotherVoxelSizeIsResampledAndSaysSo() {
 		final ImagePlus img = recorded("cell.tif");
