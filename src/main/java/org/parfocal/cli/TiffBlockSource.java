@@ -81,7 +81,9 @@ public final class TiffBlockSource implements BlockSource {
 				throw new IllegalArgumentException(path.getFileName() + " is truncated: plane " + (z + 1) + " of " + nz + " ends past the end of the file");
 		Volume.checkedSize(nx, ny, 1);
 		// the z spacing and unit are in ImageJ's description (ImageJ's FileOpener reads them from there too)
-		final String descUnit = text(desc, "unit");
+		// ImageJ writes non-ASCII characters of the unit escaped, e.g. "unit=\\u00B5m" for µm
+		final String rawUnit = text(desc, "unit");
+		final String descUnit = rawUnit == null ? null : rawUnit.replace("\\u00B5", "µ").replace("\\u00b5", "µ");
 		final String unit = descUnit != null ? descUnit : f.unit == null || f.unit.isBlank() ? VoxelSize.PIXEL : f.unit;
 		final String spacing = text(desc, "spacing");
 		double dz = f.pixelDepth;
