@@ -24,7 +24,10 @@ import org.parfocal.fft.RealFft;
  * <p>
  * <b>How.</b> The image is extended by k − 1 − c voxels before and c after, then padded up to a fast FFT size
  * (with zeros, which the cropped window never reads), and convolved circularly; wrap-around never reaches the
- * cropped window. The PSF's transfer function is computed once, here, and reused by every call.
+ * cropped window. The PSF's transfer function is computed once, here, and reused by every call. The
+ * convolution runs in place on one grid ({@link RealFft#convolveInPlace}) and is pruned: only the rows of the
+ * extended image are transformed forward and only the rows read back (window, or extension for the fold)
+ * inverse.
  * <p>
  * The PSF is used as given; normalise it first ({@link Psfs#normalized}) if flux must be kept.
  * Instances are immutable and thread-safe; each call needs a {@link Workspace} (one per concurrent caller),
@@ -38,6 +41,10 @@ public final class ConvolutionOperator {
 	private final float[] transfer;
 	/** Source index along each axis for every padded position, -1 where the extension is zero. */
 	private final int[][] map;
+	/** Floats per row of the in-place grid. */
+	private final int rs;
+	/** Grid rows of the extended image (the only non-zero rows of E x) and of the image window. */
+	private final RealFft.Rows extendedRows, windowRows;
 
 	private ConvolutionOperator(final int[] n, final Volume psf, final Boundary boundary) {
 		this.n = n.clone();
@@ -56,7 +63,24 @@ public final class ConvolutionOperator {
 			for (int p = 0; p < padded[d]; p++) map[d][p] = p < n[d] + k[d] - 1 ? boundary.sourceIndex(p - before[d], n[d]) : -1;
 		}
 		this.fft = new RealFft(padded[0], padded[1], padded[2]);
-		this.transfer = fft.transferFunction(wrappedKernel(psf));
+		this.rs = fft.rowStride();
+		this.transfer = fft.newGrid();
+		wrappedKernel(psf, transfer);
+		fft.transferFunctionInPlace(transfer);
+		this.extendedRows = fft.rows(first(map[1]), last(map[1]) + 1, first(map[2]), last(map[2]) + 1);
+		this.windowRows = fft.rows(before[1], before[1] + n[1], before[2], before[2] + n[2]);
+	}
+
+	private static int first(final int[] map) {
+		int p = 0;
+		while (map[p] < 0) p++;
+		return p;
+	}
+
+	private static int last(final int[] map) {
+		int p = map.length - 1;
+		while (map[p] < 0) p--;
+		return p;
 	}
 
 	/**
@@ -93,15 +117,14 @@ public final class ConvolutionOperator {
 		if (bad >= 0) throw new IllegalArgumentException("The PSF has a non-finite value (" + psf.data()[bad] + ") at " + psf.position(bad));
 	}
 
-	/** Bytes for the transfer function plus one workspace. */
+	/** Bytes for the transfer function plus one workspace (one in-place grid). */
 	public static long bytesNeeded(final int[] imageShape, final int[] psfShape) {
-		long real = 1, spec = 2;
+		long spec = 2;
 		for (int d = 0; d < 3; d++) {
 			final long p = FastSizes.next(imageShape[d] + psfShape[d] - 1);
-			real *= p;
 			spec *= d == 0 ? p / 2 + 1 : p;
 		}
-		return 4 * (2 * spec + real);
+		return 4 * (2 * spec);
 	}
 
 	/** Image shape {nx, ny, nz} this operator applies to. */
@@ -119,7 +142,7 @@ public final class ConvolutionOperator {
 	public RealFft fft() { return fft; }
 
 	/** Scratch buffers for one caller at a time. */
-	public Workspace newWorkspace() { return new Workspace(fft.realLength(), fft.spectrumLength()); }
+	public Workspace newWorkspace() { return new Workspace(fft.gridLength()); }
 
 	/** H x as a new volume with x's calibration; x is not modified. */
 	public Volume apply(final Volume x) {
@@ -139,18 +162,18 @@ public final class ConvolutionOperator {
 	public void apply(final float[] in, final float[] out, final Workspace ws) {
 		checkImage(in);
 		checkImage(out);
-		extend(in, ws.real);
-		fft.convolve(ws.real, transfer, false, ws.spectrum);
-		crop(ws.real, out);
+		extend(in, ws.grid);
+		fft.convolveInPlace(ws.grid, transfer, false, extendedRows, windowRows, null);
+		crop(ws.grid, out);
 	}
 
 	/** out ← Hᵀ in (arrays of the image shape; they may be the same array). */
 	public void adjoint(final float[] in, final float[] out, final Workspace ws) {
 		checkImage(in);
 		checkImage(out);
-		embed(in, ws.real);
-		fft.convolve(ws.real, transfer, true, ws.spectrum);
-		fold(ws.real, out);
+		embed(in, ws.grid);
+		fft.convolveInPlace(ws.grid, transfer, true, windowRows, boundary == Boundary.ZERO ? windowRows : extendedRows, null);
+		fold(ws.grid, out);
 	}
 
 	// -- boundary handling on the padded grid --
@@ -160,9 +183,8 @@ public final class ConvolutionOperator {
 			throw new IllegalArgumentException("Array of " + a.length + " values does not match the operator's image " + shapeText(n));
 	}
 
-	/** PSF placed with its origin at index 0 of the padded grid (wrapping around). */
-	private float[] wrappedKernel(final Volume psf) {
-		final float[] kernel = new float[fft.realLength()];
+	/** PSF placed with its origin at index 0 of the padded grid (wrapping around), in the in-place layout. */
+	private void wrappedKernel(final Volume psf, final float[] kernel) {
 		final float[] h = psf.data();
 		for (int z = 0; z < k[2]; z++) {
 			final int pz = Math.floorMod(z - (k[2] - 1) / 2, padded[2]);
@@ -170,19 +192,21 @@ public final class ConvolutionOperator {
 				final int py = Math.floorMod(y - (k[1] - 1) / 2, padded[1]);
 				for (int x = 0; x < k[0]; x++) {
 					final int px = Math.floorMod(x - (k[0] - 1) / 2, padded[0]);
-					kernel[px + padded[0] * (py + padded[1] * pz)] = h[x + k[0] * (y + k[1] * z)];
+					kernel[px + rs * (py + padded[1] * pz)] = h[x + k[0] * (y + k[1] * z)];
 				}
 			}
 		}
-		return kernel;
 	}
 
-	/** P ← E x on the whole padded grid. */
+	/** P ← E x on the rows of the extended image (the other rows of E x are zero and never read). */
 	private void extend(final float[] x, final float[] p) {
 		final int px = padded[0], py = padded[1];
 		final int[] mx = map[0];
-		Parallel.forRange(py * padded[2], row -> {
-			final int sy = map[1][row % py], sz = map[2][row / py], o = row * px;
+		final RealFft.Rows b = extendedRows;
+		final int w = b.y1() - b.y0();
+		Parallel.forRange(b.count(), j -> {
+			final int row = b.y0() + j % w + py * (b.z0() + j / w);
+			final int sy = map[1][row % py], sz = map[2][row / py], o = row * rs;
 			if (sy < 0 || sz < 0) {
 				Arrays.fill(p, o, o + px, 0f);
 				return;
@@ -199,18 +223,22 @@ public final class ConvolutionOperator {
 	private void crop(final float[] p, final float[] out) {
 		Parallel.forRange(n[1] * n[2], row -> {
 			final int y = row % n[1], z = row / n[1];
-			final int src = before[0] + padded[0] * (y + before[1] + padded[1] * (z + before[2]));
+			final int src = before[0] + rs * (y + before[1] + padded[1] * (z + before[2]));
 			System.arraycopy(p, src, out, row * n[0], n[0]);
 		});
 	}
 
-	/** P ← y embedded in the window [before, before + n), zero elsewhere (the transpose of crop). */
+	/**
+	 * P ← y embedded in the window [before, before + n), zero elsewhere (the transpose of crop); rows outside
+	 * the window are left alone (the pruned transform reads them as zero).
+	 */
 	private void embed(final float[] y, final float[] p) {
-		Arrays.fill(p, 0f);
 		Parallel.forRange(n[1] * n[2], row -> {
 			final int yy = row % n[1], z = row / n[1];
-			final int dst = before[0] + padded[0] * (yy + before[1] + padded[1] * (z + before[2]));
+			final int o = rs * (yy + before[1] + padded[1] * (z + before[2])), dst = o + before[0];
+			Arrays.fill(p, o, dst, 0f);
 			System.arraycopy(y, row * n[0], p, dst, n[0]);
+			Arrays.fill(p, dst + n[0], o + padded[0], 0f);
 		});
 	}
 
@@ -230,7 +258,7 @@ public final class ConvolutionOperator {
 			Arrays.fill(out, o, o + n[0], 0f);
 			for (final int pz : inverse[2][z])
 				for (final int py : inverse[1][y]) {
-					final int src = padded[0] * (py + padded[1] * pz);
+					final int src = rs * (py + padded[1] * pz);
 					for (int i = 0; i < padded[0]; i++) {
 						final int s = mx[i];
 						if (s >= 0) out[o + s] += p[src + i];
@@ -254,13 +282,12 @@ public final class ConvolutionOperator {
 		return s[2] > 1 ? s[0] + " x " + s[1] + " x " + s[2] : s[0] + " x " + s[1];
 	}
 
-	/** Scratch arrays of one caller: the padded real grid and a half spectrum. */
+	/** Scratch array of one caller: the padded grid, real and spectrum in place. */
 	public static final class Workspace {
-		final float[] real, spectrum;
+		final float[] grid;
 
-		Workspace(final int realLength, final int spectrumLength) {
-			this.real = new float[realLength];
-			this.spectrum = new float[spectrumLength];
+		Workspace(final int gridLength) {
+			this.grid = new float[gridLength];
 		}
 	}
 }

@@ -22,14 +22,20 @@ import org.parfocal.fft.RealFft;
  * <li>zero: m = n, the window is the object domain, p = next5smooth(n + k − 1): no wrap-around reaches it;</li>
  * <li>periodic: m = n = p, plain circular convolution on the image grid.</li>
  * </ul>
- * <b>One iteration</b> is two fused convolutions ({@link RealFft#convolve}) and two passes over the grid:
- * t ← x (kept from the previous update), t ← H t, t ← y / max(t + b, floor) in the window and 0 elsewhere
- * (log-likelihood and Σ Hx summed on the way), t ← Hᵀ t, x ← x · t / Hᵀ1 (change and Σx summed on the way,
- * the new x also written to t for the next iteration). Reductions are per row of the grid, combined in row
- * order with compensation, so 1 and N threads give identical results.
+ * <b>One iteration</b> is two fused, pruned, in-place convolutions ({@link RealFft#convolveInPlace}) on the
+ * grid t: t ← x (kept from the previous update), t ← H t with only the object rows as input and only the
+ * window rows as output, then per window row (as soon as the inverse transform has made it, while it is in
+ * cache) t ← y / max(t + b, floor) in the window and 0 elsewhere in the row (log-likelihood and Σ Hx summed
+ * on the way); t ← Hᵀ t with the window rows as input and the object rows as output, then per object row
+ * x ← x · t / Hᵀ1 (change and Σx summed on the way, the new x also written to t for the next iteration).
+ * The accelerated method makes its prediction of each object row just before the first convolution
+ * transforms it.
+ * Rows of t outside these boxes are never read, so they are never cleared. Reductions are per row, combined in
+ * row order with compensation, so 1 and N threads give identical results.
  * <p>
- * <b>Memory</b>: the grid t, a spectrum scratch and the transfer function (≈ p each), the object x and,
- * non-circulant, 1/Hᵀ1 (m each), the data (n). The accelerated method adds three object arrays.
+ * <b>Memory</b>: the grid t (in place: the real grid and its spectrum share it) and the transfer function
+ * (≈ p each, rows of 2·(px/2 + 1) floats), the object x and, non-circulant, 1/Hᵀ1 (m each), the data (n).
+ * The accelerated method adds three object arrays.
  */
 final class RichardsonLucySolver {
 
@@ -39,14 +45,19 @@ final class RichardsonLucySolver {
 	static final double TV_EPSILON = 1e-4;
 
 	private final int nx, ny, nz, mx, my, mz, wx, wy, wz, px, py, pz;
+	/** Floats per row of the grid t (the in-place layout). */
+	private final int rs;
 	private final RealFft fft;
-	private final float[] transfer, t, spec, x, invW, y;
+	/** Rows of the grid holding the object domain and the image window. */
+	private final RealFft.Rows objectRows, windowRows;
+	private final float[] transfer, t, x, invW, y;
 	private final float b, floor;
 	private final DeconvolutionMethod method;
 	private final float lambda, eps;
 	private final float[] xPrev, g1, g2;
 	private float[] gNew, gOld;
-	private final double[] r1, r2, r3, r4, norm3;
+	/** Per-row partial sums: of window rows (ratio) and of object rows (update). */
+	private final double[] w1, w2, r1, r2, r3, r4, norm3;
 	/** Extrapolation factor of the next prediction and the number of RL steps done (accelerated method). */
 	private double alpha;
 	private int accelSteps;
@@ -81,11 +92,16 @@ final class RichardsonLucySolver {
 		this.y = y;
 		this.method = method;
 		this.fft = new RealFft(px, py, pz);
-		this.t = new float[fft.realLength()];
-		placeKernel(psf, t);
-		this.transfer = fft.transferFunction(t);
-		this.spec = fft.newSpectrum();
-		final int rows = py * pz;
+		this.rs = fft.rowStride();
+		this.objectRows = fft.rows(0, my, 0, mz);
+		this.windowRows = fft.rows(wy, wy + ny, wz, wz + nz);
+		this.transfer = fft.newGrid();
+		placeKernel(psf, transfer);
+		fft.transferFunctionInPlace(transfer);
+		this.t = fft.newGrid();
+		w1 = new double[ny * nz];
+		w2 = new double[ny * nz];
+		final int rows = my * mz;
 		r1 = new double[rows];
 		r2 = new double[rows];
 		r3 = new double[rows];
@@ -112,16 +128,15 @@ final class RichardsonLucySolver {
 
 	/** Bytes the solver allocates (the prepared data y included). */
 	static long bytesNeeded(final int[] n, final int[] k, final EdgeMode mode, final DeconvolutionMethod method) {
-		long p = 1, s = 2, m = 1, img = 1;
+		long s = 2, m = 1, img = 1;
 		for (int d = 0; d < 3; d++) {
 			final long pd = mode == EdgeMode.PERIODIC ? n[d] : FastSizes.next(n[d] + k[d] - 1);
-			p *= pd;
 			s *= d == 0 ? pd / 2 + 1 : pd;
 			m *= mode == EdgeMode.NON_CIRCULANT ? n[d] + k[d] - 1 : n[d];
 			img *= n[d];
 		}
 		final int objects = 1 + (mode == EdgeMode.NON_CIRCULANT ? 1 : 0) + (method == DeconvolutionMethod.RL_ACCELERATED ? 3 : 0);
-		return 4 * (p + 2 * s + objects * m + img);
+		return 4 * (2 * s + objects * m + img);
 	}
 
 	int[] gridShape() { return new int[] { px, py, pz }; }
@@ -138,7 +153,7 @@ final class RichardsonLucySolver {
 				final int qy = Math.floorMod(yy - (k[1] - 1) / 2, py);
 				for (int xx = 0; xx < k[0]; xx++) {
 					final int qx = Math.floorMod(xx - (k[0] - 1) / 2, px);
-					dst[qx + px * (qy + py * qz)] += psf.get(xx, yy, z);
+					dst[qx + rs * (qy + py * qz)] += psf.get(xx, yy, z);
 				}
 			}
 		}
@@ -146,21 +161,21 @@ final class RichardsonLucySolver {
 
 	/** 1 / Hᵀ1_window on the object domain, 0 where Hᵀ1 is below {@link EdgeMode#MIN_SENSITIVITY} of its maximum. */
 	private float[] sensitivityInverse() {
-		Parallel.forRange(py * pz, r -> {
-			final int o = r * px;
+		Parallel.forRange(ny * nz, i -> {
+			final int o = (wy + i % ny + py * (wz + i / ny)) * rs;
 			Arrays.fill(t, o, o + px, 0f);
-			if (windowRow(r) >= 0) Arrays.fill(t, o + wx, o + wx + nx, 1f);
+			Arrays.fill(t, o + wx, o + wx + nx, 1f);
 		});
-		fft.convolve(t, transfer, true, spec);
+		fft.convolveInPlace(t, transfer, true, windowRows, objectRows, null);
 		float max = 0;
 		for (int r = 0; r < my * mz; r++) {
-			final int o = gridRowOfObjectRow(r) * px;
+			final int o = gridRowOfObjectRow(r) * rs;
 			for (int i = 0; i < mx; i++) max = Math.max(max, t[o + i]);
 		}
 		final float min = (float) (EdgeMode.MIN_SENSITIVITY * max);
 		final float[] inv = new float[mx * my * mz];
 		Parallel.forRange(my * mz, r -> {
-			final int o = gridRowOfObjectRow(r) * px, c = r * mx;
+			final int o = gridRowOfObjectRow(r) * rs, c = r * mx;
 			for (int i = 0; i < mx; i++) {
 				final float v = t[o + i];
 				inv[c + i] = v >= min ? 1f / v : 0f;
@@ -212,35 +227,27 @@ final class RichardsonLucySolver {
 
 	/** One iteration; {@code cancelCheck} runs between the two convolutions. */
 	Step iterate(final Runnable cancelCheck) {
-		if (method == DeconvolutionMethod.RL_ACCELERATED) predict();
-		fft.convolve(t, transfer, false, spec);
-		final double[] lm = ratio(true);
+		final double[] lm = ratio(true, method == DeconvolutionMethod.RL_ACCELERATED ? predictor() : null);
 		cancelCheck.run();
-		fft.convolve(t, transfer, true, spec);
 		final double[] cs = method == DeconvolutionMethod.RL_TV ? updateTv() : update();
 		return new Step(lm[0], lm[1], cs[0], cs[1]);
 	}
 
 	/** Log-likelihood and Σ Hx of the current estimate (one convolution); leaves t holding a copy of x. */
 	double[] likelihood() {
-		fft.convolve(t, transfer, false, spec);
-		final double[] lm = ratio(false);
+		final double[] lm = ratio(false, null);
 		copyObjectToGrid();
 		return lm;
 	}
 
 	/**
-	 * t ← y / max(t + b, floor) in the window, 0 elsewhere (if {@code divide}); returns {log-likelihood, Σ t}.
+	 * t ← H t (object rows in, window rows out), then per window row t ← y / max(t + b, floor) in the window
+	 * and 0 elsewhere in the row (if {@code divide}); returns {log-likelihood, Σ Hx}. {@code before}, if not
+	 * null, makes each object row of t just before its transform.
 	 */
-	private double[] ratio(final boolean divide) {
-		Parallel.forRange(py * pz, r -> {
-			final int o = r * px, wr = windowRow(r);
-			if (wr < 0) {
-				if (divide) Arrays.fill(t, o, o + px, 0f);
-				r1[r] = 0;
-				r2[r] = 0;
-				return;
-			}
+	private double[] ratio(final boolean divide, final RealFft.RowAction before) {
+		fft.convolveInPlace(t, transfer, false, objectRows, before, windowRows, (r, o) -> {
+			final int wr = windowRow(r);
 			final int q = o + wx, yo = wr * nx;
 			double ll = 0, model = 0;
 			for (int i = 0; i < nx; i++) {
@@ -257,13 +264,16 @@ final class RichardsonLucySolver {
 				Arrays.fill(t, o, q, 0f);
 				Arrays.fill(t, q + nx, o + px, 0f);
 			}
-			r1[r] = ll;
-			r2[r] = model;
+			w1[wr] = ll;
+			w2[wr] = model;
 		});
-		return new double[] { ordered(r1), ordered(r2) };
+		return new double[] { ordered(w1), ordered(w2) };
 	}
 
-	/** x ← x · t / Hᵀ1 (≥ 0), written to x and to t (zero outside the object); returns {change, Σx}. */
+	/**
+	 * t ← Hᵀ t (window rows in, object rows out), then per object row x ← x · t / Hᵀ1 (≥ 0), written to x and
+	 * to t (zero beyond the object in the row); returns {change, Σx}.
+	 */
 	private double[] update() {
 		final boolean acc = method == DeconvolutionMethod.RL_ACCELERATED;
 		if (acc) {
@@ -272,13 +282,8 @@ final class RichardsonLucySolver {
 			gNew = s;
 		}
 		final float[] gn = gNew, go = gOld, ref = acc ? xPrev : null;
-		Parallel.forRange(py * pz, r -> {
-			final int o = r * px, or = objectRow(r);
-			if (or < 0) {
-				Arrays.fill(t, o, o + px, 0f);
-				r1[r] = r2[r] = r3[r] = r4[r] = 0;
-				return;
-			}
+		fft.convolveInPlace(t, transfer, true, windowRows, objectRows, (r, o) -> {
+			final int or = objectRow(r);
 			final int c = or * mx;
 			double change = 0, before = 0, after = 0, dot = 0, norm = 0;
 			for (int i = 0; i < mx; i++) {
@@ -302,12 +307,12 @@ final class RichardsonLucySolver {
 				t[o + i] = v;
 			}
 			Arrays.fill(t, o + mx, o + px, 0f);
-			r1[r] = change;
-			r2[r] = before;
-			r3[r] = after;
+			r1[or] = change;
+			r2[or] = before;
+			r3[or] = after;
 			if (acc) {
-				r4[r] = dot;
-				norm3[r] = norm;
+				r4[or] = dot;
+				norm3[or] = norm;
 			}
 		});
 		if (acc) {
@@ -321,18 +326,14 @@ final class RichardsonLucySolver {
 
 
 	/**
-	 * Biggs–Andrews prediction: x_(k−1) ← x_k, x ← max(x_k + α (x_k − x_(k−1)), 0), t ← x; α = Σ g_(k−1) g_(k−2)
-	 * / Σ g_(k−2)², from the last two RL steps g = RL(prediction) − prediction, and 0 until both exist.
+	 * Biggs–Andrews prediction, row by row as the first convolution reads the rows: x_(k−1) ← x_k,
+	 * x ← max(x_k + α (x_k − x_(k−1)), 0), t ← x; α = Σ g_(k−1) g_(k−2) / Σ g_(k−2)², from the last two RL
+	 * steps g = RL(prediction) − prediction, and 0 until both exist.
 	 */
-	private void predict() {
+	private RealFft.RowAction predictor() {
 		final float a = accelSteps >= 2 ? (float) alpha : 0f;
-		Parallel.forRange(py * pz, r -> {
-			final int o = r * px, or = objectRow(r);
-			if (or < 0) {
-				Arrays.fill(t, o, o + px, 0f);
-				return;
-			}
-			final int c = or * mx;
+		return (r, o) -> {
+			final int c = objectRow(r) * mx;
 			for (int i = 0; i < mx; i++) {
 				final float xk = x[c + i];
 				float v = xk + a * (xk - xPrev[c + i]);
@@ -342,7 +343,7 @@ final class RichardsonLucySolver {
 				t[o + i] = v;
 			}
 			Arrays.fill(t, o + mx, o + px, 0f);
-		});
+		};
 	}
 
 	/**
@@ -354,13 +355,8 @@ final class RichardsonLucySolver {
 	 */
 	private double[] updateTv() {
 		final int plane = mx * my;
-		Parallel.forRange(py * pz, r -> {
-			final int o = r * px, or = objectRow(r);
-			if (or < 0) {
-				Arrays.fill(t, o, o + px, 0f);
-				r1[r] = r2[r] = r3[r] = 0;
-				return;
-			}
+		fft.convolveInPlace(t, transfer, true, windowRows, objectRows, (r, o) -> {
+			final int or = objectRow(r);
 			final int c = or * mx, iy = or % my, iz = or / my;
 			double change = 0, before = 0, after = 0;
 			for (int i = 0; i < mx; i++) {
@@ -385,11 +381,11 @@ final class RichardsonLucySolver {
 				t[o + i] = v;
 			}
 			Arrays.fill(t, o + mx, o + px, 0f);
-			r1[r] = change;
-			r2[r] = before;
-			r3[r] = after;
+			r1[or] = change;
+			r2[or] = before;
+			r3[or] = after;
 		});
-		Parallel.forRange(my * mz, r -> System.arraycopy(t, gridRowOfObjectRow(r) * px, x, r * mx, mx));
+		Parallel.forRange(my * mz, r -> System.arraycopy(t, gridRowOfObjectRow(r) * rs, x, r * mx, mx));
 		final double before = ordered(r2);
 		return new double[] { before > 0 ? ordered(r1) / before : 0, ordered(r3) };
 	}
@@ -403,13 +399,10 @@ final class RichardsonLucySolver {
 		return (float) Math.sqrt(eps * eps + dx * dx + dy * dy + dz * dz);
 	}
 
+	/** t ← x on the object rows (the rest of those rows zero; other rows are never read). */
 	private void copyObjectToGrid() {
-		Parallel.forRange(py * pz, r -> {
-			final int o = r * px, or = objectRow(r);
-			if (or < 0) {
-				Arrays.fill(t, o, o + px, 0f);
-				return;
-			}
+		Parallel.forRange(my * mz, or -> {
+			final int o = gridRowOfObjectRow(or) * rs;
 			System.arraycopy(x, or * mx, t, o, mx);
 			Arrays.fill(t, o + mx, o + px, 0f);
 		});

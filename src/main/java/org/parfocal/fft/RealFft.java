@@ -1,5 +1,7 @@
 package org.parfocal.fft;
 
+import java.util.Arrays;
+
 import net.imglib2.parallel.Parallelization;
 import net.imglib2.parallel.TaskExecutor;
 
@@ -19,14 +21,22 @@ import org.parfocal.core.Parallel;
  * {@code 2 * (kx + h * (ky + ny * kz))}. Frequencies kx ≥ h follow from Hermitian symmetry. A spectrum array
  * has {@link #spectrumLength()} floats.
  * <p>
- * <b>Threads.</b> Work is split over lines with the {@link TaskExecutor} of the calling thread's
- * {@link Parallelization} context. Every line is transformed by the same sequence of operations whatever the
+ * <b>Threads.</b> Work is split over lines (in 3D, over z planes for the x and y transforms, which are done
+ * one plane after the other so that a plane is fetched from memory once for both) with the
+ * {@link TaskExecutor} of the calling thread's {@link Parallelization} context. Every line is transformed by the same sequence of operations whatever the
  * number of threads, so results are bitwise identical for 1 and N threads. Each worker thread keeps its own
  * JTransforms plans and line buffers (plans hold state), and JTransforms' global thread setting is left
  * alone: lines shorter than its 1D threshold (8192) are transformed single-threaded inside.
  * <p>
- * Instances are thread-safe: any number of threads may call {@link #forward}, {@link #inverse} and
- * {@link #convolve} at once on different arrays.
+ * <b>In-place layout and pruning.</b> {@link #convolveInPlace}, {@link #forwardInPlace} and
+ * {@link #inverseInPlace} work on one array whose rows are {@link #rowStride()} = 2·h floats long, so that a
+ * row holds either nx real values or its h complex values: the padded real array and the spectrum are the
+ * same array (one volume less than {@link #convolve} with its scratch). They take boxes of rows ({@link Rows}):
+ * transforms of rows known to be zero on input, and of rows nobody reads on output, are skipped. Every line
+ * that is computed goes through the same operations as in the plain path, so the results are the same.
+ * <p>
+ * Instances are thread-safe: any number of threads may call {@link #forward}, {@link #inverse},
+ * {@link #convolve} and the in-place methods at once on different arrays.
  */
 public final class RealFft {
 
@@ -35,6 +45,7 @@ public final class RealFft {
 
 	private final int nx, ny, nz, h;
 	private final ThreadLocal<Lines> lines;
+	private final Rows all;
 
 	/** Plan for a real array of nx × ny × nz (use 1 for absent dimensions). */
 	public RealFft(final int nx, final int ny, final int nz) {
@@ -47,6 +58,7 @@ public final class RealFft {
 		this.nz = nz;
 		this.h = nx / 2 + 1;
 		this.lines = ThreadLocal.withInitial(Lines::new);
+		this.all = new Rows(0, ny, 0, nz);
 	}
 
 	public int nx() { return nx; }
@@ -67,9 +79,7 @@ public final class RealFft {
 	/** Forward transform of {@code real} (unchanged) into {@code spectrum} (overwritten). */
 	public void forward(final float[] real, final float[] spectrum) {
 		checkLengths(real, spectrum);
-		forwardX(real, spectrum);
-		if (ny > 1) passAxis(spectrum, 1, true, false, null, false);
-		if (nz > 1) passAxis(spectrum, 2, true, false, null, false);
+		forwardRows(real, nx, spectrum, all);
 	}
 
 	/**
@@ -78,9 +88,7 @@ public final class RealFft {
 	 */
 	public void inverse(final float[] spectrum, final float[] real) {
 		checkLengths(real, spectrum);
-		if (nz > 1) passAxis(spectrum, 2, false, true, null, false);
-		if (ny > 1) passAxis(spectrum, 1, false, true, null, false);
-		inverseX(spectrum, real);
+		inverseRows(spectrum, real, nx, all);
 	}
 
 	/**
@@ -95,19 +103,8 @@ public final class RealFft {
 	 */
 	public void convolve(final float[] real, final float[] transfer, final boolean conjugate, final float[] work) {
 		checkLengths(real, work);
-		if (transfer.length != spectrumLength())
-			throw new IllegalArgumentException("Transfer function has " + transfer.length + " floats, expected " + spectrumLength());
-		forwardX(real, work);
-		if (nz > 1) {
-			if (ny > 1) passAxis(work, 1, true, false, null, false);
-			passAxis(work, 2, true, false, transfer, conjugate);
-			if (ny > 1) passAxis(work, 1, false, false, null, false);
-		} else if (ny > 1) {
-			passAxis(work, 1, true, false, transfer, conjugate);
-		} else {
-			multiply(work, 0, transfer, 0, h, conjugate);
-		}
-		inverseX(work, real);
+		checkTransfer(transfer);
+		convolveRows(real, nx, work, transfer, conjugate, all, null, all, null);
 	}
 
 	/**
@@ -118,9 +115,119 @@ public final class RealFft {
 	public float[] transferFunction(final float[] kernel) {
 		final float[] t = newSpectrum();
 		forward(kernel, t);
-		final float s = (float) (1.0 / ((double) ny * nz));
-		for (int i = 0; i < t.length; i++) t[i] *= s;
+		scaleTransfer(t);
 		return t;
+	}
+
+	// -- in-place layout and pruned transforms --
+
+	/**
+	 * Floats per row of the in-place layout, {@code 2 * (nx/2 + 1)}: a row holds nx real values followed by
+	 * one or two spare floats, so that the same array can hold the row's half spectrum (the layout of FFTW's
+	 * in-place real transforms). Row r = y + ny·z starts at {@code r * rowStride()}.
+	 */
+	public int rowStride() { return 2 * h; }
+
+	/** Floats of an in-place grid: {@code rowStride() * ny * nz}, the same as {@link #spectrumLength()}. */
+	public int gridLength() { return spectrumLength(); }
+
+	/** A new zeroed in-place grid. */
+	public float[] newGrid() { return new float[gridLength()]; }
+
+	/** Index of real voxel (x, y, z) in an in-place grid. */
+	public int gridIndex(final int x, final int y, final int z) { return x + 2 * h * (y + ny * z); }
+
+	/** Every row of the grid. */
+	public Rows allRows() { return all; }
+
+	/**
+	 * A box of rows, y in [y0, y1) and z in [z0, z1), non-empty and inside the grid.
+	 *
+	 * @throws IllegalArgumentException if the box is empty or leaves the grid
+	 */
+	public Rows rows(final int y0, final int y1, final int z0, final int z1) {
+		if (y0 < 0 || y1 > ny || y0 >= y1 || z0 < 0 || z1 > nz || z0 >= z1)
+			throw new IllegalArgumentException("Row box y [" + y0 + ", " + y1 + ") z [" + z0 + ", " + z1 + ") is empty or outside the " + ny + " x " + nz
+					+ " rows of the transform");
+		return new Rows(y0, y1, z0, z1);
+	}
+
+	/**
+	 * Forward transform of an in-place grid: the real values of the rows in {@code input} become the half
+	 * spectrum of the whole grid. Rows outside {@code input} are read as zero whatever they hold (their
+	 * transforms are skipped, the "pruned" transform), and every other row's transform is computed exactly as
+	 * by {@link #forward}, so the result equals {@code forward} of the grid with those rows zeroed.
+	 */
+	public void forwardInPlace(final float[] grid, final Rows input) {
+		checkGrid(grid);
+		forwardRows(grid, 2 * h, grid, input);
+	}
+
+	/**
+	 * Inverse of {@link #forwardInPlace}, divided by nx·ny·nz: only the rows in {@code output} receive real
+	 * values (transforms that feed only other rows are skipped); other rows are left with unspecified values.
+	 */
+	public void inverseInPlace(final float[] grid, final Rows output) {
+		checkGrid(grid);
+		inverseRows(grid, grid, 2 * h, output);
+	}
+
+	/**
+	 * Transfer function for {@link #convolveInPlace} from a kernel given in an in-place grid (origin at voxel
+	 * 0, wrapping around), computed in place: the grid becomes the transfer function, identical to
+	 * {@link #transferFunction} of the same kernel, without a second array.
+	 */
+	public void transferFunctionInPlace(final float[] grid) {
+		forwardInPlace(grid, all);
+		scaleTransfer(grid);
+	}
+
+	/**
+	 * {@link #convolve} on an in-place grid, pruned to the rows that matter: the real rows in {@code input} are
+	 * the data (rows outside it are read as zero, whatever they hold) and only the rows in {@code output}
+	 * receive the result (other rows are left with unspecified values). No scratch array is needed. For the
+	 * rows in {@code output} the result is the same as {@code convolve} of the grid with the rows outside
+	 * {@code input} zeroed: each line transform is computed by the same operations, only transforms of
+	 * all-zero lines and of lines no output row depends on are skipped.
+	 * <p>
+	 * {@code after}, if not null, is called once for every output row as soon as its real values are ready,
+	 * on the thread that computed them (while the row is in cache): a place for per-row work on the result.
+	 * It must touch only that row of the grid (and its own data).
+	 */
+	public void convolveInPlace(final float[] grid, final float[] transfer, final boolean conjugate, final Rows input, final Rows output,
+			final RowAction after) {
+		convolveInPlace(grid, transfer, conjugate, input, null, output, after);
+	}
+
+	/**
+	 * {@link #convolveInPlace(float[], float[], boolean, Rows, Rows, RowAction)} with, in addition,
+	 * {@code before} (if not null) called once for every input row just before its forward transform, on the
+	 * thread that transforms it: a place to produce the row (it must write only that row of the grid).
+	 */
+	public void convolveInPlace(final float[] grid, final float[] transfer, final boolean conjugate, final Rows input, final RowAction before,
+			final Rows output, final RowAction after) {
+		checkGrid(grid);
+		checkTransfer(transfer);
+		convolveRows(grid, 2 * h, grid, transfer, conjugate, input, before, output, after);
+	}
+
+	/** Per-row work on the result of {@link #convolveInPlace}. */
+	@FunctionalInterface
+	public interface RowAction {
+		/** Row {@code row} = y + ny·z, whose real values start at {@code offset} of the grid. */
+		void row(int row, int offset);
+	}
+
+	/** A box of grid rows, y in [y0, y1) and z in [z0, z1); made by {@link #rows} or {@link #allRows}. */
+	public record Rows(int y0, int y1, int z0, int z1) {
+		/** Number of rows in the box. */
+		public int count() { return (y1 - y0) * (z1 - z0); }
+
+		/** Row index y + ny·z of the i-th row of the box (y fastest). */
+		int row(final int i, final int ny) {
+			final int w = y1 - y0;
+			return y0 + i % w + ny * (z0 + i / w);
+		}
 	}
 
 	// -- passes --
@@ -132,79 +239,186 @@ public final class RealFft {
 			throw new IllegalArgumentException("Spectrum array has " + spectrum.length + " floats, expected " + spectrumLength());
 	}
 
-	/** Real transforms of every x row, unpacked from JTransforms' packed layout into h complex values. */
-	private void forwardX(final float[] real, final float[] spec) {
-		final int rows = ny * nz, stride = 2 * h;
-		Parallel.forRange(rows, r -> {
-			final int o = r * stride;
-			System.arraycopy(real, r * nx, spec, o, nx);
-			if (nx == 1) {
-				spec[o + 1] = 0;
-				return;
-			}
-			lines.get().x.realForward(spec, o);
-			// JTransforms packs the last real-valued (even nx) or the last imaginary part (odd nx) into a[1].
-			final float packed = spec[o + 1];
-			spec[o + 1] = 0;
-			if ((nx & 1) == 0) {
-				spec[o + nx] = packed;
-				spec[o + nx + 1] = 0;
-			} else {
-				spec[o + nx] = packed;
-			}
-		});
+	private void checkGrid(final float[] grid) {
+		if (grid.length != gridLength()) throw new IllegalArgumentException("Grid array has " + grid.length + " floats, expected " + gridLength());
 	}
 
-	private void inverseX(final float[] spec, final float[] real) {
-		final int rows = ny * nz, stride = 2 * h;
-		Parallel.forRange(rows, r -> {
-			final int o = r * stride;
-			if (nx == 1) {
-				real[r] = spec[o];
-				return;
-			}
-			spec[o + 1] = spec[o + nx];
-			lines.get().x.realInverse(spec, o, true);
-			System.arraycopy(spec, o, real, r * nx, nx);
-		});
+	private void checkTransfer(final float[] transfer) {
+		if (transfer.length != spectrumLength())
+			throw new IllegalArgumentException("Transfer function has " + transfer.length + " floats, expected " + spectrumLength());
+	}
+
+	private void checkRows(final Rows b) {
+		rows(b.y0, b.y1, b.z0, b.z1);
+	}
+
+	private void scaleTransfer(final float[] t) {
+		final float s = (float) (1.0 / ((double) ny * nz));
+		for (int i = 0; i < t.length; i++) t[i] *= s;
+	}
+
+	/** Forward transform of the rows in {@code in} of src (row stride srcStride) into spec; other rows read as 0. */
+	private void forwardRows(final float[] src, final int srcStride, final float[] spec, final Rows in) {
+		checkRows(in);
+		if (nz > 1 && ny > 1) {
+			forwardPlanes(src, srcStride, spec, in, null);
+		} else {
+			forwardX(src, srcStride, spec, in, null);
+			if (ny > 1) passAxis(spec, 1, true, false, null, false, in.z0, in.z1, in.y0, in.y1, 0, ny);
+		}
+		if (nz > 1) passAxis(spec, 2, true, false, null, false, 0, ny, in.z0, in.z1, 0, nz);
+	}
+
+	/** Inverse transform of spec (destroyed) into the rows in {@code out} of dst (row stride dstStride). */
+	private void inverseRows(final float[] spec, final float[] dst, final int dstStride, final Rows out) {
+		checkRows(out);
+		if (nz > 1) passAxis(spec, 2, false, true, null, false, 0, ny, 0, nz, out.z0, out.z1);
+		if (nz > 1 && ny > 1) {
+			inversePlanes(spec, dst, dstStride, out, true, null);
+		} else {
+			if (ny > 1) passAxis(spec, 1, false, true, null, false, out.z0, out.z1, 0, ny, out.y0, out.y1);
+			inverseX(spec, dst, dstStride, out, null);
+		}
+	}
+
+	/** Pruned fused convolution: rows in of src → spec → rows out of src (src may be spec). */
+	private void convolveRows(final float[] src, final int srcStride, final float[] spec, final float[] t, final boolean conj, final Rows in,
+			final RowAction before, final Rows out, final RowAction after) {
+		checkRows(in);
+		checkRows(out);
+		if (nz > 1 && ny > 1) {
+			forwardPlanes(src, srcStride, spec, in, before);
+			passAxis(spec, 2, true, false, t, conj, 0, ny, in.z0, in.z1, out.z0, out.z1);
+			inversePlanes(spec, src, srcStride, out, false, after);
+			return;
+		}
+		forwardX(src, srcStride, spec, in, before);
+		if (nz > 1) {
+			passAxis(spec, 2, true, false, t, conj, 0, 1, in.z0, in.z1, out.z0, out.z1);
+		} else if (ny > 1) {
+			passAxis(spec, 1, true, false, t, conj, 0, 1, in.y0, in.y1, out.y0, out.y1);
+		} else {
+			multiply(spec, 0, t, 0, h, conj);
+		}
+		inverseX(spec, src, srcStride, out, after);
 	}
 
 	/**
-	 * Complex transforms along y (axis 1) or z (axis 2) of every line of the half spectrum, BLOCK adjacent
-	 * columns at a time. Forward, inverse, or — with a transfer function t — forward, product, inverse.
+	 * 3D: x and y transforms of one z plane after the other, so that the plane (nx·ny floats, well within a
+	 * core's cache for the sizes used) is read from memory once for both; planes are spread over the threads.
 	 */
-	private void passAxis(final float[] spec, final int axis, final boolean forward, final boolean scale, final float[] t,
-			final boolean conj) {
-		final int rowStride = 2 * h, planeStride = rowStride * ny;
-		final int n = axis == 1 ? ny : nz, stride = axis == 1 ? rowStride : planeStride;
-		final int outer = axis == 1 ? nz : ny, outerStride = axis == 1 ? planeStride : rowStride;
+	private void forwardPlanes(final float[] src, final int srcStride, final float[] spec, final Rows in, final RowAction before) {
 		final int blocks = (h + BLOCK - 1) / BLOCK;
-		Parallel.forRange(outer * blocks, task -> {
-			final int kx0 = (task % blocks) * BLOCK, nb = Math.min(BLOCK, h - kx0);
-			final int base = (task / blocks) * outerStride + 2 * kx0;
-			final Lines l = lines.get();
-			final FloatFFT_1D plan = axis == 1 ? l.y : l.z;
-			final float[][] buf = axis == 1 ? l.yBuf : l.zBuf;
-			gather(spec, base, stride, n, nb, buf);
-			for (int b = 0; b < nb; b++) {
-				if (forward || t != null) plan.complexForward(buf[b]);
-				if (t != null) multiplyStrided(buf[b], t, base + 2 * b, stride, n, conj);
-				if (!forward || t != null) plan.complexInverse(buf[b], scale);
-			}
-			scatter(buf, spec, base, stride, n, nb);
+		Parallel.forRange(in.z1 - in.z0, zi -> {
+			final int z = in.z0 + zi;
+			for (int y = in.y0; y < in.y1; y++) forwardRow(src, srcStride, spec, y + ny * z, before);
+			for (int b = 0; b < blocks; b++) lineBlock(spec, 1, true, false, null, false, z, b, in.y0, in.y1, 0, ny);
 		});
 	}
 
-	private static void gather(final float[] spec, final int base, final int stride, final int n, final int nb, final float[][] buf) {
-		for (int i = 0, o = base; i < n; i++, o += stride)
+	/** 3D: inverse y then x transforms of one output plane after the other (see {@link #forwardPlanes}). */
+	private void inversePlanes(final float[] spec, final float[] dst, final int dstStride, final Rows out, final boolean scale,
+			final RowAction after) {
+		final int blocks = (h + BLOCK - 1) / BLOCK;
+		Parallel.forRange(out.z1 - out.z0, zi -> {
+			final int z = out.z0 + zi;
+			for (int b = 0; b < blocks; b++) lineBlock(spec, 1, false, scale, null, false, z, b, 0, ny, out.y0, out.y1);
+			for (int y = out.y0; y < out.y1; y++) inverseRow(spec, dst, dstStride, y + ny * z, after);
+		});
+	}
+
+	/** Real transforms of the x rows in {@code in}. */
+	private void forwardX(final float[] src, final int srcStride, final float[] spec, final Rows in, final RowAction before) {
+		Parallel.forRange(in.count(), i -> forwardRow(src, srcStride, spec, in.row(i, ny), before));
+	}
+
+	/** Real transform of row r, unpacked from JTransforms' packed layout into h complex values. */
+	private void forwardRow(final float[] src, final int srcStride, final float[] spec, final int r, final RowAction before) {
+		final int stride = 2 * h, o = r * stride;
+		if (before != null) before.row(r, r * srcStride);
+		if (src != spec || srcStride != stride) System.arraycopy(src, r * srcStride, spec, o, nx);
+		if (nx == 1) {
+			spec[o + 1] = 0;
+			return;
+		}
+		lines.get().x.realForward(spec, o);
+		// JTransforms packs the last real-valued (even nx) or the last imaginary part (odd nx) into a[1].
+		final float packed = spec[o + 1];
+		spec[o + 1] = 0;
+		if ((nx & 1) == 0) {
+			spec[o + nx] = packed;
+			spec[o + nx + 1] = 0;
+		} else {
+			spec[o + nx] = packed;
+		}
+	}
+
+	private void inverseX(final float[] spec, final float[] dst, final int dstStride, final Rows out, final RowAction after) {
+		Parallel.forRange(out.count(), i -> inverseRow(spec, dst, dstStride, out.row(i, ny), after));
+	}
+
+	private void inverseRow(final float[] spec, final float[] dst, final int dstStride, final int r, final RowAction after) {
+		final int stride = 2 * h, o = r * stride;
+		if (nx == 1) {
+			dst[r * dstStride] = spec[o];
+		} else {
+			spec[o + 1] = spec[o + nx];
+			lines.get().x.realInverse(spec, o, true);
+			if (dst != spec || dstStride != stride) System.arraycopy(spec, o, dst, r * dstStride, nx);
+		}
+		if (after != null) after.row(r, r * dstStride);
+	}
+
+	/**
+	 * Complex transforms along y (axis 1) or z (axis 2) of the lines of the half spectrum, BLOCK adjacent
+	 * columns at a time. Forward, inverse, or — with a transfer function t — forward, product, inverse.
+	 * Lines are taken for the outer index (z for axis 1, y for axis 2) in [o0, o1); line entries in [r0, r1)
+	 * are read and the others taken as zero; entries in [w0, w1) are written back.
+	 */
+	private void passAxis(final float[] spec, final int axis, final boolean forward, final boolean scale, final float[] t, final boolean conj,
+			final int o0, final int o1, final int r0, final int r1, final int w0, final int w1) {
+		final int blocks = (h + BLOCK - 1) / BLOCK;
+		Parallel.forRange((o1 - o0) * blocks, task -> lineBlock(spec, axis, forward, scale, t, conj, o0 + task / blocks, task % blocks, r0, r1, w0, w1));
+	}
+
+	/** The lines of block {@code block} (BLOCK columns from kx = BLOCK·block) at outer index {@code outer}; see {@link #passAxis}. */
+	private void lineBlock(final float[] spec, final int axis, final boolean forward, final boolean scale, final float[] t, final boolean conj,
+			final int outer, final int block, final int r0, final int r1, final int w0, final int w1) {
+		final int rowStride = 2 * h, planeStride = rowStride * ny;
+		final int n = axis == 1 ? ny : nz, stride = axis == 1 ? rowStride : planeStride;
+		final int outerStride = axis == 1 ? planeStride : rowStride;
+		final int kx0 = block * BLOCK, nb = Math.min(BLOCK, h - kx0);
+		final int base = outer * outerStride + 2 * kx0;
+		final Lines l = lines.get();
+		final FloatFFT_1D plan = axis == 1 ? l.y : l.z;
+		final float[][] buf = axis == 1 ? l.yBuf : l.zBuf;
+		gather(spec, base, stride, n, nb, buf, r0, r1);
+		for (int b = 0; b < nb; b++) {
+			if (forward || t != null) plan.complexForward(buf[b]);
+			if (t != null) multiplyStrided(buf[b], t, base + 2 * b, stride, n, conj);
+			if (!forward || t != null) plan.complexInverse(buf[b], scale);
+		}
+		scatter(buf, spec, base, stride, nb, w0, w1);
+	}
+
+	/** Lines of buf ← entries [r0, r1) of nb adjacent columns, zero elsewhere. */
+	private static void gather(final float[] spec, final int base, final int stride, final int n, final int nb, final float[][] buf, final int r0,
+			final int r1) {
+		if (r0 > 0 || r1 < n)
+			for (int b = 0; b < nb; b++) {
+				Arrays.fill(buf[b], 0, 2 * r0, 0f);
+				Arrays.fill(buf[b], 2 * r1, 2 * n, 0f);
+			}
+		for (int i = r0, o = base + r0 * stride; i < r1; i++, o += stride)
 			for (int b = 0; b < nb; b++) {
 				buf[b][2 * i] = spec[o + 2 * b];
 				buf[b][2 * i + 1] = spec[o + 2 * b + 1];
 			}
 	}
 
-	private static void scatter(final float[][] buf, final float[] spec, final int base, final int stride, final int n, final int nb) {
-		for (int i = 0, o = base; i < n; i++, o += stride)
+	/** Entries [w0, w1) of nb adjacent columns ← lines of buf. */
+	private static void scatter(final float[][] buf, final float[] spec, final int base, final int stride, final int nb, final int w0, final int w1) {
+		for (int i = w0, o = base + w0 * stride; i < w1; i++, o += stride)
 			for (int b = 0; b < nb; b++) {
 				spec[o + 2 * b] = buf[b][2 * i];
 				spec[o + 2 * b + 1] = buf[b][2 * i + 1];

@@ -3,6 +3,7 @@ package org.parfocal.deconv;
 import java.lang.management.ManagementFactory;
 import java.lang.management.MemoryPoolMXBean;
 import java.lang.management.MemoryType;
+import java.lang.management.ThreadMXBean;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
@@ -23,16 +24,18 @@ import org.parfocal.fft.RealFft;
  * <ol>
  * <li>seconds per Richardson–Lucy iteration (non-circulant edges) on 64×256×256 and 64×512×512 stacks with
  * a 33×65×65 PSF, with 1 and 2 threads, and the speed-up;</li>
- * <li>the bare FFT lower bound: 2 forward + 2 inverse real FFTs ({@link RealFft}) of the padded size, and
- * the ratio of an iteration to it;</li>
+ * <li>the bare FFT lower bound: 2 forward + 2 inverse real FFTs ({@link RealFft}) of the padded size, full
+ * (not pruned), the faster of the out-of-place ({@code forward}/{@code inverse}) and in-place paths, and the
+ * ratio of an iteration to it (below 1 is possible: an iteration prunes transforms of rows known to be zero
+ * or not needed);</li>
  * <li>peak heap during the run against the padded volume in float (JMX pool peaks, an upper bound that
  * includes uncollected garbage) and the solver's own accounting;</li>
  * <li>time-to-quality on 64×256×256: wall time of plain RL for 50 iterations and of accelerated RL until its
  * log-likelihood reaches plain RL's after 50.</li>
  * </ol>
  * Run with a large heap, e.g. {@code java -Xmx8g -cp target/classes:target/test-classes:<deps>
- * org.parfocal.deconv.DeconvolutionBenchmark}. Per-iteration times are medians of the intervals between
- * successive iterations (setup excluded).
+ * org.parfocal.deconv.DeconvolutionBenchmark [256] [512] [quality]} (no argument: all three). Per-iteration
+ * times are medians of the intervals between successive iterations (setup excluded).
  */
 public final class DeconvolutionBenchmark {
 
@@ -41,11 +44,14 @@ public final class DeconvolutionBenchmark {
 	public static void main(final String[] args) {
 		System.out.printf(Locale.ROOT, "Parfocal deconvolution benchmark: Java %s, %d cores, max heap %s%n", System.getProperty("java.version"),
 				Runtime.getRuntime().availableProcessors(), org.parfocal.core.MemoryBudget.format(Runtime.getRuntime().maxMemory()));
+		final List<String> parts = args.length == 0 ? List.of("256", "512", "quality") : List.of(args);
 		final Volume psf = Synthetic.gaussianPsf(PSF[0], PSF[1], PSF[2], 2.0, 2.0, 4.0);
 		for (final int[] n : new int[][] { { 256, 256, 64 }, { 512, 512, 64 } }) {
+			final boolean quality = n[0] == 256 && parts.contains("quality");
+			if (!parts.contains(Integer.toString(n[0])) && !quality) continue;
 			final Volume image = recording(n, psf);
-			perIteration(image, psf);
-			if (n[0] == 256) timeToQuality(image, psf);
+			if (parts.contains(Integer.toString(n[0]))) perIteration(image, psf);
+			if (quality) timeToQuality(image, psf);
 		}
 	}
 
@@ -87,31 +93,61 @@ public final class DeconvolutionBenchmark {
 				(peakHeap() - base) / (4.0 * padded));
 	}
 
-	/** Median interval between successive iteration reports. */
+	/**
+	 * Median interval between successive iteration reports. With one thread all work runs on the calling
+	 * thread, so its CPU time per iteration is printed too: a figure that a busy shared machine disturbs far
+	 * less than wall time.
+	 */
 	private static double secondsPerIteration(final Volume image, final Volume psf, final int iterations) {
-		final List<Long> stamps = new ArrayList<>();
-		Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, iterations), null, Monitor.NONE, (r, v) -> stamps.add(System.nanoTime()));
-		final double[] d = new double[stamps.size() - 1];
-		for (int i = 1; i < stamps.size(); i++) d[i - 1] = (stamps.get(i) - stamps.get(i - 1)) / 1e9;
+		final List<Long> stamps = new ArrayList<>(), cpu = new ArrayList<>();
+		final ThreadMXBean tb = ManagementFactory.getThreadMXBean();
+		Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, iterations), null, Monitor.NONE, (r, v) -> {
+			stamps.add(System.nanoTime());
+			cpu.add(tb.getCurrentThreadCpuTime());
+		});
+		final double[] d = new double[stamps.size() - 1], c = new double[stamps.size() - 1];
+		for (int i = 1; i < stamps.size(); i++) {
+			d[i - 1] = (stamps.get(i) - stamps.get(i - 1)) / 1e9;
+			c[i - 1] = (cpu.get(i) - cpu.get(i - 1)) / 1e9;
+		}
+		if (Parallelization.getTaskExecutor().getParallelism() == 1)
+			System.out.printf(Locale.ROOT, "    1 thread: RL iteration CPU time %.3f s (wall %.3f s)%n", median(c), median(d));
 		return median(d);
 	}
 
-	/** Median time of 2 forward + 2 inverse real FFTs of the padded shape. */
+	/**
+	 * Time of 2 forward + 2 inverse real FFTs of the padded shape (all rows): the faster of the medians of the
+	 * out-of-place path (separate real and spectrum arrays) and of the in-place path (one grid).
+	 */
 	private static double bareFft(final int[] p) {
 		final RealFft f = new RealFft(p[0], p[1], p[2]);
-		final float[] real = new float[f.realLength()], spec = f.newSpectrum();
+		final float[] real = new float[f.realLength()], spec = f.newSpectrum(), grid = f.newGrid();
 		final Random r = new Random(3);
 		for (int i = 0; i < real.length; i++) real[i] = r.nextFloat();
-		final double[] t = new double[4];
-		for (int rep = 0; rep < t.length; rep++) {
-			final long s = System.nanoTime();
+		for (int i = 0; i < grid.length; i++) grid[i] = r.nextFloat();
+		final double[] t = new double[5], u = new double[5], cpu = new double[5];
+		final ThreadMXBean tb = ManagementFactory.getThreadMXBean();
+		for (int rep = 0; rep < t.length; rep++) { // interleaved, so drifts of the machine hit both alike
+			final long c0 = tb.getCurrentThreadCpuTime();
+			long s = System.nanoTime();
 			for (int k = 0; k < 2; k++) {
 				f.forward(real, spec);
 				f.inverse(spec, real);
 			}
 			t[rep] = (System.nanoTime() - s) / 1e9;
+			s = System.nanoTime();
+			for (int k = 0; k < 2; k++) {
+				f.forwardInPlace(grid, f.allRows());
+				f.inverseInPlace(grid, f.allRows());
+			}
+			u[rep] = (System.nanoTime() - s) / 1e9;
+			cpu[rep] = (tb.getCurrentThreadCpuTime() - c0) / 2e9; // both paths: the mean of the two
 		}
-		return median(Arrays.copyOfRange(t, 1, t.length)); // first is warm-up
+		if (Parallelization.getTaskExecutor().getParallelism() == 1)
+			System.out.printf(Locale.ROOT, "    1 thread: bare FFT CPU time %.3f s (mean of both paths)%n", median(Arrays.copyOfRange(cpu, 1, cpu.length)));
+		final double outOfPlace = median(Arrays.copyOfRange(t, 1, t.length)), inPlace = median(Arrays.copyOfRange(u, 1, u.length)); // first: warm-up
+		System.out.printf(Locale.ROOT, "    bare FFT: out-of-place %.3f s, in-place %.3f s%n", outOfPlace, inPlace);
+		return Math.min(outOfPlace, inPlace);
 	}
 
 	private static void timeToQuality(final Volume image, final Volume psf) {
