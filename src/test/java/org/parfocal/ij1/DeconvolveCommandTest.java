@@ -60,16 +60,12 @@ class DeconvolveCommandTest {
 	}
 
 	static void open(final ImagePlus... imps) {
-		Interpreter.batchMode = true;
-		for (final ImagePlus imp : imps) Interpreter.addBatchModeImage(imp);
+		ImageJHarness.open(imps);
 	}
 
 	@AfterEach
 	void closeAll() {
-		for (final int id : Interpreter.getBatchModeImageIDs()) {
-			final ImagePlus imp = ij.WindowManager.getImage(id);
-			if (imp != null) Interpreter.removeBatchModeImage(imp);
-		}
+		ImageJHarness.closeAll();
 	}
 
 	static final String OPTIONS = "image=cell.tif psf=psf.tif method=richardson-lucy-tv iterations=12 regularization=0.002 stop=fixed "

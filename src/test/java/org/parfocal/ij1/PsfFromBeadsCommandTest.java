@@ -56,16 +56,12 @@ class PsfFromBeadsCommandTest {
 	}
 
 	static void open(final ImagePlus... imps) {
-		Interpreter.batchMode = true;
-		for (final ImagePlus imp : imps) Interpreter.addBatchModeImage(imp);
+		ImageJHarness.open(imps);
 	}
 
 	@AfterEach
 	void closeAll() {
-		for (final int id : Interpreter.getBatchModeImageIDs()) {
-			final ImagePlus imp = ij.WindowManager.getImage(id);
-			if (imp != null) Interpreter.removeBatchModeImage(imp);
-		}
+		ImageJHarness.closeAll();
 	}
 
 	@Test

@@ -35,10 +35,7 @@ class PsfFromOpticsCommandTest {
 
 	@AfterEach
 	void closeAll() {
-		for (final int id : Interpreter.getBatchModeImageIDs()) {
-			final ImagePlus imp = ij.WindowManager.getImage(id);
-			if (imp != null) Interpreter.removeBatchModeImage(imp);
-		}
+		ImageJHarness.closeAll();
 	}
 
 	@Test

@@ -28,10 +28,7 @@ class WriteReportCommandTest {
 
 	@AfterEach
 	void closeAll() {
-		for (final int id : Interpreter.getBatchModeImageIDs()) {
-			final ImagePlus imp = ij.WindowManager.getImage(id);
-			if (imp != null) Interpreter.removeBatchModeImage(imp);
-		}
+		ImageJHarness.closeAll();
 	}
 
 	@Test

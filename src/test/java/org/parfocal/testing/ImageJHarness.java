@@ -418,6 +418,23 @@ public final class ImageJHarness {
 		}
 	}
 
+	/**
+	 * Makes images "open" the way a macro in batch mode sees them, so commands find them by title
+	 * (choices such as {@code image=} or {@code psf=}).
+	 */
+	public static void open(final ImagePlus... imps) {
+		Interpreter.batchMode = true;
+		for (final ImagePlus imp : imps) Interpreter.addBatchModeImage(imp);
+	}
+
+	/** Forgets every image opened with {@link #open} or created by a command (call it after each test). */
+	public static void closeAll() {
+		for (final int id : Interpreter.getBatchModeImageIDs()) {
+			final ImagePlus imp = WindowManager.getImage(id);
+			if (imp != null) Interpreter.removeBatchModeImage(imp);
+		}
+	}
+
 	/** Menu label to class name for every command ImageJ knows, after initialising ImageJ. */
 	public static java.util.Map<String, String> installedCommands() {
 		synchronized (LOCK) {
