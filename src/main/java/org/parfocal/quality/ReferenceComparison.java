@@ -7,6 +7,7 @@ import java.util.Locale;
 import java.util.SplittableRandom;
 
 import org.parfocal.core.Monitor;
+import org.parfocal.core.Parallel;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 
@@ -252,18 +253,23 @@ public final class ReferenceComparison {
 			base[0] = in.patches.distance(refs.patches, o.power());
 			for (int k = 0; k < in.marginals.length; k++) base[1 + k] = in.marginals[k].distance(refs.marginals[k], 1);
 		}
-		// Bootstrap: resample both samples with replacement (multiplicities), sequentially seeded.
+		// Bootstrap: resample both samples with replacement (multiplicities). Each resample has its own generator,
+		// seeded in order from one stream, so the resamples run in parallel and the result does not depend on the
+		// number of threads.
 		final double[][] boot = new double[rows][o.bootstrap()];
 		final SplittableRandom rnd = new SplittableRandom(mix(o.seed(), 6));
-		for (int b = 0; b < o.bootstrap(); b++) {
+		final long[] seeds = new long[o.bootstrap()];
+		for (int b = 0; b < seeds.length; b++) seeds[b] = rnd.nextLong();
+		Parallel.forRange(o.bootstrap(), b -> {
 			monitor.checkCancelled();
-			final int[] cr = counts(rnd, out.patches.count()), cf = counts(rnd, refs.patches.count());
+			final SplittableRandom r = new SplittableRandom(seeds[b]);
+			final int[] cr = counts(r, out.patches.count()), cf = counts(r, refs.patches.count());
 			boot[0][b] = out.patches.distance(refs.patches, cr, cf, o.power());
 			for (int k = 0; k < out.marginals.length; k++) {
-				final int[] mr = counts(rnd, out.marginals[k].count()), mf = counts(rnd, refs.marginals[k].count());
+				final int[] mr = counts(r, out.marginals[k].count()), mf = counts(r, refs.marginals[k].count());
 				boot[1 + k][b] = out.marginals[k].distance(refs.marginals[k], mr, mf, 1);
 			}
-		}
+		});
 		final List<Row> table = new ArrayList<>(rows);
 		for (int k = 0; k < rows; k++) {
 			double lo = Double.NaN, hi = Double.NaN;
