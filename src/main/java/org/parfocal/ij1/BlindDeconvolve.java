@@ -29,6 +29,10 @@ import org.parfocal.core.VoxelSize;
 import org.parfocal.deconv.EdgeMode;
 import org.parfocal.deconv.Level;
 import org.parfocal.provenance.MacroOptions;
+import org.parfocal.quality.BlindQualityWatch;
+import org.parfocal.quality.QualityWatch;
+import org.parfocal.quality.ReferenceComparison;
+import org.parfocal.quality.StoppingRule;
 import org.parfocal.psf.Optics;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
@@ -53,6 +57,15 @@ import org.parfocal.psf.PsfModels;
  * {@code show_profiles}); with {@code band_limit} and another start also {@code na immersion_index emission}.
  * {@code offset} and {@code background} take a number or {@code auto}; {@code support_xy}/{@code support_z} 0
  * means automatic.
+ * <p>
+ * <b>Watch mode</b> ({@code watch}, off by default): the second dialog and keys of {@code Deconvolve...}'s watch
+ * mode ({@code every references open_references photons read_noise stop_at_suggestion ignore_calibration}). Every
+ * {@code every} outer iterations a {@link BlindQualityWatch} computes the current object's patch distance to the
+ * sharp references and its re-blur χ² with the PSF estimate of the same iteration; a plot shows both against
+ * the iteration and {@link StoppingRule} suggests one. With {@code stop_at_suggestion} the deblurred image and
+ * the final PSF are the object and the PSF of the suggested iteration (copies kept during the run); the PSF
+ * history, table and convergence plot still cover the whole run. The rule, suggestion and curve go into the
+ * provenance.
  */
 public class BlindDeconvolve implements PlugIn {
 
@@ -84,7 +97,22 @@ public class BlindDeconvolve implements PlugIn {
 	 */
 	public record Options(String image, String psf, double fwhmXY, double fwhmZ, int iterations, int objectUpdates, int psfUpdates, double objectTv,
 			double psfTv, boolean bandLimit, boolean symmetric, boolean centring, double supportXY, double supportZ, String supportUnits,
-			int snapshotInterval, EdgeMode edges, Level offset, Level background, PsfFromOptics.Options optics, BandOptics band) {
+			int snapshotInterval, EdgeMode edges, Level offset, Level background, PsfFromOptics.Options optics, BandOptics band, Deconvolve.Watch watch) {
+
+		/** Without watch mode. */
+		public Options(final String image, final String psf, final double fwhmXY, final double fwhmZ, final int iterations, final int objectUpdates,
+				final int psfUpdates, final double objectTv, final double psfTv, final boolean bandLimit, final boolean symmetric, final boolean centring,
+				final double supportXY, final double supportZ, final String supportUnits, final int snapshotInterval, final EdgeMode edges, final Level offset,
+				final Level background, final PsfFromOptics.Options optics, final BandOptics band) {
+			this(image, psf, fwhmXY, fwhmZ, iterations, objectUpdates, psfUpdates, objectTv, psfTv, bandLimit, symmetric, centring, supportXY, supportZ,
+					supportUnits, snapshotInterval, edges, offset, background, optics, band, null);
+		}
+
+		/** The same with these watch settings (null: off). */
+		public Options withWatch(final Deconvolve.Watch w) {
+			return new Options(image, psf, fwhmXY, fwhmZ, iterations, objectUpdates, psfUpdates, objectTv, psfTv, bandLimit, symmetric, centring, supportXY,
+					supportZ, supportUnits, snapshotInterval, edges, offset, background, optics, band, w);
+		}
 
 		public Options {
 			if (image == null || image.isEmpty()) throw new IllegalArgumentException("No image given");
@@ -108,8 +136,9 @@ public class BlindDeconvolve implements PlugIn {
 					+ (bandLimit ? " band_limit" : "") + (symmetric ? " symmetric" : "") + (centring ? " centring" : "") + " support_xy="
 					+ MacroOptions.number(supportXY) + " support_z=" + MacroOptions.number(supportZ) + " support_units=" + supportUnits
 					+ " snapshot_interval=" + snapshotInterval + " edges=" + edges.key() + " offset=" + level(offset) + " background="
-					+ level(background);
-			return s + (optics != null ? " " + optics.macroOptions() : "") + (band != null ? " " + band.macroOptions() : "");
+					+ level(background) + (watch != null ? " watch" : "");
+			return s + (optics != null ? " " + optics.macroOptions() : "") + (band != null ? " " + band.macroOptions() : "")
+					+ (watch != null ? " " + watch.macroOptions() : "");
 		}
 
 		private static String level(final Level l) {
@@ -121,17 +150,35 @@ public class BlindDeconvolve implements PlugIn {
 		}
 	}
 
-	/** What the command made (not shown): the deblurred image, the final PSF, the PSF history, the snapshot table and plot. */
-	public record Output(ImagePlus image, ImagePlus psf, ImagePlus history, ResultsTable table, Plot plot, BlindResult result) {}
+	/**
+	 * What the command made (not shown): the deblurred image, the final PSF, the PSF history, the snapshot table and
+	 * plot; in watch mode also the quality plot and the watch (otherwise null).
+	 */
+	public record Output(ImagePlus image, ImagePlus psf, ImagePlus history, ResultsTable table, Plot plot, BlindResult result, Plot quality,
+			BlindQualityWatch watch) {
+
+		public Output(final ImagePlus image, final ImagePlus psf, final ImagePlus history, final ResultsTable table, final Plot plot, final BlindResult result) {
+			this(image, psf, history, table, plot, result, null, null);
+		}
+	}
 
 	@Override
 	public void run(final String arg) {
 		Commands.run(COMMAND, () -> {
-			final Options o = showDialog();
+			Options o = showDialog();
 			if (o == null) return;
+			if (o.watch() != null && !o.watch().ignoreCalibration()) {
+				final String problem = CompareWithReferences.calibrationProblem(Commands.image(o.image(), "image"),
+						CompareWithReferences.references(o.watch().referenceFolder(), o.watch().openReferences(), List.of(o.image(), o.psf())), null);
+				if (problem != null) {
+					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) return;
+					o = o.withWatch(o.watch().withIgnoreCalibration());
+				}
+			}
 			final Output out = run(o);
 			out.table().show(ConvolveWithPsf.stripExtension(out.history().getTitle()) + " (table)");
 			out.plot().show();
+			if (out.quality() != null) out.quality().show();
 			out.history().show();
 			out.psf().show();
 			out.image().show(); // last, so that it is the current image for the next macro line
@@ -169,6 +216,7 @@ public class BlindDeconvolve implements PlugIn {
 		gd.addChoice("Edges:", EdgeMode.keys(), Prefs.get(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
 		gd.addStringField("Offset:", Prefs.get(PREFS + "offset", "auto"), 8);
 		gd.addStringField("Background:", Prefs.get(PREFS + "background", "auto"), 8);
+		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
 		gd.addHelp("PSF: the starting estimate, an open image, from_optics (computed in the next dialog) or gaussian (FWHM_xy, FWHM_z). "
 				+ "Band limit: needs the optics; without from_optics the next dialog asks for NA, immersion index and emission. "
 				+ "Support: the box the PSF lives in, odd sizes in voxels (or µm); 0 = from the optics or the start. "
@@ -186,6 +234,7 @@ public class BlindDeconvolve implements PlugIn {
 		final double snapshot = Commands.number(gd, "snapshot_interval");
 		final EdgeMode edges = EdgeMode.parse(Commands.checkChoice("edges", gd.getNextChoice(), "edge mode"));
 		final String offset = gd.getNextString().trim(), background = gd.getNextString().trim();
+		final boolean watch = gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		final Level off = Deconvolve.level("offset", offset), bg = Deconvolve.level("background", background);
 		PsfFromOptics.Options optics = null;
@@ -196,6 +245,11 @@ public class BlindDeconvolve implements PlugIn {
 		} else if (band) {
 			bandOptics = showBandDialog();
 			if (bandOptics == null) return null;
+		}
+		Deconvolve.Watch w = null;
+		if (watch) {
+			w = Deconvolve.showWatchDialog(); // the same dialog, keys and defaults as Deconvolve's watch mode
+			if (w == null) return null;
 		}
 		if (!Commands.isMacro()) {
 			Prefs.set(PREFS + "fwhm_xy", fwhmXY);
@@ -220,7 +274,7 @@ public class BlindDeconvolve implements PlugIn {
 		}
 		return new Options(image, psf, fwhmXY, fwhmZ, whole("Iterations", iterations), whole("Object updates per iteration", k),
 				whole("PSF updates per iteration", m), objectTv, psfTv, band, symmetric, centring, sxy, sz, units, whole("The snapshot interval", snapshot),
-				edges, off, bg, optics, bandOptics);
+				edges, off, bg, optics, bandOptics, w);
 	}
 
 	/** The optics the band limit needs, asked for when the start is not computed from them; null if cancelled. */
@@ -262,13 +316,23 @@ public class BlindDeconvolve implements PlugIn {
 		final BlindOptions options = blindOptions(o, image, psfImp, notes);
 		options.checkFor(image);
 		final IjMonitor monitor = new IjMonitor(COMMAND);
-		final BlindResult r = Commands.withImageJThreads(() -> BlindDeconvolution.run(image, options, monitor));
+		final Deconvolve.Watch w = o.watch();
+		final List<CompareWithReferences.Reference> refs = w == null ? List.of()
+				: CompareWithReferences.references(w.referenceFolder(), w.openReferences(), List.of(o.image(), o.psf()));
+		if (w != null && !w.ignoreCalibration()) {
+			final String problem = CompareWithReferences.calibrationProblem(imp, refs, null);
+			if (problem != null) throw new IllegalArgumentException(problem + ": calibrate it, or add ignore_calibration to compare voxel for voxel");
+		}
+		final BlindQualityWatch watch = w == null ? null : Commands.withImageJThreads(() -> watch(w, image, options, refs, monitor));
+		final BlindResult r = Commands.withImageJThreads(() -> BlindDeconvolution.run(image, options, monitor, watch));
 		for (final String note : r.notes()) if (!notes.contains(note)) notes.add(note);
+		final boolean best = watch != null && w.stopAtSuggestion() && watch.best() != null;
+		final Volume estimate = best ? watch.best() : r.estimate(), finalPsf = best ? watch.bestPsf() : r.psf();
 
 		final String base = ConvolveWithPsf.stripExtension(imp.getTitle());
 		final Calibration cal = imp.getCalibration();
-		final ImagePlus out = ImageBridge.toImagePlus(Hyperstack.of(r.estimate()), WindowManager.makeUniqueName(base + "-blind.tif"), cal);
-		final ImagePlus psf = ImageBridge.toImagePlus(Hyperstack.of(r.psf()), WindowManager.makeUniqueName(base + "-blind-psf.tif"), cal);
+		final ImagePlus out = ImageBridge.toImagePlus(Hyperstack.of(estimate), WindowManager.makeUniqueName(base + "-blind.tif"), cal);
+		final ImagePlus psf = ImageBridge.toImagePlus(Hyperstack.of(finalPsf), WindowManager.makeUniqueName(base + "-blind-psf.tif"), cal);
 		final ImagePlus history = history(r.snapshots(), WindowManager.makeUniqueName(base + "-blind-psf-history.tif"), cal);
 		final String unit = cal != null && cal.scaled() ? cal.getUnits() : "voxels";
 		final ResultsTable table = table(r.snapshots(), unit);
@@ -282,13 +346,89 @@ public class BlindDeconvolve implements PlugIn {
 				.run("snapshots", r.snapshots().size()).run("fwhm_lateral", last.fwhmLateral());
 		if (image.nz() > 1) prov.run("fwhm_axial", last.fwhmAxial());
 		prov.run("distance_to_start", last.distanceToStart()).run("offset", r.offset()).run("background", r.background());
+		if (watch != null) watchProvenance(prov, w, watch, refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		Provenance.attach(out, prov.run("output", "deblurred image"), t0);
 		Provenance.attach(psf, prov.run("output", "final PSF"), t0);
 		Provenance.attach(history, prov.run("output", "PSF history, one frame per snapshot"), t0);
 		monitor.done(String.format(Locale.ROOT, "%d iteration(s), %.1f s, PSF FWHM %s%s %s", o.iterations(), (System.nanoTime() - t0) / 1e9,
 				fmt(last.fwhmLateral()), image.nz() > 1 ? " x " + fmt(last.fwhmAxial()) : "", unit));
-		return new Output(out, psf, history, table, plot, r);
+		final Plot quality = watch == null ? null : qualityPlot(watch, out.getTitle());
+		return new Output(out, psf, history, table, plot, r, quality, watch);
+	}
+
+	/**
+	 * The watch for this run: references prepared for the image (none: distance not evaluated), and the re-blur
+	 * check with the offset and background the engine will use (the same estimators, {@link QualityWatch.Consistency#levels}).
+	 */
+	static BlindQualityWatch watch(final Deconvolve.Watch w, final Volume image, final BlindOptions options, final List<CompareWithReferences.Reference> refs,
+			final org.parfocal.core.Monitor monitor) {
+		final ReferenceComparison.References prepared = refs.isEmpty() ? null
+				: CompareWithReferences.named(refs, () -> ReferenceComparison.prepare(refs.stream().map(CompareWithReferences.Reference::volume).toList(), image,
+						ReferenceComparison.Options.defaults().withIgnoreCalibration(w.ignoreCalibration()), monitor));
+		final double[] lv = QualityWatch.Consistency.levels(image, options.offset(), options.background());
+		final BlindQualityWatch.Recording rec = new BlindQualityWatch.Recording(image, options.edges() == EdgeMode.PERIODIC, lv[0], lv[1], w.photons(),
+				w.readNoise());
+		return new BlindQualityWatch(prepared, rec, w.every(), w.stopAtSuggestion(), image.voxelSize());
+	}
+
+	/** Watch-mode facts, under the names {@code Deconvolve...} uses: rule, references, suggestion, returned iteration, floor, curve. */
+	static void watchProvenance(final org.parfocal.provenance.Provenance.Builder prov, final Deconvolve.Watch w, final BlindQualityWatch q,
+			final List<CompareWithReferences.Reference> refs) {
+		prov.run("watch_rule", StoppingRule.DESCRIPTION).run("watch_references", refs.size());
+		for (final CompareWithReferences.Reference ref : refs) prov.input(Provenance.input("reference", ref.image()));
+		final StoppingRule.Suggestion s = q.suggestion();
+		prov.run("suggested_iteration", s.iteration()).run("suggestion", s.reason());
+		if (w.stopAtSuggestion()) prov.run("returned_iteration", q.best() != null ? s.iteration() : q.points().isEmpty() ? 0 : q.points().get(q.points().size() - 1).iteration());
+		if (!Double.isNaN(q.floor())) prov.run("watch_floor", q.floor());
+		final StringBuilder sb = new StringBuilder();
+		for (final StoppingRule.Point p : q.points()) {
+			if (sb.length() > 0) sb.append("; ");
+			sb.append(String.format(Locale.ROOT, "%d: d %.5g chi2 %.5g", p.iteration(), p.distance(), p.chiSquare()));
+		}
+		prov.run("watch_curve", sb.toString());
+	}
+
+	/**
+	 * Patch distance ÷ its noise floor and re-blur χ² (with the PSF estimate of each iteration) against the outer
+	 * iteration, log axis, 1 marked: "indistinguishable from the references" and "consistent with the noise"; a
+	 * dotted line marks the suggested iteration.
+	 */
+	static Plot qualityPlot(final BlindQualityWatch q, final String title) {
+		final Plot plot = new Plot("Quality of " + title, "Outer iteration", "Distance / floor, chi-square");
+		plot.setLogScaleY();
+		final List<StoppingRule.Point> pts = q.points();
+		final double[] x = new double[pts.size()], d = new double[pts.size()], chi = new double[pts.size()];
+		double xmax = 1, ymin = 1, ymax = 1;
+		for (int k = 0; k < x.length; k++) {
+			x[k] = pts.get(k).iteration();
+			d[k] = pts.get(k).distance() / q.floor();
+			chi[k] = pts.get(k).chiSquare();
+			xmax = Math.max(xmax, x[k]);
+			for (final double v : new double[] { d[k], chi[k] }) if (v > 0 && Double.isFinite(v)) { ymin = Math.min(ymin, v); ymax = Math.max(ymax, v); }
+		}
+		final StringBuilder legend = new StringBuilder();
+		if (!Double.isNaN(q.floor())) {
+			plot.setColor(new Color(0, 90, 170));
+			plot.setLineWidth(2);
+			plot.addPoints(x, d, Plot.CONNECTED_CIRCLES);
+			legend.append("distance / floor\t");
+		}
+		plot.setColor(new Color(200, 80, 0));
+		plot.setLineWidth(1);
+		plot.addPoints(x, chi, Plot.LINE);
+		legend.append("chi-square (current PSF)");
+		plot.setLimits(0, xmax * 1.02, ymin / 1.2, ymax * 1.2);
+		plot.setColor(Color.GRAY);
+		plot.drawDottedLine(0, 1, xmax * 1.02, 1, 2);
+		final int s = q.suggestion().iteration();
+		if (s > 0) {
+			plot.drawDottedLine(s, ymin / 1.2, s, ymax * 1.2, 4);
+			plot.addLabel(0.02, 0.08, "suggested: iteration " + s);
+		}
+		plot.setColor(Color.BLACK);
+		plot.addLegend(legend.toString());
+		return plot;
 	}
 
 	private static String fmt(final double v) {

@@ -223,6 +223,111 @@ class BlindDeconvolveCommandTest {
 		assertArrayEquals(before, (float[]) img.getStack().getPixels(4), "input unchanged");
 	}
 
+	/** The dim cell of {@link DeconvolveCommandTest#dimRecorded} (0.02 photons per unit), 15 outer iterations, watched every 3. */
+	static final String WATCH = OPTIONS.replace("iterations=4", "iterations=15").replace("snapshot_interval=2", "snapshot_interval=5")
+			.replace("background=auto", "background=2 watch") + " every=3 references=[] open_references=sharp-* photons=0.02 read_noise=0";
+
+	private static final BlindOptions WATCH_CORE = new BlindOptions(15, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5), true, false,
+			true, BAND, 5, EdgeMode.NON_CIRCULANT, Level.of(100), Level.of(2));
+
+	/**
+	 * Watch mode by menu name: the quality plot is made; the suggestion equals that of a core watch with the same
+	 * references and noise model; with stop_at_suggestion the deblurred image and the PSF are those of a run
+	 * stopped at the suggested iteration (bit for bit up to thread-count rounding, 1e-6 relative); the provenance
+	 * holds the keys, the rule, the suggestion and the curve; without stop_at_suggestion the outputs are those of
+	 * a run without watch mode.
+	 */
+	@Test
+	void watchModeSuggestsAnIterationAndCanReturnIt() {
+		final ImagePlus img = DeconvolveCommandTest.dimRecorded("cell.tif");
+		final ImagePlus[] refs = DeconvolveCommandTest.sharpReferences();
+		DeconvolveCommandTest.open(img, refs[0], refs[1], refs[2]);
+		final float[] before = ((float[]) img.getStack().getPixels(5)).clone();
+		final ImageJHarness.Result r = ImageJHarness.run(img, CMD, WATCH + " stop_at_suggestion");
+		assertArrayEquals(before, (float[]) img.getStack().getPixels(5), "input unchanged");
+		assertTrue(r.created().stream().anyMatch(i -> i.getTitle().equals("Quality of cell-blind.tif")), "quality plot: " + r.created());
+		final ImagePlus out = created(r, "cell-blind.tif"), psf = created(r, "cell-blind-psf.tif");
+
+		final Volume y = ImageBridge.toCore(img).first();
+		final List<Volume> refVolumes = java.util.Arrays.stream(refs).map(i -> ImageBridge.toCore(i).first()).toList();
+		final org.parfocal.quality.BlindQualityWatch w = new org.parfocal.quality.BlindQualityWatch(
+				org.parfocal.quality.ReferenceComparison.prepare(refVolumes, y, org.parfocal.quality.ReferenceComparison.Options.defaults(), Monitor.NONE),
+				new org.parfocal.quality.BlindQualityWatch.Recording(y, false, 100, 2, 0.02, 0), 3, false, y.voxelSize());
+		final BlindResult full = BlindDeconvolution.run(y, WATCH_CORE, Monitor.NONE, w);
+		final int k = w.suggestion().iteration();
+		assertEquals(5, w.points().size());
+		assertTrue(k >= 3 && k <= 15 && k % 3 == 0, "suggestion " + k);
+
+		final var p = Provenance.of(out).orElseThrow();
+		assertEquals((long) k, p.run().get("suggested_iteration"));
+		assertEquals((long) k, p.run().get("returned_iteration"));
+		assertEquals(w.suggestion().reason(), p.run().get("suggestion"));
+		assertEquals(org.parfocal.quality.StoppingRule.DESCRIPTION, p.run().get("watch_rule"));
+		assertEquals(3L, p.run().get("watch_references"));
+		assertEquals(w.floor(), ((Number) p.run().get("watch_floor")).doubleValue(), 1e-12 * w.floor());
+		final String curve = p.run().get("watch_curve").toString();
+		assertEquals(5, curve.split(";").length, curve);
+		assertTrue(curve.startsWith("3: d ") && curve.contains("; 15: d "), curve);
+		System.out.println("Blind watch: suggested " + k + " (" + w.suggestion().reason() + "); floor " + w.floor() + "; curve " + curve);
+		final List<String> keys = new ArrayList<>(KEYS);
+		keys.addAll(BAND_KEYS);
+		keys.addAll(List.of("watch", "every", "references", "open_references", "photons", "read_noise", "stop_at_suggestion"));
+		keys.remove("symmetric"); // unchecked
+		keys.add(keys.indexOf("na"), keys.remove(keys.indexOf("watch"))); // "watch" follows background, as in Deconvolve
+		assertEquals(List.copyOf(MacroOptions.parse(WATCH + " stop_at_suggestion").keySet()), List.copyOf(p.options().keySet()));
+		assertEquals(keys, List.copyOf(p.options().keySet()));
+		assertEquals((long) k, Provenance.of(psf).orElseThrow().run().get("returned_iteration"), "the PSF's record too");
+
+		final BlindResult stopped = BlindDeconvolution.run(y, new BlindOptions(k, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5),
+				true, false, true, BAND, Math.min(5, k), EdgeMode.NON_CIRCULANT, Level.of(100), Level.of(2)), Monitor.NONE);
+		assertClose(stopped.estimate().data(), ImageBridge.toCore(out).first().data(), "output = the object at the suggestion");
+		assertClose(stopped.psf().data(), ImageBridge.toCore(psf).first().data(), "PSF output = the PSF at the suggestion");
+		// χ² only (no references): the last evaluated iterate with χ² ≥ 1, here before the end, so the returned
+		// object and PSF are not the last ones
+		final ImageJHarness.Result chiOnly = ImageJHarness.run(img, CMD, WATCH.replace("open_references=sharp-*", "open_references=[]") + " stop_at_suggestion");
+		final org.parfocal.quality.BlindQualityWatch wc = new org.parfocal.quality.BlindQualityWatch(null,
+				new org.parfocal.quality.BlindQualityWatch.Recording(y, false, 100, 2, 0.02, 0), 3, false, y.voxelSize());
+		BlindDeconvolution.run(y, WATCH_CORE, Monitor.NONE, wc);
+		final int kc = wc.suggestion().iteration();
+		assertTrue(kc > 0 && kc < 15, "chi-square-only suggestion " + kc);
+		final ImagePlus outChi = created(chiOnly, "cell-blind.tif");
+		assertEquals((long) kc, Provenance.of(outChi).orElseThrow().run().get("returned_iteration"));
+		assertFalse(Provenance.of(outChi).orElseThrow().run().containsKey("watch_floor"), "no floor without references");
+		final BlindResult stoppedChi = BlindDeconvolution.run(y, new BlindOptions(kc, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5),
+				true, false, true, BAND, Math.min(5, kc), EdgeMode.NON_CIRCULANT, Level.of(100), Level.of(2)), Monitor.NONE);
+		assertClose(stoppedChi.estimate().data(), ImageBridge.toCore(outChi).first().data(), "chi-square only: output = the object at the suggestion");
+		assertClose(stoppedChi.psf().data(), ImageBridge.toCore(created(chiOnly, "cell-blind-psf.tif")).first().data(), "chi-square only: PSF at the suggestion");
+		assertFalse(java.util.Arrays.equals(full.estimate().data(), ImageBridge.toCore(outChi).first().data()), "not the last iterate");
+		assertFalse(java.util.Arrays.equals(full.psf().data(), ImageBridge.toCore(created(chiOnly, "cell-blind-psf.tif")).first().data()), "not the last PSF");
+		System.out.println("Blind watch, chi-square only: suggested " + kc + " (" + wc.suggestion().reason() + ")");
+
+		// without stop_at_suggestion: the last iterate and PSF, exactly as without watch mode
+		final ImageJHarness.Result plain = ImageJHarness.run(img, CMD, WATCH);
+		assertClose(full.estimate().data(), ImageBridge.toCore(created(plain, "cell-blind.tif")).first().data(), "watch on, no stop: last iterate");
+		assertClose(full.psf().data(), ImageBridge.toCore(created(plain, "cell-blind-psf.tif")).first().data(), "watch on, no stop: last PSF");
+		final ImageJHarness.Result off = ImageJHarness.run(img, CMD, WATCH.replace(" watch", "").substring(0, WATCH.indexOf(" every=") - " watch".length()));
+		assertArrayEquals(ImageBridge.toCore(created(plain, "cell-blind.tif")).first().data(), ImageBridge.toCore(created(off, "cell-blind.tif")).first().data(),
+				0f, "watch on or off: the same result");
+		assertTrue(off.created().stream().noneMatch(i -> i.getTitle().startsWith("Quality of")), "no quality plot when off");
+		assertFalse(Provenance.of(created(off, "cell-blind.tif")).orElseThrow().run().containsKey("watch_rule"), "no watch facts when off");
+		assertFalse(Provenance.of(created(plain, "cell-blind.tif")).orElseThrow().run().containsKey("returned_iteration"));
+	}
+
+	@Test
+	void watchModeBadInputIsRefusedInOneLine() {
+		final ImagePlus img = DeconvolveCommandTest.dimRecorded("cell.tif");
+		final ImagePlus[] refs = DeconvolveCommandTest.sharpReferences();
+		final ImagePlus bare = ImageBridge.toImagePlus(SampleScene.cell(40, 36, 10, 200).withVoxelSize(VoxelSize.UNCALIBRATED), "bare-ref.tif");
+		final ImagePlus flat = ImageBridge.toImagePlus(SampleScene.cell(40, 36, 1, 200).withVoxelSize(SampleScene.VOXEL), "flat-ref.tif");
+		DeconvolveCommandTest.open(img, refs[0], refs[1], refs[2], bare, flat);
+		assertFails("Evaluate every 1 to 10000 iterations, got 0 (every=)", img, WATCH.replace("every=3", "every=0"));
+		assertFails("The reference folder '/no/such/folder' does not exist", img, WATCH.replace("references=[]", "references=/no/such/folder"));
+		assertFails("No open image matches the reference pattern 'lantern-*'", img, WATCH.replace("sharp-*", "lantern-*"));
+		assertFails("add ignore_calibration", img, WATCH.replace("sharp-*", "bare-ref.tif"));
+		assertFails("Reference 1 ('flat-ref.tif') is 2D but the result is 3D", img, WATCH.replace("sharp-*", "flat-ref.tif"));
+		assertFails("Photons per unit must be positive", img, WATCH.replace("photons=0.02", "photons=0"));
+	}
+
 	private static void assertFails(final String expected, final ImagePlus current, final String options) {
 		final int before = Interpreter.getBatchModeImageIDs().length;
 		final ImageJCommandException e = assertThrows(ImageJCommandException.class, () -> ImageJHarness.run(current, CMD, options));
