@@ -2,6 +2,7 @@ package org.parfocal.deconv;
 
 import java.util.Arrays;
 
+import org.parfocal.core.FastLog;
 import org.parfocal.core.MemoryBudget;
 import org.parfocal.core.Parallel;
 import org.parfocal.core.Volume;

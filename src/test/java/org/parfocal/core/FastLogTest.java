@@ -1,4 +1,4 @@
-package org.parfocal.deconv;
+package org.parfocal.core;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 

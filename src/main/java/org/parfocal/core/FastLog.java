@@ -1,4 +1,4 @@
-package org.parfocal.deconv;
+package org.parfocal.core;
 
 /**
  * Natural logarithm of a positive normal float, accurate to a few float ulps, for the log-likelihood that every
@@ -9,14 +9,14 @@ package org.parfocal.deconv;
  * x = 2^e · m with m in [√½, √2); ln m = 2·atanh(s) = 2(s + s³/3 + s⁵/5 + s⁷/7 + s⁹/9 + s¹¹/11),
  * s = (m − 1)/(m + 1), |s| ≤ 0.1716, so the truncation error is below 2e-11.
  */
-final class FastLog {
+public final class FastLog {
 
 	private static final double LN2 = 0.6931471805599453;
 
 	private FastLog() {}
 
 	/** ln x for x ≥ {@link Float#MIN_NORMAL}, finite. */
-	static double ln(final float x) {
+	public static double ln(final float x) {
 		final int bits = Float.floatToRawIntBits(x);
 		int e = ((bits >>> 23) & 0xff) - 127;
 		int mb = (bits & 0x7fffff) | 0x3f800000; // mantissa in [1, 2)
