@@ -358,47 +358,18 @@ final class RichardsonLucySolver {
 		final int plane = mx * my;
 		fft.convolveInPlace(t, transfer, true, windowRows, objectRows, (r, o) -> {
 			final int or = objectRow(r);
-			final int c = or * mx, iy = or % my, iz = or / my;
-			double change = 0, before = 0, after = 0;
-			for (int i = 0; i < mx; i++) {
-				final int l = c + i;
-				final float xo = x[l];
-				float v = xo * t[o + i];
-				if (invW != null) v = v * invW[l];
-				// div of the normalised gradient: N(l) − N(l − e_d) summed over the axes
-				final float g = gradNorm(l, i, iy, iz, plane);
-				float div = 0;
-				if (i + 1 < mx) div += (x[l + 1] - xo) / g;
-				if (iy + 1 < my) div += (x[l + mx] - xo) / g;
-				if (iz + 1 < mz) div += (x[l + plane] - xo) / g;
-				if (i > 0) div -= (xo - x[l - 1]) / gradNorm(l - 1, i - 1, iy, iz, plane);
-				if (iy > 0) div -= (xo - x[l - mx]) / gradNorm(l - mx, i, iy - 1, iz, plane);
-				if (iz > 0) div -= (xo - x[l - plane]) / gradNorm(l - plane, i, iy, iz - 1, plane);
-				v = v / (1f - lambda * div);
-				if (!(v > 0)) v = 0;
-				change += Math.abs(v - xo);
-				before += xo;
-				after += v;
-				t[o + i] = v;
-			}
+			final double[] acc = new double[3];
+			TvRow.update(x, t, o, or, invW, lambda, eps, mx, my, mz, acc);
 			Arrays.fill(t, o + mx, o + px, 0f);
-			r1[or] = change;
-			r2[or] = before;
-			r3[or] = after;
+			r1[or] = acc[0];
+			r2[or] = acc[1];
+			r3[or] = acc[2];
 		});
 		Parallel.forRange(my * mz, r -> System.arraycopy(t, gridRowOfObjectRow(r) * rs, x, r * mx, mx));
 		final double before = ordered(r2);
 		return new double[] { before > 0 ? ordered(r1) / before : 0, ordered(r3) };
 	}
 
-	/** sqrt(ε² + |∇x|²) at object voxel l = (i, iy, iz), forward differences, 0 across the far edges. */
-	private float gradNorm(final int l, final int i, final int iy, final int iz, final int plane) {
-		final float xl = x[l];
-		final float dx = i + 1 < mx ? x[l + 1] - xl : 0f;
-		final float dy = iy + 1 < my ? x[l + mx] - xl : 0f;
-		final float dz = iz + 1 < mz ? x[l + plane] - xl : 0f;
-		return (float) Math.sqrt(eps * eps + dx * dx + dy * dy + dz * dz);
-	}
 
 	/** t ← x on the object rows (the rest of those rows zero; other rows are never read). */
 	private void copyObjectToGrid() {
