@@ -74,13 +74,13 @@ public final class BlindDeconvolution {
 		final Volume start = startingPsf(image, options, notes);
 		final int[] k = start.shape();
 		MemoryBudget.require(BlindSolver.bytesNeeded(n, k, options.edges()), "blind deconvolution of a " + n[0] + " x " + n[1] + " x " + n[2] + " image");
-		final Data d = data(image, options.offset(), options.background());
-		notes.addAll(d.notes);
+		final Preprocessing.Data d = Preprocessing.data(image, options.offset(), options.background());
+		notes.addAll(d.notes());
 		mon.checkCancelled();
 		final double[] um = micronSizes(image.voxelSize());
 		final PsfConstraints constraints = new PsfConstraints(k[0], k[1], k[2], um[0], um[1], um[2],
 				options.bandLimit() ? OtfSupport.widefield(options.optics()) : null, options.symmetric(), options.centring(), start.data());
-		final BlindSolver s = new BlindSolver(start, n, options.edges(), d.y, d.background, options.objectTv(), options.psfTv(), constraints);
+		final BlindSolver s = new BlindSolver(start, n, options.edges(), d.y(), d.background(), options.objectTv(), options.psfTv(), constraints);
 		final VoxelSize vs = image.voxelSize();
 		final List<PsfSnapshot> snaps = new ArrayList<>();
 		final float[] h0 = start.data();
@@ -107,11 +107,11 @@ public final class BlindDeconvolution {
 			lis.iterationDone(rep, objectView, psfView);
 		}
 		mon.checkCancelled();
-		final float[] out = d.y; // not needed any more: it receives the output
+		final float[] out = d.y(); // not needed any more: it receives the output
 		s.crop(out);
 		mon.progress(max, max, "Blind deconvolution done");
 		final Volume psf = Volume.wrap(s.psf().clone(), k[0], k[1], k[2], vs);
-		return new BlindResult(Volume.wrap(out, n[0], n[1], n[2], vs), psf, snaps, history, d.offset, d.background, notes);
+		return new BlindResult(Volume.wrap(out, n[0], n[1], n[2], vs), psf, snaps, history, d.offset(), d.background(), notes);
 	}
 
 	/** µm per voxel, or 1 per voxel for an uncalibrated image (used only by constraints that then are off). */
@@ -270,56 +270,5 @@ public final class BlindDeconvolution {
 			for (int y = 0; y < k[1]; y++)
 				for (int x = 0; x < k[0]; x++) v.set(x, y, z, (float) (f[0][x] * f[1][y] * f[2][z] / sum));
 		return v;
-	}
-
-	// -- data (the non-blind engine's preparation; its helper is package-private there) --
-
-	private record Data(float[] y, double offset, double background, List<String> notes) {}
-
-	/** Offset subtracted, values below zero set to zero, background given or estimated: as {@link Preprocessing} documents. */
-	private static Data data(final Volume image, final Level offsetLevel, final Level backgroundLevel) {
-		final List<String> notes = new ArrayList<>();
-		final int bad = image.firstNonFinite();
-		if (bad >= 0) throw new IllegalArgumentException("The image has a non-finite value (" + image.data()[bad] + ") at " + image.position(bad));
-		final float[] in = image.data();
-		final double offset = switch (offsetLevel.kind()) {
-		case VALUE -> offsetLevel.value();
-		case ESTIMATED -> {
-			final double v = Preprocessing.estimateOffset(image);
-			notes.add(String.format(Locale.ROOT, "Camera offset estimated as %.4g (0.1%% quantile of the image)", v));
-			yield v;
-		}
-		default -> 0;
-		};
-		final float[] y = new float[in.length];
-		int clipped = 0;
-		double sum = 0;
-		for (int i = 0; i < in.length; i++) {
-			final float v = (float) (in[i] - offset);
-			if (v < 0) clipped++;
-			y[i] = v > 0 ? v : 0f;
-			sum += y[i];
-		}
-		if (!(sum > 0))
-			throw new IllegalArgumentException(offset == 0 ? "The image is all zero (or negative): nothing to deconvolve"
-					: String.format(Locale.ROOT, "The image is at or below the camera offset (%.4g) everywhere: nothing to deconvolve", offset));
-		if (clipped > 0)
-			notes.add(String.format(Locale.ROOT, "%d voxels (%.2g%%) below %s set to zero", clipped, 100.0 * clipped / in.length,
-					offset == 0 ? "zero" : "the camera offset"));
-		final double background = switch (backgroundLevel.kind()) {
-		case VALUE -> backgroundLevel.value();
-		case ESTIMATED -> {
-			final double v = Preprocessing.estimateBackground(y);
-			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (sigma-clipped median)", v));
-			yield v;
-		}
-		default -> 0;
-		};
-		float max = 0;
-		for (final float v : y) max = Math.max(max, v);
-		if (background >= max)
-			throw new IllegalArgumentException(String.format(Locale.ROOT,
-					"The background (%.4g) is at or above the brightest offset-corrected voxel (%.4g): nothing is left to deconvolve", background, max));
-		return new Data(y, offset, background, notes);
 	}
 }

@@ -35,12 +35,13 @@ public final class Preprocessing {
 	private Preprocessing() {}
 
 	/** Prepared data: y on the image grid (a new array) and the levels used. */
-	record Data(float[] y, double offset, double background, List<String> notes) {}
+	public record Data(float[] y, double offset, double background, List<String> notes) {}
 
 	/** Prepared PSF (a new volume) and notes. */
 	record Psf(Volume psf, List<String> notes) {}
 
-	static Data data(final Volume image, final Level offsetLevel, final Level backgroundLevel) {
+	/** The data prepared as the class comment says (a new array; the image is not modified). */
+	public static Data data(final Volume image, final Level offsetLevel, final Level backgroundLevel) {
 		final List<String> notes = new ArrayList<>();
 		final int bad = image.firstNonFinite();
 		if (bad >= 0) throw new IllegalArgumentException("The image has a non-finite value (" + image.data()[bad] + ") at " + image.position(bad));

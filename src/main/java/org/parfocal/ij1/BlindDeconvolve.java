@@ -346,14 +346,14 @@ public class BlindDeconvolve implements PlugIn {
 				.run("snapshots", r.snapshots().size()).run("fwhm_lateral", last.fwhmLateral());
 		if (image.nz() > 1) prov.run("fwhm_axial", last.fwhmAxial());
 		prov.run("distance_to_start", last.distanceToStart()).run("offset", r.offset()).run("background", r.background());
-		if (watch != null) watchProvenance(prov, w, watch, refs);
+		if (watch != null) Deconvolve.watchProvenance(prov, w, List.of(watch), refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		Provenance.attach(out, prov.run("output", "deblurred image"), t0);
 		Provenance.attach(psf, prov.run("output", "final PSF"), t0);
 		Provenance.attach(history, prov.run("output", "PSF history, one frame per snapshot"), t0);
 		monitor.done(String.format(Locale.ROOT, "%d iteration(s), %.1f s, PSF FWHM %s%s %s", o.iterations(), (System.nanoTime() - t0) / 1e9,
 				fmt(last.fwhmLateral()), image.nz() > 1 ? " x " + fmt(last.fwhmAxial()) : "", unit));
-		final Plot quality = watch == null ? null : qualityPlot(watch, out.getTitle());
+		final Plot quality = watch == null ? null : Deconvolve.qualityPlot(List.of(watch), out.getTitle(), "Outer iteration", "chi-square (current PSF)");
 		return new Output(out, psf, history, table, plot, r, quality, watch);
 	}
 
@@ -370,65 +370,6 @@ public class BlindDeconvolve implements PlugIn {
 		final BlindQualityWatch.Recording rec = new BlindQualityWatch.Recording(image, options.edges() == EdgeMode.PERIODIC, lv[0], lv[1], w.photons(),
 				w.readNoise());
 		return new BlindQualityWatch(prepared, rec, w.every(), w.stopAtSuggestion(), image.voxelSize());
-	}
-
-	/** Watch-mode facts, under the names {@code Deconvolve...} uses: rule, references, suggestion, returned iteration, floor, curve. */
-	static void watchProvenance(final org.parfocal.provenance.Provenance.Builder prov, final Deconvolve.Watch w, final BlindQualityWatch q,
-			final List<CompareWithReferences.Reference> refs) {
-		prov.run("watch_rule", StoppingRule.DESCRIPTION).run("watch_references", refs.size());
-		for (final CompareWithReferences.Reference ref : refs) prov.input(Provenance.input("reference", ref.image()));
-		final StoppingRule.Suggestion s = q.suggestion();
-		prov.run("suggested_iteration", s.iteration()).run("suggestion", s.reason());
-		if (w.stopAtSuggestion()) prov.run("returned_iteration", q.best() != null ? s.iteration() : q.points().isEmpty() ? 0 : q.points().get(q.points().size() - 1).iteration());
-		if (!Double.isNaN(q.floor())) prov.run("watch_floor", q.floor());
-		final StringBuilder sb = new StringBuilder();
-		for (final StoppingRule.Point p : q.points()) {
-			if (sb.length() > 0) sb.append("; ");
-			sb.append(String.format(Locale.ROOT, "%d: d %.5g chi2 %.5g", p.iteration(), p.distance(), p.chiSquare()));
-		}
-		prov.run("watch_curve", sb.toString());
-	}
-
-	/**
-	 * Patch distance ÷ its noise floor and re-blur χ² (with the PSF estimate of each iteration) against the outer
-	 * iteration, log axis, 1 marked: "indistinguishable from the references" and "consistent with the noise"; a
-	 * dotted line marks the suggested iteration.
-	 */
-	static Plot qualityPlot(final BlindQualityWatch q, final String title) {
-		final Plot plot = new Plot("Quality of " + title, "Outer iteration", "Distance / floor, chi-square");
-		plot.setLogScaleY();
-		final List<StoppingRule.Point> pts = q.points();
-		final double[] x = new double[pts.size()], d = new double[pts.size()], chi = new double[pts.size()];
-		double xmax = 1, ymin = 1, ymax = 1;
-		for (int k = 0; k < x.length; k++) {
-			x[k] = pts.get(k).iteration();
-			d[k] = pts.get(k).distance() / q.floor();
-			chi[k] = pts.get(k).chiSquare();
-			xmax = Math.max(xmax, x[k]);
-			for (final double v : new double[] { d[k], chi[k] }) if (v > 0 && Double.isFinite(v)) { ymin = Math.min(ymin, v); ymax = Math.max(ymax, v); }
-		}
-		final StringBuilder legend = new StringBuilder();
-		if (!Double.isNaN(q.floor())) {
-			plot.setColor(new Color(0, 90, 170));
-			plot.setLineWidth(2);
-			plot.addPoints(x, d, Plot.CONNECTED_CIRCLES);
-			legend.append("distance / floor\t");
-		}
-		plot.setColor(new Color(200, 80, 0));
-		plot.setLineWidth(1);
-		plot.addPoints(x, chi, Plot.LINE);
-		legend.append("chi-square (current PSF)");
-		plot.setLimits(0, xmax * 1.02, ymin / 1.2, ymax * 1.2);
-		plot.setColor(Color.GRAY);
-		plot.drawDottedLine(0, 1, xmax * 1.02, 1, 2);
-		final int s = q.suggestion().iteration();
-		if (s > 0) {
-			plot.drawDottedLine(s, ymin / 1.2, s, ymax * 1.2, 4);
-			plot.addLabel(0.02, 0.08, "suggested: iteration " + s);
-		}
-		plot.setColor(Color.BLACK);
-		plot.addLegend(legend.toString());
-		return plot;
 	}
 
 	private static String fmt(final double v) {

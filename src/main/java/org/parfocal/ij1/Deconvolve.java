@@ -34,6 +34,7 @@ import org.parfocal.provenance.MacroOptions;
 import org.parfocal.quality.QualityWatch;
 import org.parfocal.quality.ReferenceComparison;
 import org.parfocal.quality.StoppingRule;
+import org.parfocal.quality.WatchedRun;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
 
@@ -408,13 +409,13 @@ public class Deconvolve implements PlugIn {
 	}
 
 	/** Watch-mode facts: the rule, the suggestion(s), what was returned, and the curve(s). */
-	static void watchProvenance(final org.parfocal.provenance.Provenance.Builder prov, final Watch w, final List<QualityWatch> watches,
+	static void watchProvenance(final org.parfocal.provenance.Provenance.Builder prov, final Watch w, final List<? extends WatchedRun> watches,
 			final List<CompareWithReferences.Reference> refs) {
 		prov.run("watch_rule", StoppingRule.DESCRIPTION).run("watch_references", refs.size());
 		for (final CompareWithReferences.Reference r : refs) prov.input(Provenance.input("reference", r.image()));
 		final int n = watches.size();
 		for (int i = 0; i < n; i++) {
-			final QualityWatch q = watches.get(i);
+			final WatchedRun q = watches.get(i);
 			final String suffix = n > 1 ? "_" + (i + 1) : "";
 			final StoppingRule.Suggestion s = q.suggestion();
 			prov.run("suggested_iteration" + suffix, s.iteration()).run("suggestion" + suffix, s.reason());
@@ -434,14 +435,19 @@ public class Deconvolve implements PlugIn {
 	 * "indistinguishable from the references" and "consistent with the noise" respectively; a dotted line marks
 	 * the suggested iteration (first channel and frame).
 	 */
-	static Plot qualityPlot(final List<QualityWatch> watches, final String title) {
-		final Plot plot = new Plot("Quality of " + title, "Iteration", "Distance / floor, chi-square");
+	static Plot qualityPlot(final List<? extends WatchedRun> watches, final String title) {
+		return qualityPlot(watches, title, "Iteration", "chi-square");
+	}
+
+	/** As {@link #qualityPlot(List, String)} with the axis and χ² legend named by the caller (Blind Deconvolve). */
+	static Plot qualityPlot(final List<? extends WatchedRun> watches, final String title, final String xLabel, final String chiLabel) {
+		final Plot plot = new Plot("Quality of " + title, xLabel, "Distance / floor, chi-square");
 		plot.setLogScaleY();
 		final Color[] colors = { new Color(0, 90, 170), new Color(200, 80, 0), new Color(0, 140, 60), new Color(120, 0, 140) };
 		final StringBuilder legend = new StringBuilder();
 		double xmax = 1, ymin = 1, ymax = 1;
 		for (int i = 0; i < watches.size(); i++) {
-			final QualityWatch q = watches.get(i);
+			final WatchedRun q = watches.get(i);
 			final List<StoppingRule.Point> pts = q.points();
 			final double[] x = new double[pts.size()], d = new double[pts.size()], chi = new double[pts.size()];
 			for (int k = 0; k < x.length; k++) {
@@ -460,7 +466,7 @@ public class Deconvolve implements PlugIn {
 			}
 			plot.setLineWidth(1);
 			plot.addPoints(x, chi, Plot.LINE);
-			legend.append("chi-square").append(which).append('\t');
+			legend.append(chiLabel).append(which).append('\t');
 		}
 		plot.setLimits(0, xmax * 1.02, ymin / 1.2, ymax * 1.2);
 		plot.setColor(Color.GRAY);

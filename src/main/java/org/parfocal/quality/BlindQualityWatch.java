@@ -28,7 +28,7 @@ import org.parfocal.deconv.EstimateView;
  * <p>
  * One watch serves one run; not thread-safe; called on the thread that iterates.
  */
-public final class BlindQualityWatch implements BlindListener {
+public final class BlindQualityWatch implements BlindListener, WatchedRun {
 
 	/**
 	 * The re-blur check without its PSF: the recording as given, the edge handling and the noise model.

@@ -27,7 +27,7 @@ import org.parfocal.deconv.Preprocessing;
  * <p>
  * One watch serves one run (one volume); it is not thread-safe, and it is called on the thread that iterates.
  */
-public final class QualityWatch implements IterationListener {
+public final class QualityWatch implements IterationListener, WatchedRun {
 
 	/**
 	 * What the re-blur check needs: the recording as given (with its offset), the operator of the PSF on the
