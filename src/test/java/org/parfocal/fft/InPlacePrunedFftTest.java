@@ -175,6 +175,45 @@ class InPlacePrunedFftTest {
 			}
 	}
 
+	/**
+	 * A transfer function rearranged line by line ({@link RealFft#lineTransfer}) gives the same pruned
+	 * convolution, bit for bit, as the spectrum it came from (itself checked against the plain path and direct
+	 * summation above), both directions, and leaves that spectrum unchanged.
+	 */
+	@ParameterizedTest(name = "{0} x {1} x {2}")
+	@MethodSource("sizes")
+	void lineTransferGivesTheSameConvolutionBitForBit(final int nx, final int ny, final int nz) {
+		final RealFft f = new RealFft(nx, ny, nz);
+		final float[] t = f.transferFunction(random(17 + nx, f.realLength())), tCopy = t.clone();
+		final RealFft.LineTransfer lt = f.lineTransfer(t, f.newSpectrum());
+		assertArrayEquals(tCopy, t, "spectrum-layout transfer function unchanged");
+		for (int trial = 0; trial < 2; trial++) {
+			final RealFft.Rows in = box(f, 7 * trial + nz), out = box(f, 11 * trial + nx);
+			final float[] x = toGrid(f, random(trial + 3, f.realLength()), 0f);
+			final boolean conj = trial == 1;
+			final float[] a = x.clone(), b = x.clone();
+			f.convolveInPlace(a, t, conj, in, null, out, null);
+			f.convolveInPlace(b, lt, conj, in, null, out, null);
+			for (int r = 0; r < ny * nz; r++)
+				if (inBox(out, r, ny))
+					for (int i = 0; i < nx; i++)
+						assertEquals(Float.floatToIntBits(a[r * f.rowStride() + i]), Float.floatToIntBits(b[r * f.rowStride() + i]),
+								"row " + r + " x " + i + " conj " + conj);
+		}
+	}
+
+	@Test
+	void lineTransferNeedsItsOwnArrayAndItsOwnSize() {
+		final RealFft f = new RealFft(8, 6, 4), g = new RealFft(8, 6, 5);
+		final float[] t = f.transferFunction(random(1, f.realLength()));
+		assertThrows(IllegalArgumentException.class, () -> f.lineTransfer(t, t));
+		assertThrows(IllegalArgumentException.class, () -> f.lineTransfer(t, new float[t.length - 2]));
+		final RealFft.LineTransfer lt = f.lineTransfer(t, f.newSpectrum());
+		final IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
+				() -> g.convolveInPlace(g.newGrid(), lt, false, g.allRows(), null, g.allRows(), null));
+		assertTrue(e.getMessage().contains("another transform size"), e.getMessage());
+	}
+
 	/** 1 and 2 threads give bitwise identical pruned convolutions, and the row action sees every output row once. */
 	@Test
 	void oneAndTwoThreadsAreBitwiseIdentical() {
