@@ -3,10 +3,11 @@ package org.parfocal.blind;
 import java.util.Arrays;
 
 import org.parfocal.core.FastLog;
-import org.parfocal.deconv.TvRow;
 import org.parfocal.core.Parallel;
 import org.parfocal.core.Volume;
 import org.parfocal.deconv.EdgeMode;
+import org.parfocal.deconv.Sensitivity;
+import org.parfocal.deconv.TvRow;
 import org.parfocal.fft.FastSizes;
 import org.parfocal.fft.RealFft;
 
@@ -142,7 +143,7 @@ final class BlindSolver {
 		this.eps = (float) Math.max(TV_EPSILON * mean, Float.MIN_NORMAL);
 		this.lambdaH = (float) psfTv;
 		this.epsH = (float) Math.max(TV_EPSILON / h.length, Float.MIN_NORMAL);
-		this.invW = mode == EdgeMode.NON_CIRCULANT ? sensitivityInverse() : null;
+		this.invW = mode == EdgeMode.NON_CIRCULANT ? Sensitivity.invert(Sensitivity.of(h, k, n)) : null;
 		this.x = new float[mx * my * mz];
 		this.seed = (float) Math.max(mean - background, floor);
 		initialise(seed);
@@ -199,31 +200,6 @@ final class BlindSolver {
 				}
 			}
 		}
-	}
-
-	/** 1 / Hᵀ1_window by FFT, as the non-blind engine computes it (used for the starting PSF). */
-	private float[] sensitivityInverse() {
-		Parallel.forRange(ny * nz, i -> {
-			final int o = (wy + i % ny + py * (wz + i / ny)) * rs;
-			Arrays.fill(t, o, o + px, 0f);
-			Arrays.fill(t, o + wx, o + wx + nx, 1f);
-		});
-		fft.convolveInPlace(t, transfer, true, windowRows, objectRows, null);
-		float max = 0;
-		for (int r = 0; r < my * mz; r++) {
-			final int o = gridRowOfObjectRow(r) * rs;
-			for (int i = 0; i < mx; i++) max = Math.max(max, t[o + i]);
-		}
-		final float min = (float) (EdgeMode.MIN_SENSITIVITY * max);
-		final float[] inv = new float[mx * my * mz];
-		Parallel.forRange(my * mz, r -> {
-			final int o = gridRowOfObjectRow(r) * rs, c = r * mx;
-			for (int i = 0; i < mx; i++) {
-				final float v = t[o + i];
-				inv[c + i] = v >= min ? 1f / v : 0f;
-			}
-		});
-		return inv;
 	}
 
 	private void initialise(final float constant) {
@@ -431,51 +407,13 @@ final class BlindSolver {
 	}
 
 	/**
-	 * Hᵀ1 on the object domain after a PSF change, from a summed-area table of h: object voxel l meets the
-	 * image window through the PSF offsets j ∈ [k − 1 − l, k − 1 − l + n) ∩ [0, k) per axis. Voxels below
+	 * Hᵀ1 on the object domain after a PSF change ({@link Sensitivity}, from a summed-area table of h). Voxels below
 	 * {@link EdgeMode#MIN_SENSITIVITY} of the largest value are held at zero, as in the non-blind engine; a
 	 * voxel that was held and is seen again restarts from the starting level.
 	 */
 	private void updateSensitivity() {
-		final int sxn = kx + 1, sxy = (kx + 1) * (ky + 1);
-		final double[] sat = new double[sxy * (kz + 1)];
-		for (int z = 0; z < kz; z++)
-			for (int yy = 0; yy < ky; yy++) {
-				double row = 0;
-				for (int xx = 0; xx < kx; xx++) {
-					row += h[xx + kx * (yy + ky * z)];
-					final int q = (xx + 1) + sxn * (yy + 1) + sxy * (z + 1);
-					sat[q] = row + sat[q - sxn] + sat[q - sxy] - sat[q - sxn - sxy];
-				}
-			}
-		final int[][] lo = new int[3][], hi = new int[3][];
-		final int[] kk = { kx, ky, kz }, nn = { nx, ny, nz }, mm = { mx, my, mz };
-		for (int d = 0; d < 3; d++) {
-			lo[d] = new int[mm[d]];
-			hi[d] = new int[mm[d]];
-			for (int l = 0; l < mm[d]; l++) {
-				lo[d][l] = Math.max(0, kk[d] - 1 - l);
-				hi[d][l] = Math.max(lo[d][l], Math.min(kk[d], kk[d] - 1 - l + nn[d]));
-			}
-		}
-		final float[] sens = new float[mx * my * mz];
-		final double[] rowMax = new double[my * mz];
-		Parallel.forRange(my * mz, r -> {
-			final int iy = r % my, iz = r / my, y0 = lo[1][iy], y1 = hi[1][iy], z0 = lo[2][iz], z1 = hi[2][iz];
-			float max = 0;
-			for (int i = 0; i < mx; i++) {
-				final int x0 = lo[0][i], x1 = hi[0][i];
-				final double v = sat[x1 + sxn * y1 + sxy * z1] - sat[x0 + sxn * y1 + sxy * z1] - sat[x1 + sxn * y0 + sxy * z1]
-						- sat[x1 + sxn * y1 + sxy * z0] + sat[x0 + sxn * y0 + sxy * z1] + sat[x0 + sxn * y1 + sxy * z0]
-						+ sat[x1 + sxn * y0 + sxy * z0] - sat[x0 + sxn * y0 + sxy * z0];
-				final float f = (float) Math.max(0, v);
-				sens[r * mx + i] = f;
-				max = Math.max(max, f);
-			}
-			rowMax[r] = max;
-		});
-		double max = 0;
-		for (final double v : rowMax) max = Math.max(max, v);
+		final float[] sens = Sensitivity.of(h, new int[] { kx, ky, kz }, new int[] { nx, ny, nz });
+		final float max = Sensitivity.max(sens);
 		final float min = (float) (EdgeMode.MIN_SENSITIVITY * max);
 		final float[] oldInv = invW;
 		final boolean[] restarted = new boolean[1];

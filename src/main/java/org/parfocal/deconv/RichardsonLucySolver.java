@@ -34,9 +34,10 @@ import org.parfocal.fft.RealFft;
  * Rows of t outside these boxes are never read, so they are never cleared. Reductions are per row, combined in
  * row order with compensation, so 1 and N threads give identical results.
  * <p>
- * <b>Memory</b>: the grid t (in place: the real grid and its spectrum share it) and the transfer function
- * (≈ p each, rows of 2·(px/2 + 1) floats), the object x and, non-circulant, 1/Hᵀ1 (m each), the data (n).
- * The accelerated method adds three object arrays.
+ * <b>Memory</b>: the grid t (in place: the real grid and its spectrum share it) and the transfer function,
+ * rearranged line by line for the fused product ({@link RealFft.LineTransfer}; ≈ p each, 2·(px/2 + 1)·py·pz
+ * floats; t first holds the transfer function in the spectrum layout, so no third grid is needed), the object x and, non-circulant, 1/Hᵀ1 (m each), the data (n).
+ * The accelerated method adds two object arrays.
  */
 final class RichardsonLucySolver {
 
@@ -51,12 +52,13 @@ final class RichardsonLucySolver {
 	private final RealFft fft;
 	/** Rows of the grid holding the object domain and the image window. */
 	private final RealFft.Rows objectRows, windowRows;
-	private final float[] transfer, t, x, invW, y;
+	private final RealFft.LineTransfer transfer;
+	private final float[] t, x, invW, y;
 	private final float b, floor;
 	private final DeconvolutionMethod method;
 	private final float lambda, eps;
-	private final float[] xPrev, g1, g2;
-	private float[] gNew, gOld;
+	/** Accelerated method: the last RL output x_k, and the last RL step g (overwritten in place by the next). */
+	private final float[] xPrev, g;
 	/** Per-row partial sums: of window rows (ratio) and of object rows (update). */
 	private final double[] w1, w2, r1, r2, r3, r4, norm3;
 	/** Extrapolation factor of the next prediction and the number of RL steps done (accelerated method). */
@@ -96,10 +98,11 @@ final class RichardsonLucySolver {
 		this.rs = fft.rowStride();
 		this.objectRows = fft.rows(0, my, 0, mz);
 		this.windowRows = fft.rows(wy, wy + ny, wz, wz + nz);
-		this.transfer = fft.newGrid();
-		placeKernel(psf, transfer);
-		fft.transferFunctionInPlace(transfer);
-		this.t = fft.newGrid();
+		final float[] spectrum = fft.newGrid();
+		placeKernel(psf, spectrum);
+		fft.transferFunctionInPlace(spectrum);
+		this.transfer = fft.lineTransfer(spectrum, fft.newGrid());
+		this.t = spectrum; // the spectrum-layout copy is not needed any more: it becomes the working grid
 		w1 = new double[ny * nz];
 		w2 = new double[ny * nz];
 		final int rows = my * mz;
@@ -115,15 +118,12 @@ final class RichardsonLucySolver {
 		this.floor = (float) Math.max(FLOOR * mean, Float.MIN_NORMAL);
 		this.lambda = method == DeconvolutionMethod.RL_TV ? (float) regularization : 0f;
 		this.eps = (float) Math.max(TV_EPSILON * mean, Float.MIN_NORMAL);
-		this.invW = mode == EdgeMode.NON_CIRCULANT ? sensitivityInverse() : null;
+		this.invW = mode == EdgeMode.NON_CIRCULANT ? Sensitivity.invert(Sensitivity.of(psf.data(), k, n)) : null;
 		this.x = new float[mx * my * mz];
 		initialise(initial, (float) Math.max(mean - background, floor));
 		final boolean acc = method == DeconvolutionMethod.RL_ACCELERATED;
 		xPrev = acc ? new float[x.length] : null;
-		g1 = acc ? new float[x.length] : null;
-		g2 = acc ? new float[x.length] : null;
-		gNew = g1;
-		gOld = g2;
+		g = acc ? new float[x.length] : null;
 		copyObjectToGrid();
 	}
 
@@ -136,7 +136,7 @@ final class RichardsonLucySolver {
 			m *= mode == EdgeMode.NON_CIRCULANT ? n[d] + k[d] - 1 : n[d];
 			img *= n[d];
 		}
-		final int objects = 1 + (mode == EdgeMode.NON_CIRCULANT ? 1 : 0) + (method == DeconvolutionMethod.RL_ACCELERATED ? 3 : 0);
+		final int objects = 1 + (mode == EdgeMode.NON_CIRCULANT ? 1 : 0) + (method == DeconvolutionMethod.RL_ACCELERATED ? 2 : 0);
 		return 4 * (2 * s + objects * m + img);
 	}
 
@@ -158,31 +158,6 @@ final class RichardsonLucySolver {
 				}
 			}
 		}
-	}
-
-	/** 1 / Hᵀ1_window on the object domain, 0 where Hᵀ1 is below {@link EdgeMode#MIN_SENSITIVITY} of its maximum. */
-	private float[] sensitivityInverse() {
-		Parallel.forRange(ny * nz, i -> {
-			final int o = (wy + i % ny + py * (wz + i / ny)) * rs;
-			Arrays.fill(t, o, o + px, 0f);
-			Arrays.fill(t, o + wx, o + wx + nx, 1f);
-		});
-		fft.convolveInPlace(t, transfer, true, windowRows, objectRows, null);
-		float max = 0;
-		for (int r = 0; r < my * mz; r++) {
-			final int o = gridRowOfObjectRow(r) * rs;
-			for (int i = 0; i < mx; i++) max = Math.max(max, t[o + i]);
-		}
-		final float min = (float) (EdgeMode.MIN_SENSITIVITY * max);
-		final float[] inv = new float[mx * my * mz];
-		Parallel.forRange(my * mz, r -> {
-			final int o = gridRowOfObjectRow(r) * rs, c = r * mx;
-			for (int i = 0; i < mx; i++) {
-				final float v = t[o + i];
-				inv[c + i] = v >= min ? 1f / v : 0f;
-			}
-		});
-		return inv;
 	}
 
 	private void initialise(final float[] initial, final float constant) {
@@ -277,13 +252,8 @@ final class RichardsonLucySolver {
 	 */
 	private double[] update() {
 		final boolean acc = method == DeconvolutionMethod.RL_ACCELERATED;
-		if (acc) {
-			final float[] s = gOld;
-			gOld = gNew;
-			gNew = s;
-		}
-		final float[] gn = gNew, go = gOld, ref = acc ? xPrev : null;
-		fft.convolveInPlace(t, transfer, true, windowRows, objectRows, (r, o) -> {
+		final float[] gs = g, ref = acc ? xPrev : null;
+		fft.convolveInPlace(t, transfer, true, windowRows, null, objectRows, (r, o) -> {
 			final int or = objectRow(r);
 			final int c = or * mx;
 			double change = 0, before = 0, after = 0, dot = 0, norm = 0;
@@ -293,9 +263,9 @@ final class RichardsonLucySolver {
 				if (invW != null) v = v * invW[c + i];
 				if (!(v > 0)) v = 0;
 				if (acc) {
-					final float g = v - xo, gp = go[c + i], prev = ref[c + i];
-					gn[c + i] = g;
-					dot += (double) g * gp;
+					final float gk = v - xo, gp = gs[c + i], prev = ref[c + i];
+					gs[c + i] = gk; // the previous step is read just before: one array for both
+					dot += (double) gk * gp;
 					norm += (double) gp * gp;
 					change += Math.abs(v - prev);
 					before += prev;
@@ -356,7 +326,7 @@ final class RichardsonLucySolver {
 	 */
 	private double[] updateTv() {
 		final int plane = mx * my;
-		fft.convolveInPlace(t, transfer, true, windowRows, objectRows, (r, o) -> {
+		fft.convolveInPlace(t, transfer, true, windowRows, null, objectRows, (r, o) -> {
 			final int or = objectRow(r);
 			final double[] acc = new double[3];
 			TvRow.update(x, t, o, or, invW, lambda, eps, mx, my, mz, acc);
