@@ -36,7 +36,8 @@ import org.parfocal.fft.RealFft;
  * <p>
  * <b>Memory</b>: the grid t (in place: the real grid and its spectrum share it) and the transfer function,
  * rearranged line by line for the fused product ({@link RealFft.LineTransfer}; ≈ p each, 2·(px/2 + 1)·py·pz
- * floats; t first holds the transfer function in the spectrum layout, so no third grid is needed), the object x and, non-circulant, 1/Hᵀ1 (m each), the data (n).
+ * floats; t first holds the transfer function in the spectrum layout, so no third grid is needed), the object
+ * x and, non-circulant, 1/Hᵀ1 from box sums of the PSF ({@link Sensitivity}) (m each), the data (n).
  * The accelerated method adds two object arrays.
  */
 final class RichardsonLucySolver {
