@@ -28,6 +28,11 @@ import org.parfocal.core.Parallel;
  * JTransforms plans and line buffers (plans hold state), and JTransforms' global thread setting is left
  * alone: lines shorter than its 1D threshold (8192) are transformed single-threaded inside.
  * <p>
+ * <b>Lengths 3·2^k and 5·2^k</b> (most padded sizes) go through one hand-written radix-3 or radix-5 step on
+ * top of JTransforms' power-of-two plans ({@link SplitFft}, and {@link SplitRealFft} for real rows of twice
+ * such a length), which is markedly faster than its mixed-radix path; {@code -Dparfocal.fft.noSplit=true}
+ * turns this off (for comparisons).
+ * <p>
  * <b>In-place layout and pruning.</b> {@link #convolveInPlace}, {@link #forwardInPlace} and
  * {@link #inverseInPlace} work on one array whose rows are {@link #rowStride()} = 2·h floats long, so that a
  * row holds either nx real values or its h complex values: the padded real array and the spectrum are the
@@ -47,6 +52,8 @@ public final class RealFft {
 	 * deconvolution benchmark: blocks of 8 columns (one cache line per row) cost 10 % more per iteration.
 	 */
 	static final int BLOCK_FLOATS = Integer.getInteger("parfocal.fft.blockFloats", 1 << 15);
+	/** Whether complex lines of 3·2^k and 5·2^k go through {@link SplitFft} (a switch for benchmarks and tests). */
+	static final boolean SPLIT = !Boolean.getBoolean("parfocal.fft.noSplit");
 	/** Fewest columns in a block: one cache line of complex floats. */
 	private static final int MIN_BLOCK = 8;
 
@@ -426,7 +433,12 @@ public final class RealFft {
 			spec[o + 1] = 0;
 			return;
 		}
-		lines.get().x.realForward(spec, o);
+		final Lines l = lines.get();
+		if (l.xSplit != null) {
+			l.xSplit.forward(spec, o);
+			return;
+		}
+		l.x.realForward(spec, o);
 		// JTransforms packs the last real-valued (even nx) or the last imaginary part (odd nx) into a[1].
 		final float packed = spec[o + 1];
 		spec[o + 1] = 0;
@@ -447,8 +459,13 @@ public final class RealFft {
 		if (nx == 1) {
 			dst[r * dstStride] = spec[o];
 		} else {
-			spec[o + 1] = spec[o + nx];
-			lines.get().x.realInverse(spec, o, true);
+			final Lines l = lines.get();
+			if (l.xSplit != null) {
+				l.xSplit.inverse(spec, o);
+			} else {
+				spec[o + 1] = spec[o + nx];
+				l.x.realInverse(spec, o, true);
+			}
 			if (dst != spec || dstStride != stride) System.arraycopy(spec, o, dst, r * dstStride, nx);
 		}
 		if (after != null) after.row(r, r * dstStride);
@@ -488,31 +505,49 @@ public final class RealFft {
 		final Lines l = lines.get();
 		final FloatFFT_1D plan = axis == 1 ? l.y : l.z;
 		final float[][] buf = axis == 1 ? l.yBuf : l.zBuf;
-		gather(spec, base, stride, n, nb, buf, r0, r1);
+		final SplitFft split = axis == 1 ? l.ySplit : l.zSplit;
+		gather(spec, base, stride, n, nb, buf, r0, r1, split == null ? null : split.position);
 		for (int b = 0; b < nb; b++) {
-			if (forward || t != null) plan.complexForward(buf[b]);
+			if (forward || t != null) {
+				if (split != null) split.forward(buf[b]);
+				else plan.complexForward(buf[b]);
+			}
 			if (t != null) {
 				if (tLines) multiply(buf[b], 0, t, 2 * n * (outer * h + kx0 + b), n, conj);
 				else multiplyStrided(buf[b], t, base + 2 * b, stride, n, conj);
+				if (split != null) split.deinterleave(buf[b]);
 			}
-			if (!forward || t != null) plan.complexInverse(buf[b], scale);
+			if (!forward || t != null) {
+				if (split != null) split.inverse(buf[b], scale);
+				else plan.complexInverse(buf[b], scale);
+			}
 		}
 		scatter(buf, spec, base, stride, nb, w0, w1);
 	}
 
-	/** Lines of buf ← entries [r0, r1) of nb adjacent columns, zero elsewhere. */
+	/**
+	 * Lines of buf ← entries [r0, r1) of nb adjacent columns, zero elsewhere; entry i goes to complex position
+	 * {@code position[i]} of its line if {@code position} is not null (the de-interleaved layout of
+	 * {@link SplitFft}), to position i otherwise.
+	 */
 	private static void gather(final float[] spec, final int base, final int stride, final int n, final int nb, final float[][] buf, final int r0,
-			final int r1) {
+			final int r1, final int[] position) {
 		if (r0 > 0 || r1 < n)
 			for (int b = 0; b < nb; b++) {
-				Arrays.fill(buf[b], 0, 2 * r0, 0f);
-				Arrays.fill(buf[b], 2 * r1, 2 * n, 0f);
+				if (position != null) {
+					Arrays.fill(buf[b], 0, 2 * n, 0f);
+				} else {
+					Arrays.fill(buf[b], 0, 2 * r0, 0f);
+					Arrays.fill(buf[b], 2 * r1, 2 * n, 0f);
+				}
 			}
-		for (int i = r0, o = base + r0 * stride; i < r1; i++, o += stride)
+		for (int i = r0, o = base + r0 * stride; i < r1; i++, o += stride) {
+			final int p = 2 * (position == null ? i : position[i]);
 			for (int b = 0; b < nb; b++) {
-				buf[b][2 * i] = spec[o + 2 * b];
-				buf[b][2 * i + 1] = spec[o + 2 * b + 1];
+				buf[b][p] = spec[o + 2 * b];
+				buf[b][p + 1] = spec[o + 2 * b + 1];
 			}
+		}
 	}
 
 	/** Entries [w0, w1) of nb adjacent columns ← lines of buf. */
@@ -554,5 +589,9 @@ public final class RealFft {
 		final FloatFFT_1D z = nz > 1 ? new FloatFFT_1D(nz) : null;
 		final float[][] yBuf = ny > 1 ? new float[blockY][2 * ny] : null;
 		final float[][] zBuf = nz > 1 ? new float[blockZ][2 * nz] : null;
+		/** Split plans for lengths 3·2^k and 5·2^k, faster than JTransforms' mixed-radix path (see {@link SplitFft}). */
+		final SplitRealFft xSplit = nx > 1 && SPLIT ? SplitRealFft.forLength(nx) : null;
+		final SplitFft ySplit = ny > 1 && SPLIT ? SplitFft.forLength(ny) : null;
+		final SplitFft zSplit = nz > 1 && SPLIT ? SplitFft.forLength(nz) : null;
 	}
 }

@@ -149,7 +149,7 @@ class InPlacePrunedFftTest {
 	 * against the pruned in-place path with a strict input box (prime and even sizes).
 	 */
 	@ParameterizedTest(name = "{0} x {1} x {2}")
-	@CsvSource({ "7,11,5", "10,8,6", "9,1,1" })
+	@CsvSource({ "7,11,5", "10,8,6", "9,1,1", "4,48,3", "3,5,80", "5,96,1", "96,3,2", "64,1,1" })
 	void prunedConvolutionEqualsDirectSummation(final int nx, final int ny, final int nz) {
 		final RealFft f = new RealFft(nx, ny, nz);
 		final float[] h = random(41, f.realLength()), x = random(43, f.realLength());
