@@ -72,14 +72,29 @@ public final class DeconvolutionBenchmark {
 		final long padded = (long) p[0] * p[1] * p[2];
 		System.out.printf(Locale.ROOT, "%nimage %d x %d x %d (z y x), PSF %d x %d x %d, padded %d x %d x %d = %.1f M voxels%n", n[2], n[1], n[0], PSF[2],
 				PSF[1], PSF[0], p[2], p[1], p[0], padded / 1e6);
-		final double[] iter = new double[3], fft = new double[3];
+		// rounds interleave 1 and 2 threads, so that a drift of a shared machine hits both alike; medians of rounds
+		final int rounds = 3;
+		final double[][] iter = new double[3][rounds], fft = new double[3][rounds];
+		for (int round = 0; round < rounds; round++)
+			for (final int threads : new int[] { 1, 2 }) {
+				final int r = round;
+				fft[threads][r] = Parallelization.runWithNumThreads(threads, () -> bareFft(p));
+				iter[threads][r] = Parallelization.runWithNumThreads(threads, () -> secondsPerIteration(image, psf, DeconvolutionMethod.RL, 5));
+			}
+		final double[] it = new double[3], ff = new double[3];
 		for (final int threads : new int[] { 1, 2 }) {
-			fft[threads] = Parallelization.runWithNumThreads(threads, () -> bareFft(p));
-			iter[threads] = Parallelization.runWithNumThreads(threads, () -> secondsPerIteration(image, psf, 5));
-			System.out.printf(Locale.ROOT, "  %d thread(s): RL iteration %.3f s | bare FFT bound %.3f s | ratio %.3f%n", threads, iter[threads], fft[threads],
-					iter[threads] / fft[threads]);
+			it[threads] = median(iter[threads]);
+			ff[threads] = median(fft[threads]);
+			System.out.printf(Locale.ROOT, "  %d thread(s): RL iteration %.3f s | bare FFT bound %.3f s | ratio %.3f (medians of %d rounds)%n", threads,
+					it[threads], ff[threads], it[threads] / ff[threads], rounds);
 		}
-		System.out.printf(Locale.ROOT, "  speed-up 2 threads vs 1: %.2f (FFT bound alone: %.2f)%n", iter[1] / iter[2], fft[1] / fft[2]);
+		final double[] speedUps = new double[rounds];
+		for (int r = 0; r < rounds; r++) speedUps[r] = iter[1][r] / iter[2][r];
+		Arrays.sort(speedUps);
+		System.out.printf(Locale.ROOT, "  speed-up 2 threads vs 1: %.2f (rounds %.2f to %.2f; FFT bound alone: %.2f)%n", it[1] / it[2], speedUps[0],
+				speedUps[rounds - 1], ff[1] / ff[2]);
+		final double acc = Parallelization.runWithNumThreads(2, () -> secondsPerIteration(image, psf, DeconvolutionMethod.RL_ACCELERATED, 6));
+		System.out.printf(Locale.ROOT, "  accelerated RL iteration (2 threads) %.3f s = %.2f x a plain one%n", acc, acc / it[2]);
 		// memory: the live heap measured by a full GC inside an iteration (all solver arrays live), minus the heap
 		// before the run (the input image); JMX pool peaks are also printed, an upper bound with garbage
 		final long base = usedAfterGc();
@@ -98,10 +113,10 @@ public final class DeconvolutionBenchmark {
 	 * thread, so its CPU time per iteration is printed too: a figure that a busy shared machine disturbs far
 	 * less than wall time.
 	 */
-	private static double secondsPerIteration(final Volume image, final Volume psf, final int iterations) {
+	private static double secondsPerIteration(final Volume image, final Volume psf, final DeconvolutionMethod method, final int iterations) {
 		final List<Long> stamps = new ArrayList<>(), cpu = new ArrayList<>();
 		final ThreadMXBean tb = ManagementFactory.getThreadMXBean();
-		Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, iterations), null, Monitor.NONE, (r, v) -> {
+		Deconvolution.run(image, psf, options(method, iterations), null, Monitor.NONE, (r, v) -> {
 			stamps.add(System.nanoTime());
 			cpu.add(tb.getCurrentThreadCpuTime());
 		});
@@ -111,7 +126,7 @@ public final class DeconvolutionBenchmark {
 			c[i - 1] = (cpu.get(i) - cpu.get(i - 1)) / 1e9;
 		}
 		if (Parallelization.getTaskExecutor().getParallelism() == 1)
-			System.out.printf(Locale.ROOT, "    1 thread: RL iteration CPU time %.3f s (wall %.3f s)%n", median(c), median(d));
+			System.out.printf(Locale.ROOT, "    1 thread: %s iteration CPU time %.3f s (wall %.3f s)%n", method, median(c), median(d));
 		return median(d);
 	}
 
@@ -152,14 +167,11 @@ public final class DeconvolutionBenchmark {
 
 	private static void timeToQuality(final Volume image, final Volume psf) {
 		Parallelization.runWithNumThreads(2, () -> {
-			long s = System.nanoTime();
 			final DeconvolutionResult plain = Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, 50), Monitor.NONE);
-			final double plainSeconds = (System.nanoTime() - s) / 1e9;
 			final double target = plain.logLikelihood();
 			final List<double[]> reports = new ArrayList<>();
-			final long start = System.nanoTime();
 			Deconvolution.run(image, psf, options(DeconvolutionMethod.RL_ACCELERATED, 50), null, Monitor.NONE,
-					(r, v) -> reports.add(new double[] { r.iteration(), r.logLikelihood(), (System.nanoTime() - start) / 1e9 }));
+					(r, v) -> reports.add(new double[] { r.iteration(), r.logLikelihood() }));
 			int reached = -1;
 			for (final double[] r : reports)
 				if (r[1] >= target) {
@@ -171,14 +183,23 @@ public final class DeconvolutionBenchmark {
 				return null;
 			}
 			// the report of iteration j is the log-likelihood of the extrapolated point entering it; the RL step from
-			// that point cannot lower it (EM property), so a run of j iterations ends at or above the target: verified
-			final int k = reached;
-			s = System.nanoTime();
-			final DeconvolutionResult acc = Deconvolution.run(image, psf, options(DeconvolutionMethod.RL_ACCELERATED, k), Monitor.NONE);
-			final double accSeconds = (System.nanoTime() - s) / 1e9;
+			// that point cannot lower it (EM property), so a run of j iterations ends at or above the target: verified.
+			// Whole runs are timed (set-up and the final log-likelihood included), plain and accelerated interleaved.
+			final int k = reached, rounds = 3;
+			final double[] plainSeconds = new double[rounds], accSeconds = new double[rounds];
+			DeconvolutionResult acc = null;
+			for (int round = 0; round < rounds; round++) {
+				long s = System.nanoTime();
+				Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, 50), Monitor.NONE);
+				plainSeconds[round] = (System.nanoTime() - s) / 1e9;
+				s = System.nanoTime();
+				acc = Deconvolution.run(image, psf, options(DeconvolutionMethod.RL_ACCELERATED, k), Monitor.NONE);
+				accSeconds[round] = (System.nanoTime() - s) / 1e9;
+			}
 			System.out.printf(Locale.ROOT,
-					"  time-to-quality (2 threads): plain RL 50 iterations %.1f s (log-likelihood %.6g); accelerated RL %d iterations %.1f s (%.6g, %s); ratio %.2f%n",
-					plainSeconds, target, k, accSeconds, acc.logLikelihood(), acc.logLikelihood() >= target ? "reached" : "NOT reached", plainSeconds / accSeconds);
+					"  time-to-quality (2 threads, medians of %d rounds): plain RL 50 iterations %.2f s (log-likelihood %.7g); accelerated RL %d iterations %.2f s (%.7g, %s); ratio %.2f%n",
+					rounds, median(plainSeconds), target, k, median(accSeconds), acc.logLikelihood(), acc.logLikelihood() >= target ? "reached" : "NOT reached",
+					median(plainSeconds) / median(accSeconds));
 			return null;
 		});
 	}
