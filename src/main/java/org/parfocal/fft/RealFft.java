@@ -513,9 +513,13 @@ public final class RealFft {
 				else plan.complexForward(buf[b]);
 			}
 			if (t != null) {
-				if (tLines) multiply(buf[b], 0, t, 2 * n * (outer * h + kx0 + b), n, conj);
-				else multiplyStrided(buf[b], t, base + 2 * b, stride, n, conj);
-				if (split != null) split.deinterleave(buf[b]);
+				if (tLines && split != null) {
+					split.multiplyDeinterleave(buf[b], t, 2 * n * (outer * h + kx0 + b), conj);
+				} else {
+					if (tLines) multiply(buf[b], 0, t, 2 * n * (outer * h + kx0 + b), n, conj);
+					else multiplyStrided(buf[b], t, base + 2 * b, stride, n, conj);
+					if (split != null) split.deinterleave(buf[b]);
+				}
 			}
 			if (!forward || t != null) {
 				if (split != null) split.inverse(buf[b], scale);

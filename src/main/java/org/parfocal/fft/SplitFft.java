@@ -93,6 +93,24 @@ final class SplitFft {
 		System.arraycopy(scratch, 0, line, 0, 2 * n);
 	}
 
+	/**
+	 * line ← line · t (complex, natural order; t from {@code to}, conjugated if asked), rearranged into the
+	 * de-interleaved layout on the way: the product of a fused convolution, ready for {@link #inverse}.
+	 */
+	void multiplyDeinterleave(final float[] line, final float[] t, final int to, final boolean conj) {
+		final float sign = conj ? -1f : 1f;
+		final int[] pos = position;
+		final float[] out = scratch;
+		for (int j = 0; j < n; j++) {
+			final float ar = line[2 * j], ai = line[2 * j + 1];
+			final float br = t[to + 2 * j], bi = sign * t[to + 2 * j + 1];
+			final int p = 2 * pos[j];
+			out[p] = ar * br - ai * bi;
+			out[p + 1] = ar * bi + ai * br;
+		}
+		System.arraycopy(out, 0, line, 0, 2 * n);
+	}
+
 	/** scratch ← the radix-q step on the transformed sub-sequences in w; sign −1 for the inverse kernel. */
 	private void stage(final float[] w, final float sign) {
 		if (q == 3) stage3(w, sign);

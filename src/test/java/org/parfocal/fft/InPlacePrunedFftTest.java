@@ -28,7 +28,7 @@ class InPlacePrunedFftTest {
 	/** Even, odd and prime lengths; 1D, 2D, 3D; nx = 1 and ny = 1 with nz > 1. */
 	static Stream<Arguments> sizes() {
 		return Stream.of(new int[][] { { 8, 1, 1 }, { 7, 1, 1 }, { 6, 5, 1 }, { 9, 7, 1 }, { 11, 13, 1 }, { 10, 7, 3 }, { 13, 11, 7 }, { 12, 9, 6 },
-				{ 1, 4, 3 }, { 5, 1, 6 }, { 16, 10, 5 } }).map(s -> Arguments.of(s[0], s[1], s[2]));
+				{ 1, 4, 3 }, { 5, 1, 6 }, { 16, 10, 5 }, { 96, 48, 80 }, { 20, 96, 1 } }).map(s -> Arguments.of(s[0], s[1], s[2]));
 	}
 
 	private static float[] random(final long seed, final int n) {
