@@ -38,7 +38,7 @@ public final class ConvolutionOperator {
 	private final int[] n, k, before, padded;
 	private final Boundary boundary;
 	private final RealFft fft;
-	private final float[] transfer;
+	private final RealFft.LineTransfer transfer;
 	/** Source index along each axis for every padded position, -1 where the extension is zero. */
 	private final int[][] map;
 	/** Floats per row of the in-place grid. */
@@ -64,9 +64,11 @@ public final class ConvolutionOperator {
 		}
 		this.fft = new RealFft(padded[0], padded[1], padded[2]);
 		this.rs = fft.rowStride();
-		this.transfer = fft.newGrid();
-		wrappedKernel(psf, transfer);
-		fft.transferFunctionInPlace(transfer);
+		final float[] spectrum = fft.newGrid();
+		wrappedKernel(psf, spectrum);
+		fft.transferFunctionInPlace(spectrum);
+		// rearranged for the fused product (sequential reads); the spectrum-layout copy is dropped
+		this.transfer = fft.lineTransfer(spectrum, fft.newGrid());
 		this.extendedRows = fft.rows(first(map[1]), last(map[1]) + 1, first(map[2]), last(map[2]) + 1);
 		this.windowRows = fft.rows(before[1], before[1] + n[1], before[2], before[2] + n[2]);
 	}
@@ -163,7 +165,7 @@ public final class ConvolutionOperator {
 		checkImage(in);
 		checkImage(out);
 		extend(in, ws.grid);
-		fft.convolveInPlace(ws.grid, transfer, false, extendedRows, windowRows, null);
+		fft.convolveInPlace(ws.grid, transfer, false, extendedRows, null, windowRows, null);
 		crop(ws.grid, out);
 	}
 
@@ -172,7 +174,7 @@ public final class ConvolutionOperator {
 		checkImage(in);
 		checkImage(out);
 		embed(in, ws.grid);
-		fft.convolveInPlace(ws.grid, transfer, true, windowRows, boundary == Boundary.ZERO ? windowRows : extendedRows, null);
+		fft.convolveInPlace(ws.grid, transfer, true, windowRows, null, boundary == Boundary.ZERO ? windowRows : extendedRows, null);
 		fold(ws.grid, out);
 	}
 
