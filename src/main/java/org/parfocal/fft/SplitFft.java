@@ -29,8 +29,8 @@ final class SplitFft {
 	/** Complex position of natural index j in the de-interleaved layout. */
 	final int[] position;
 	private final FloatFFT_1D sub;
-	/** exp(−2πi r·k/n) for r in [0, q), k in [0, m): (re, im) at 2(r·m + k). */
-	private final float[] twiddle;
+	/** exp(∓2πi r·k/n) for r in [0, q), k in [0, m): (re, im) at 2(r·m + k); forward and inverse (conjugate). */
+	private final float[] twiddle, twiddleInverse;
 	private final float[] scratch;
 
 	private static final float C51 = (float) Math.cos(2 * Math.PI / 5), C52 = (float) Math.cos(4 * Math.PI / 5);
@@ -55,11 +55,13 @@ final class SplitFft {
 		this.position = new int[n];
 		for (int j = 0; j < n; j++) position[j] = (j % q) * m + j / q;
 		this.twiddle = new float[2 * n];
+		this.twiddleInverse = new float[2 * n];
 		for (int r = 0; r < q; r++)
 			for (int k = 0; k < m; k++) {
 				final double a = -2 * Math.PI * ((long) r * k % n) / n;
-				twiddle[2 * (r * m + k)] = (float) Math.cos(a);
+				twiddle[2 * (r * m + k)] = twiddleInverse[2 * (r * m + k)] = (float) Math.cos(a);
 				twiddle[2 * (r * m + k) + 1] = (float) Math.sin(a);
+				twiddleInverse[2 * (r * m + k) + 1] = -(float) Math.sin(a);
 			}
 		this.scratch = new float[2 * n];
 	}
@@ -113,18 +115,19 @@ final class SplitFft {
 
 	/** scratch ← the radix-q step on the transformed sub-sequences in w; sign −1 for the inverse kernel. */
 	private void stage(final float[] w, final float sign) {
-		if (q == 3) stage3(w, sign);
-		else stage5(w, sign);
+		final float[] tw = sign > 0 ? twiddle : twiddleInverse;
+		if (q == 3) stage3(w, tw, sign);
+		else stage5(w, tw, sign);
 	}
 
-	private void stage3(final float[] w, final float sign) {
-		final float[] tw = twiddle, out = scratch;
+	private void stage3(final float[] w, final float[] tw, final float sign) {
+		final float[] out = scratch;
 		final float s = sign * S31;
 		for (int k = 0; k < m; k++) {
 			final int i1 = 2 * (m + k), i2 = 2 * (2 * m + k);
 			final float a0r = w[2 * k], a0i = w[2 * k + 1];
-			final float b1r = w[i1], b1i = w[i1 + 1], t1r = tw[i1], t1i = sign * tw[i1 + 1];
-			final float b2r = w[i2], b2i = w[i2 + 1], t2r = tw[i2], t2i = sign * tw[i2 + 1];
+			final float b1r = w[i1], b1i = w[i1 + 1], t1r = tw[i1], t1i = tw[i1 + 1];
+			final float b2r = w[i2], b2i = w[i2 + 1], t2r = tw[i2], t2i = tw[i2 + 1];
 			final float a1r = b1r * t1r - b1i * t1i, a1i = b1r * t1i + b1i * t1r;
 			final float a2r = b2r * t2r - b2i * t2i, a2i = b2r * t2i + b2i * t2r;
 			final float sr = a1r + a2r, si = a1i + a2i, dr = a1r - a2r, di = a1i - a2i;
@@ -138,16 +141,16 @@ final class SplitFft {
 		}
 	}
 
-	private void stage5(final float[] w, final float sign) {
-		final float[] tw = twiddle, out = scratch;
+	private void stage5(final float[] w, final float[] tw, final float sign) {
+		final float[] out = scratch;
 		final float s1 = sign * S51, s2 = sign * S52;
 		for (int k = 0; k < m; k++) {
 			final int i1 = 2 * (m + k), i2 = 2 * (2 * m + k), i3 = 2 * (3 * m + k), i4 = 2 * (4 * m + k);
 			final float a0r = w[2 * k], a0i = w[2 * k + 1];
-			final float a1r = w[i1] * tw[i1] - w[i1 + 1] * sign * tw[i1 + 1], a1i = w[i1] * sign * tw[i1 + 1] + w[i1 + 1] * tw[i1];
-			final float a2r = w[i2] * tw[i2] - w[i2 + 1] * sign * tw[i2 + 1], a2i = w[i2] * sign * tw[i2 + 1] + w[i2 + 1] * tw[i2];
-			final float a3r = w[i3] * tw[i3] - w[i3 + 1] * sign * tw[i3 + 1], a3i = w[i3] * sign * tw[i3 + 1] + w[i3 + 1] * tw[i3];
-			final float a4r = w[i4] * tw[i4] - w[i4 + 1] * sign * tw[i4 + 1], a4i = w[i4] * sign * tw[i4 + 1] + w[i4 + 1] * tw[i4];
+			final float a1r = w[i1] * tw[i1] - w[i1 + 1] * tw[i1 + 1], a1i = w[i1] * tw[i1 + 1] + w[i1 + 1] * tw[i1];
+			final float a2r = w[i2] * tw[i2] - w[i2 + 1] * tw[i2 + 1], a2i = w[i2] * tw[i2 + 1] + w[i2 + 1] * tw[i2];
+			final float a3r = w[i3] * tw[i3] - w[i3 + 1] * tw[i3 + 1], a3i = w[i3] * tw[i3 + 1] + w[i3 + 1] * tw[i3];
+			final float a4r = w[i4] * tw[i4] - w[i4 + 1] * tw[i4 + 1], a4i = w[i4] * tw[i4 + 1] + w[i4 + 1] * tw[i4];
 			final float t1r = a1r + a4r, t1i = a1i + a4i, t2r = a2r + a3r, t2i = a2i + a3i;
 			final float t3r = a1r - a4r, t3i = a1i - a4i, t4r = a2r - a3r, t4i = a2i - a3i;
 			final float c1r = a0r + C51 * t1r + C52 * t2r, c1i = a0i + C51 * t1i + C52 * t2i;
