@@ -49,12 +49,10 @@ public final class Sensitivity {
 		final float[] sens = new float[mx * my * mz];
 		Parallel.forRange(my * mz, r -> {
 			final int iy = r % my, iz = r / my, y0 = sxn * lo[1][iy], y1 = sxn * hi[1][iy], z0 = sxy * lo[2][iz], z1 = sxy * hi[2][iz];
-			for (int i = 0; i < mx; i++) {
-				final int x0 = lo[0][i], x1 = hi[0][i];
-				final double v = sat[x1 + y1 + z1] - sat[x0 + y1 + z1] - sat[x1 + y0 + z1] - sat[x1 + y1 + z0] + sat[x0 + y0 + z1] + sat[x0 + y1 + z0]
-						+ sat[x1 + y0 + z0] - sat[x0 + y0 + z0];
-				sens[r * mx + i] = (float) Math.max(0, v);
-			}
+			// the y-z box sums of the table, per x: then each voxel is a difference of two of them
+			final double[] row = new double[kx + 1];
+			for (int xx = 0; xx <= kx; xx++) row[xx] = sat[xx + y1 + z1] - sat[xx + y0 + z1] - sat[xx + y1 + z0] + sat[xx + y0 + z0];
+			for (int i = 0, o = r * mx; i < mx; i++) sens[o + i] = (float) Math.max(0, row[hi[0][i]] - row[lo[0][i]]);
 		});
 		return sens;
 	}
@@ -72,9 +70,12 @@ public final class Sensitivity {
 	 */
 	public static float[] invert(final float[] sens) {
 		final float min = (float) (EdgeMode.MIN_SENSITIVITY * max(sens));
-		Parallel.forRange(sens.length, i -> {
-			final float v = sens[i];
-			sens[i] = v >= min && v > 0 ? 1f / v : 0f;
+		final int block = 1 << 16;
+		Parallel.forRange((sens.length + block - 1) / block, b -> {
+			for (int i = b * block, e = Math.min(sens.length, i + block); i < e; i++) {
+				final float v = sens[i];
+				sens[i] = v >= min && v > 0 ? 1f / v : 0f;
+			}
 		});
 		return sens;
 	}

@@ -273,12 +273,15 @@ public final class RealFft {
 		if (n == 1) {
 			System.arraycopy(transfer, 0, dst, 0, transfer.length);
 		} else {
-			Parallel.forRange(outerCount * h, line -> {
-				final int outer = line / h, kx = line % h;
-				final int src = 2 * (kx + h * outer), o = 2 * n * line;
+			// one outer index at a time: spectrum rows are read whole, and the lines written (h·n complex values)
+			// stay in cache until complete
+			Parallel.forRange(outerCount, outer -> {
 				for (int i = 0; i < n; i++) {
-					dst[o + 2 * i] = transfer[src + i * stride];
-					dst[o + 2 * i + 1] = transfer[src + i * stride + 1];
+					final int src = 2 * h * outer + i * stride;
+					for (int kx = 0, o = 2 * (n * h * outer + i); kx < h; kx++, o += 2 * n) {
+						dst[o] = transfer[src + 2 * kx];
+						dst[o + 1] = transfer[src + 2 * kx + 1];
+					}
 				}
 			});
 		}
