@@ -9,11 +9,11 @@ import org.jtransforms.fft.FloatFFT_1D;
  * X(k) = Σ_j x(j)·exp(−2πi jk/n) forward, the conjugate kernel inverse.
  * <p>
  * <b>Why by hand.</b> JTransforms takes lengths with factors 3 and 5 through its mixed-radix path, which is
- * much slower per value than its power-of-two path, and the padded sizes of deconvolution are mostly 3·2^k or
- * 5·2^k. This one step on top of its power-of-two plans costs 0.55–0.65 of the mixed-radix time per line
- * (forward + inverse, measured in one process, Java 17, one core: n = 320: 7.0 vs 11.6 ns per value; n = 96:
- * 6.0 vs 10.8), about 10 % less CPU time per deconvolution iteration. Other lengths go to JTransforms as they
- * are.
+ * slower per value than its power-of-two path and, measured here, uneven from one JVM run to the next; the
+ * padded sizes of deconvolution are mostly 3·2^k or 5·2^k. This one step on top of its power-of-two plans
+ * took 0.42–0.93 of the mixed-radix time per line over several runs of {@code bin/parfocal-bench lines}
+ * (forward + inverse, one core: n = 320 split 6.8–7.1 ns per value, JTransforms 7.6–16), and about 10 % less
+ * CPU time per deconvolution iteration; never more. Other lengths go to JTransforms as they are.
  * <p>
  * <b>Layout.</b> Input lines are given <i>de-interleaved</i>: value j sits at complex position
  * {@code position[j] = (j mod q)·m + j / q}, so that the q sub-sequences are contiguous (the caller writes

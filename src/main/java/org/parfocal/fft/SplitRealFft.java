@@ -9,8 +9,8 @@ package org.parfocal.fft;
  * these steps: E = (X(k) + conj X(n/2 − k))/2, O = i·W^−k·(X(k) − conj X(n/2 − k))/2, Z = E + O.
  * <p>
  * Why by hand: see {@link SplitFft}; JTransforms' real transform of such lengths takes its mixed-radix path,
- * which was a third of the time of a deconvolution iteration at 320 = 2·5·32 (JFR samples); this path costs
- * 0.61 of it there (forward + inverse, 5.0 vs 8.2 ns per value, measured in one process).
+ * which was a third of the time of a deconvolution iteration at 320 = 2·5·32 (JFR samples); this path took
+ * 0.51–0.93 of its time there over several runs (4.7–5.0 vs 5.1–9.6 ns per value, forward + inverse).
  * <p>
  * Rows are in the in-place layout of {@link RealFft}: n reals, or n/2 + 1 complex values (n + 2 floats), at
  * an offset of an array. One instance per thread.
