@@ -30,7 +30,7 @@ import org.parfocal.core.Parallel;
  * <p>
  * <b>Lengths 3·2^k and 5·2^k</b> (most padded sizes) go through one hand-written radix-3 or radix-5 step on
  * top of JTransforms' power-of-two plans ({@link SplitFft}, and {@link SplitRealFft} for real rows of twice
- * such a length), which is markedly faster than its mixed-radix path; {@code -Dparfocal.fft.noSplit=true}
+ * such a length), faster than its mixed-radix path (figures in SplitFft); {@code -Dparfocal.fft.noSplit=true}
  * turns this off (for comparisons).
  * <p>
  * <b>In-place layout and pruning.</b> {@link #convolveInPlace}, {@link #forwardInPlace} and
