@@ -28,9 +28,9 @@ import org.parfocal.core.Parallel;
  * JTransforms plans and line buffers (plans hold state), and JTransforms' global thread setting is left
  * alone: lines shorter than its 1D threshold (8192) are transformed single-threaded inside.
  * <p>
- * <b>Lengths 3·2^k and 5·2^k</b> (most padded sizes) go through one hand-written radix-3 or radix-5 step on
- * top of JTransforms' power-of-two plans ({@link SplitFft}, and {@link SplitRealFft} for real rows of twice
- * such a length), faster than its mixed-radix path (figures in SplitFft); {@code -Dparfocal.fft.noSplit=true}
+ * <b>Lengths 3^a·5^b·2^k</b> (most padded sizes) go through hand-written radix-3 and radix-5 steps on top of
+ * JTransforms' power-of-two plans ({@link SplitFft}, and {@link SplitRealFft} for real rows of twice such a
+ * length), faster than its mixed-radix path (figures in SplitFft); {@code -Dparfocal.fft.noSplit=true}
  * turns this off (for comparisons).
  * <p>
  * <b>In-place layout and pruning.</b> {@link #convolveInPlace}, {@link #forwardInPlace} and

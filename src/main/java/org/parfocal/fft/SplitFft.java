@@ -3,21 +3,23 @@ package org.parfocal.fft;
 import org.jtransforms.fft.FloatFFT_1D;
 
 /**
- * Complex DFT of length n = q·m with q = 3 or 5 and m a power of two (at least {@link #MIN_POWER}), as one
- * decimation-in-time step (Cooley &amp; Tukey, Math. Comp. 1965): q JTransforms power-of-two transforms of
- * length m, then a twiddle and a q-point DFT per output frequency. Same convention as JTransforms:
+ * Complex DFT of length n = q·m with q = 3 or 5 and m a power of two (at least {@link #MIN_POWER}) or itself
+ * such a length (so n = 3^a·5^b·2^k), as decimation-in-time steps (Cooley &amp; Tukey, Math. Comp. 1965): q
+ * transforms of length m (JTransforms' power-of-two plans at the bottom), then a twiddle and a q-point DFT per
+ * output frequency. Same convention as JTransforms:
  * X(k) = Σ_j x(j)·exp(−2πi jk/n) forward, the conjugate kernel inverse.
  * <p>
  * <b>Why by hand.</b> JTransforms takes lengths with factors 3 and 5 through its mixed-radix path, which is
  * slower per value than its power-of-two path and, measured here, uneven from one JVM run to the next; the
  * padded sizes of deconvolution are mostly 3·2^k or 5·2^k. This one step on top of its power-of-two plans
  * took 0.42–0.93 of the mixed-radix time per line over several runs of {@code bin/parfocal-bench lines}
- * (forward + inverse, one core: n = 320 split 6.8–7.1 ns per value, JTransforms 7.6–16), and about 10 % less
- * CPU time per deconvolution iteration; never more. Other lengths go to JTransforms as they are.
+ * (forward + inverse, one core: n = 320 split 6.8–7.1 ns per value, JTransforms 7.6–16; n = 576 = 3·3·64:
+ * 0.82), and about 10 % less CPU time per deconvolution iteration; never more. Other lengths (a factor 7 or
+ * more, or fewer than 16 in the power of two) go to JTransforms as they are.
  * <p>
  * <b>Layout.</b> Input lines are given <i>de-interleaved</i>: value j sits at complex position
- * {@code position[j] = (j mod q)·m + j / q}, so that the q sub-sequences are contiguous (the caller writes
- * them there while gathering the line). Output is in natural order. One instance per thread: it holds a
+ * {@code position[j] = (j mod q)·m + p(j / q)}, p the inner transform's own positions (the identity at the
+ * bottom), so that the q sub-sequences are contiguous (the caller writes them there while gathering the line). Output is in natural order. One instance per thread: it holds a
  * scratch line.
  */
 final class SplitFft {
@@ -28,7 +30,9 @@ final class SplitFft {
 	final int n, q, m;
 	/** Complex position of natural index j in the de-interleaved layout. */
 	final int[] position;
+	/** The transforms of length m: a power-of-two plan, or (exactly one of the two) an inner split. */
 	private final FloatFFT_1D sub;
+	private final SplitFft inner;
 	/** exp(∓2πi r·k/n) for r in [0, q), k in [0, m): (re, im) at 2(r·m + k); forward and inverse (conjugate). */
 	private final float[] twiddle, twiddleInverse;
 	private final float[] scratch;
@@ -37,23 +41,26 @@ final class SplitFft {
 	private static final float S51 = (float) Math.sin(2 * Math.PI / 5), S52 = (float) Math.sin(4 * Math.PI / 5);
 	private static final float S31 = (float) Math.sin(2 * Math.PI / 3);
 
-	/** A split plan for n, or null if n is not 3·2^k or 5·2^k with 2^k ≥ {@link #MIN_POWER}. */
+	/** A split plan for n, or null if n is not 3^a·5^b·2^k (a + b ≥ 1) with 2^k ≥ {@link #MIN_POWER}. */
 	static SplitFft forLength(final int n) {
 		for (final int q : new int[] { 3, 5 }) {
 			if (n % q != 0) continue;
 			final int m = n / q;
-			if (m >= MIN_POWER && (m & (m - 1)) == 0) return new SplitFft(n, q, m);
+			if (m >= MIN_POWER && (m & (m - 1)) == 0) return new SplitFft(n, q, m, null);
+			final SplitFft in = forLength(m);
+			if (in != null) return new SplitFft(n, q, m, in);
 		}
 		return null;
 	}
 
-	private SplitFft(final int n, final int q, final int m) {
+	private SplitFft(final int n, final int q, final int m, final SplitFft inner) {
 		this.n = n;
 		this.q = q;
 		this.m = m;
-		this.sub = new FloatFFT_1D(m);
+		this.inner = inner;
+		this.sub = inner == null ? new FloatFFT_1D(m) : null;
 		this.position = new int[n];
-		for (int j = 0; j < n; j++) position[j] = (j % q) * m + j / q;
+		for (int j = 0; j < n; j++) position[j] = (j % q) * m + (inner == null ? j / q : inner.position[j / q]);
 		this.twiddle = new float[2 * n];
 		this.twiddleInverse = new float[2 * n];
 		for (int r = 0; r < q; r++)
@@ -68,21 +75,35 @@ final class SplitFft {
 
 	/** Forward transform of a de-interleaved line (2n floats); the result, in natural order, replaces it. */
 	void forward(final float[] line) {
-		for (int r = 0; r < q; r++) sub.complexForward(line, 2 * r * m);
-		stage(line, 1f);
-		System.arraycopy(scratch, 0, line, 0, 2 * n);
+		forwardAt(line, 0);
 	}
 
 	/** Inverse transform of a de-interleaved line, divided by n if {@code scale}; natural order out, in place. */
 	void inverse(final float[] line, final boolean scale) {
-		for (int r = 0; r < q; r++) sub.complexInverse(line, 2 * r * m, false);
-		stage(line, -1f);
+		inverseAt(line, 0);
 		if (scale) {
 			final float s = 1f / n;
-			for (int i = 0; i < 2 * n; i++) line[i] = scratch[i] * s;
-		} else {
-			System.arraycopy(scratch, 0, line, 0, 2 * n);
+			for (int i = 0; i < 2 * n; i++) line[i] *= s;
 		}
+	}
+
+	private void forwardAt(final float[] a, final int off) {
+		for (int r = 0; r < q; r++) {
+			if (inner != null) inner.forwardAt(a, off + 2 * r * m);
+			else sub.complexForward(a, off + 2 * r * m);
+		}
+		stage(a, off, 1f);
+		System.arraycopy(scratch, 0, a, off, 2 * n);
+	}
+
+	/** Unscaled inverse of the line at {@code off}. */
+	private void inverseAt(final float[] a, final int off) {
+		for (int r = 0; r < q; r++) {
+			if (inner != null) inner.inverseAt(a, off + 2 * r * m);
+			else sub.complexInverse(a, off + 2 * r * m, false);
+		}
+		stage(a, off, -1f);
+		System.arraycopy(scratch, 0, a, off, 2 * n);
 	}
 
 	/** A natural-order line rearranged into the de-interleaved layout (through the scratch line), in place. */
@@ -114,20 +135,20 @@ final class SplitFft {
 	}
 
 	/** scratch ← the radix-q step on the transformed sub-sequences in w; sign −1 for the inverse kernel. */
-	private void stage(final float[] w, final float sign) {
+	private void stage(final float[] w, final int off, final float sign) {
 		final float[] tw = sign > 0 ? twiddle : twiddleInverse;
-		if (q == 3) stage3(w, tw, sign);
-		else stage5(w, tw, sign);
+		if (q == 3) stage3(w, off, tw, sign);
+		else stage5(w, off, tw, sign);
 	}
 
-	private void stage3(final float[] w, final float[] tw, final float sign) {
+	private void stage3(final float[] w, final int off, final float[] tw, final float sign) {
 		final float[] out = scratch;
 		final float s = sign * S31;
 		for (int k = 0; k < m; k++) {
 			final int i1 = 2 * (m + k), i2 = 2 * (2 * m + k);
-			final float a0r = w[2 * k], a0i = w[2 * k + 1];
-			final float b1r = w[i1], b1i = w[i1 + 1], t1r = tw[i1], t1i = tw[i1 + 1];
-			final float b2r = w[i2], b2i = w[i2 + 1], t2r = tw[i2], t2i = tw[i2 + 1];
+			final float a0r = w[off + 2 * k], a0i = w[off + 2 * k + 1];
+			final float b1r = w[off + i1], b1i = w[off + i1 + 1], t1r = tw[i1], t1i = tw[i1 + 1];
+			final float b2r = w[off + i2], b2i = w[off + i2 + 1], t2r = tw[i2], t2i = tw[i2 + 1];
 			final float a1r = b1r * t1r - b1i * t1i, a1i = b1r * t1i + b1i * t1r;
 			final float a2r = b2r * t2r - b2i * t2i, a2i = b2r * t2i + b2i * t2r;
 			final float sr = a1r + a2r, si = a1i + a2i, dr = a1r - a2r, di = a1i - a2i;
@@ -141,16 +162,16 @@ final class SplitFft {
 		}
 	}
 
-	private void stage5(final float[] w, final float[] tw, final float sign) {
+	private void stage5(final float[] w, final int off, final float[] tw, final float sign) {
 		final float[] out = scratch;
 		final float s1 = sign * S51, s2 = sign * S52;
 		for (int k = 0; k < m; k++) {
 			final int i1 = 2 * (m + k), i2 = 2 * (2 * m + k), i3 = 2 * (3 * m + k), i4 = 2 * (4 * m + k);
-			final float a0r = w[2 * k], a0i = w[2 * k + 1];
-			final float a1r = w[i1] * tw[i1] - w[i1 + 1] * tw[i1 + 1], a1i = w[i1] * tw[i1 + 1] + w[i1 + 1] * tw[i1];
-			final float a2r = w[i2] * tw[i2] - w[i2 + 1] * tw[i2 + 1], a2i = w[i2] * tw[i2 + 1] + w[i2 + 1] * tw[i2];
-			final float a3r = w[i3] * tw[i3] - w[i3 + 1] * tw[i3 + 1], a3i = w[i3] * tw[i3 + 1] + w[i3 + 1] * tw[i3];
-			final float a4r = w[i4] * tw[i4] - w[i4 + 1] * tw[i4 + 1], a4i = w[i4] * tw[i4 + 1] + w[i4 + 1] * tw[i4];
+			final float a0r = w[off + 2 * k], a0i = w[off + 2 * k + 1];
+			final float a1r = w[off + i1] * tw[i1] - w[off + i1 + 1] * tw[i1 + 1], a1i = w[off + i1] * tw[i1 + 1] + w[off + i1 + 1] * tw[i1];
+			final float a2r = w[off + i2] * tw[i2] - w[off + i2 + 1] * tw[i2 + 1], a2i = w[off + i2] * tw[i2 + 1] + w[off + i2 + 1] * tw[i2];
+			final float a3r = w[off + i3] * tw[i3] - w[off + i3 + 1] * tw[i3 + 1], a3i = w[off + i3] * tw[i3 + 1] + w[off + i3 + 1] * tw[i3];
+			final float a4r = w[off + i4] * tw[i4] - w[off + i4 + 1] * tw[i4 + 1], a4i = w[off + i4] * tw[i4 + 1] + w[off + i4 + 1] * tw[i4];
 			final float t1r = a1r + a4r, t1i = a1i + a4i, t2r = a2r + a3r, t2i = a2i + a3i;
 			final float t3r = a1r - a4r, t3i = a1i - a4i, t4r = a2r - a3r, t4i = a2i - a3i;
 			final float c1r = a0r + C51 * t1r + C52 * t2r, c1i = a0i + C51 * t1i + C52 * t2i;

@@ -19,7 +19,7 @@ public final class LineTransformBenchmark {
 		System.out.printf(Locale.ROOT, "Line transforms, forward + inverse, 1 thread, Java %s: ns per value, medians of 5 rounds%n",
 				System.getProperty("java.version"));
 		final Random r = new Random(1);
-		for (final int n : new int[] { 96, 160, 192, 320, 640 }) {
+		for (final int n : new int[] { 96, 160, 192, 288, 320, 576, 640 }) {
 			final FloatFFT_1D jt = new FloatFFT_1D(n);
 			final int reps = 20_000_000 / n;
 			final SplitRealFft sr = SplitRealFft.forLength(n);

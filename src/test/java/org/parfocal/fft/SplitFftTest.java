@@ -39,7 +39,7 @@ class SplitFftTest {
 	}
 
 	@ParameterizedTest(name = "n = {0}")
-	@ValueSource(ints = { 48, 80, 96, 160, 192, 320, 640 })
+	@ValueSource(ints = { 48, 80, 96, 160, 192, 320, 640, 144, 288, 576, 720, 400 })
 	void forwardAndInverseEqualTheDefinition(final int n) {
 		final SplitFft f = SplitFft.forLength(n);
 		assertNotNull(f, "split plan for " + n);
@@ -64,7 +64,7 @@ class SplitFftTest {
 
 	/** Real transforms of lengths 2·3·2^k and 2·5·2^k against the definition, and their inverse. */
 	@ParameterizedTest(name = "n = {0}")
-	@ValueSource(ints = { 96, 160, 192, 320, 640 })
+	@ValueSource(ints = { 96, 160, 192, 320, 640, 576, 288 })
 	void realForwardAndInverseEqualTheDefinition(final int n) {
 		final SplitRealFft f = SplitRealFft.forLength(n);
 		assertNotNull(f, "split real plan for " + n);
@@ -89,8 +89,8 @@ class SplitFftTest {
 	}
 
 	@Test
-	void onlyThreeAndFiveTimesAPowerOfTwoAreSplit() {
-		for (final int n : new int[] { 47, 64, 90, 100, 135, 375, 24, 40 }) assertNull(SplitFft.forLength(n), "no split for " + n);
+	void onlyPowersOfThreeAndFiveTimesAPowerOfTwoAreSplit() {
+		for (final int n : new int[] { 47, 64, 90, 100, 135, 375, 1125, 24, 40, 72 }) assertNull(SplitFft.forLength(n), "no split for " + n);
 		for (final int n : new int[] { 95, 64, 180, 48, 80 }) assertNull(SplitRealFft.forLength(n), "no real split for " + n);
 	}
 
