@@ -52,7 +52,7 @@ public final class RealFft {
 	 * deconvolution benchmark: blocks of 8 columns (one cache line per row) cost 10 % more per iteration.
 	 */
 	static final int BLOCK_FLOATS = Integer.getInteger("parfocal.fft.blockFloats", 1 << 15);
-	/** Whether complex lines of 3·2^k and 5·2^k go through {@link SplitFft} (a switch for benchmarks and tests). */
+	/** Whether lines of 3^a·5^b·2^k (real rows of twice that) go through {@link SplitFft} / {@link SplitRealFft} (a switch for comparisons). */
 	static final boolean SPLIT = !Boolean.getBoolean("parfocal.fft.noSplit");
 	/** Fewest columns in a block: one cache line of complex floats. */
 	private static final int MIN_BLOCK = 8;
@@ -133,7 +133,7 @@ public final class RealFft {
 	public void convolve(final float[] real, final float[] transfer, final boolean conjugate, final float[] work) {
 		checkLengths(real, work);
 		checkTransfer(transfer);
-		convolveRows(real, nx, work, transfer, conjugate, all, null, all, null);
+		convolveRows(real, nx, work, transfer, false, conjugate, all, null, all, null);
 	}
 
 	/**
@@ -237,7 +237,7 @@ public final class RealFft {
 			final Rows output, final RowAction after) {
 		checkGrid(grid);
 		checkTransfer(transfer);
-		convolveRows(grid, 2 * h, grid, transfer, conjugate, input, before, output, after);
+		convolveRows(grid, 2 * h, grid, transfer, false, conjugate, input, before, output, after);
 	}
 
 	/**
@@ -255,9 +255,6 @@ public final class RealFft {
 			this.data = data;
 			this.owner = owner;
 		}
-
-		/** The array that holds the values (the {@code dst} given to {@link RealFft#lineTransfer}). */
-		public float[] array() { return data; }
 	}
 
 	/**
@@ -354,29 +351,24 @@ public final class RealFft {
 			forwardPlanes(src, srcStride, spec, in, null);
 		} else {
 			forwardX(src, srcStride, spec, in, null);
-			if (ny > 1) passAxis(spec, 1, true, false, null, false, in.z0, in.z1, in.y0, in.y1, 0, ny);
+			if (ny > 1) passAxis(spec, 1, true, false, null, false, false, in.z0, in.z1, in.y0, in.y1, 0, ny);
 		}
-		if (nz > 1) passAxis(spec, 2, true, false, null, false, 0, ny, in.z0, in.z1, 0, nz);
+		if (nz > 1) passAxis(spec, 2, true, false, null, false, false, 0, ny, in.z0, in.z1, 0, nz);
 	}
 
 	/** Inverse transform of spec (destroyed) into the rows in {@code out} of dst (row stride dstStride). */
 	private void inverseRows(final float[] spec, final float[] dst, final int dstStride, final Rows out) {
 		checkRows(out);
-		if (nz > 1) passAxis(spec, 2, false, true, null, false, 0, ny, 0, nz, out.z0, out.z1);
+		if (nz > 1) passAxis(spec, 2, false, true, null, false, false, 0, ny, 0, nz, out.z0, out.z1);
 		if (nz > 1 && ny > 1) {
 			inversePlanes(spec, dst, dstStride, out, true, null);
 		} else {
-			if (ny > 1) passAxis(spec, 1, false, true, null, false, out.z0, out.z1, 0, ny, out.y0, out.y1);
+			if (ny > 1) passAxis(spec, 1, false, true, null, false, false, out.z0, out.z1, 0, ny, out.y0, out.y1);
 			inverseX(spec, dst, dstStride, out, null);
 		}
 	}
 
 	/** Pruned fused convolution: rows in of src → spec → rows out of src (src may be spec). */
-	private void convolveRows(final float[] src, final int srcStride, final float[] spec, final float[] t, final boolean conj, final Rows in,
-			final RowAction before, final Rows out, final RowAction after) {
-		convolveRows(src, srcStride, spec, t, false, conj, in, before, out, after);
-	}
-
 	private void convolveRows(final float[] src, final int srcStride, final float[] spec, final float[] t, final boolean tLines, final boolean conj,
 			final Rows in, final RowAction before, final Rows out, final RowAction after) {
 		checkRows(in);
@@ -407,7 +399,7 @@ public final class RealFft {
 		Parallel.forRange(in.z1 - in.z0, zi -> {
 			final int z = in.z0 + zi;
 			for (int y = in.y0; y < in.y1; y++) forwardRow(src, srcStride, spec, y + ny * z, before);
-			for (int b = 0; b < blocks; b++) lineBlock(spec, 1, true, false, null, false, z, b, in.y0, in.y1, 0, ny);
+			for (int b = 0; b < blocks; b++) lineBlock(spec, 1, true, false, null, false, false, z, b, in.y0, in.y1, 0, ny);
 		});
 	}
 
@@ -417,7 +409,7 @@ public final class RealFft {
 		final int blocks = (h + blockY - 1) / blockY;
 		Parallel.forRange(out.z1 - out.z0, zi -> {
 			final int z = out.z0 + zi;
-			for (int b = 0; b < blocks; b++) lineBlock(spec, 1, false, scale, null, false, z, b, 0, ny, out.y0, out.y1);
+			for (int b = 0; b < blocks; b++) lineBlock(spec, 1, false, scale, null, false, false, z, b, 0, ny, out.y0, out.y1);
 			for (int y = out.y0; y < out.y1; y++) inverseRow(spec, dst, dstStride, y + ny * z, after);
 		});
 	}
@@ -480,11 +472,6 @@ public final class RealFft {
 	 * Lines are taken for the outer index (z for axis 1, y for axis 2) in [o0, o1); line entries in [r0, r1)
 	 * are read and the others taken as zero; entries in [w0, w1) are written back.
 	 */
-	private void passAxis(final float[] spec, final int axis, final boolean forward, final boolean scale, final float[] t, final boolean conj,
-			final int o0, final int o1, final int r0, final int r1, final int w0, final int w1) {
-		passAxis(spec, axis, forward, scale, t, false, conj, o0, o1, r0, r1, w0, w1);
-	}
-
 	private void passAxis(final float[] spec, final int axis, final boolean forward, final boolean scale, final float[] t, final boolean tLines,
 			final boolean conj, final int o0, final int o1, final int r0, final int r1, final int w0, final int w1) {
 		final int bs = axis == 1 ? blockY : blockZ, blocks = (h + bs - 1) / bs;
@@ -493,11 +480,6 @@ public final class RealFft {
 	}
 
 	/** The lines of block {@code block} (the columns from kx = block size · block) at outer index {@code outer}; see {@link #passAxis}. */
-	private void lineBlock(final float[] spec, final int axis, final boolean forward, final boolean scale, final float[] t, final boolean conj,
-			final int outer, final int block, final int r0, final int r1, final int w0, final int w1) {
-		lineBlock(spec, axis, forward, scale, t, false, conj, outer, block, r0, r1, w0, w1);
-	}
-
 	private void lineBlock(final float[] spec, final int axis, final boolean forward, final boolean scale, final float[] t, final boolean tLines,
 			final boolean conj, final int outer, final int block, final int r0, final int r1, final int w0, final int w1) {
 		final int rowStride = 2 * h, planeStride = rowStride * ny;
