@@ -49,10 +49,14 @@ public final class RealFft {
 	 * Floats of the line buffers of one block of columns (per axis and thread): columns are gathered together
 	 * along y and z in blocks that fill about this much, so that each row of the spectrum is read in long
 	 * runs (the memory system prefetches them) while the block stays in a core's L2 cache. Measured on the
-	 * deconvolution benchmark: blocks of 8 columns (one cache line per row) cost 4 % (1 thread) to 10 % (2 threads) more per iteration.
+	 * deconvolution benchmark: blocks of 8 columns (one cache line per row) cost 4 % (1 thread) to 10 %
+	 * (2 threads) more per iteration.
 	 */
 	static final int BLOCK_FLOATS = Integer.getInteger("parfocal.fft.blockFloats", 1 << 15);
-	/** Whether lines of 3^a·5^b·2^k (real rows of twice that) go through {@link SplitFft} / {@link SplitRealFft} (a switch for comparisons). */
+	/**
+	 * Whether lines of 3^a·5^b·2^k (real rows of twice that) go through {@link SplitFft} / {@link SplitRealFft}
+	 * (a switch for comparisons).
+	 */
 	static final boolean SPLIT = !Boolean.getBoolean("parfocal.fft.noSplit");
 	/** Fewest columns in a block: one cache line of complex floats. */
 	private static final int MIN_BLOCK = 8;
