@@ -8,7 +8,6 @@ import org.parfocal.core.Volume;
 import org.parfocal.deconv.EdgeMode;
 import org.parfocal.deconv.Sensitivity;
 import org.parfocal.deconv.TvRow;
-import org.parfocal.fft.FastSizes;
 import org.parfocal.fft.RealFft;
 
 /**
@@ -78,23 +77,9 @@ final class BlindSolver {
 	 */
 	BlindSolver(final Volume psf, final int[] n, final EdgeMode mode, final float[] y, final double background, final double objectTv,
 			final double psfTv, final PsfConstraints constraints) {
-		final int[] k = psf.shape(), m = new int[3], w = new int[3], p = new int[3];
-		for (int d = 0; d < 3; d++) {
-			final int c = (k[d] - 1) / 2;
-			switch (mode) {
-			case PERIODIC:
-				p[d] = m[d] = n[d];
-				break;
-			case ZERO:
-				m[d] = n[d];
-				p[d] = FastSizes.next(n[d] + k[d] - 1);
-				break;
-			default:
-				m[d] = n[d] + k[d] - 1;
-				w[d] = k[d] - 1 - c;
-				p[d] = FastSizes.next(m[d]);
-			}
-		}
+		final int[] k = psf.shape();
+		final EdgeMode.Domains dom = mode.domains(n, k);
+		final int[] m = dom.object(), w = dom.window(), p = dom.grid();
 		nx = n[0]; ny = n[1]; nz = n[2];
 		mx = m[0]; my = m[1]; mz = m[2];
 		wx = w[0]; wy = w[1]; wz = w[2];
@@ -173,10 +158,10 @@ final class BlindSolver {
 
 	/** Bytes the solver allocates (prepared data included), for a memory check before starting. */
 	static long bytesNeeded(final int[] n, final int[] k, final EdgeMode mode) {
+		final EdgeMode.Domains dom = mode.domains(n, k);
 		long s = 2, m = 1, img = 1, slab = 8;
 		for (int d = 0; d < 3; d++) {
-			final long pd = mode == EdgeMode.PERIODIC ? n[d] : FastSizes.next(n[d] + k[d] - 1);
-			final long md = mode == EdgeMode.NON_CIRCULANT ? n[d] + k[d] - 1 : n[d];
+			final long pd = dom.grid()[d], md = dom.object()[d];
 			s *= d == 0 ? pd / 2 + 1 : pd;
 			m *= md;
 			img *= n[d];

@@ -1,5 +1,7 @@
 package org.parfocal.deconv;
 
+import org.parfocal.fft.FastSizes;
+
 /**
  * What the deconvolution assumes about the object beyond the edges of the recorded stack. The keys are the
  * macro values of the {@code edges=} option: keep them.
@@ -29,6 +31,35 @@ public enum EdgeMode {
 	EdgeMode(final String key) { this.key = key; }
 
 	public String key() { return key; }
+
+	/**
+	 * The boxes an iterative engine works on for an image of n voxels and a PSF of k voxels per axis (x, y, z):
+	 * the object domain (m voxels, starting at the origin of the FFT grid), where the image window starts in
+	 * it (w) and the FFT grid (p, 5-smooth sizes). Non-circulant: m = n + k − 1, w = k − 1 − ⌊(k − 1)/2⌋,
+	 * p = next5smooth(m); zero: m = n, w = 0, p = next5smooth(n + k − 1); periodic: m = p = n, w = 0.
+	 */
+	public record Domains(int[] object, int[] window, int[] grid) {}
+
+	/** The {@link Domains} of this edge mode. */
+	public Domains domains(final int[] n, final int[] k) {
+		final int[] m = new int[3], w = new int[3], p = new int[3];
+		for (int d = 0; d < 3; d++) {
+			switch (this) {
+			case PERIODIC:
+				p[d] = m[d] = n[d];
+				break;
+			case ZERO:
+				m[d] = n[d];
+				p[d] = FastSizes.next(n[d] + k[d] - 1);
+				break;
+			default:
+				m[d] = n[d] + k[d] - 1;
+				w[d] = k[d] - 1 - (k[d] - 1) / 2;
+				p[d] = FastSizes.next(m[d]);
+			}
+		}
+		return new Domains(m, w, p);
+	}
 
 	public static EdgeMode parse(final String s) {
 		for (final EdgeMode m : values())

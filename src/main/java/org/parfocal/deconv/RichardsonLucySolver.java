@@ -6,7 +6,6 @@ import org.parfocal.core.FastLog;
 import org.parfocal.core.MemoryBudget;
 import org.parfocal.core.Parallel;
 import org.parfocal.core.Volume;
-import org.parfocal.fft.FastSizes;
 import org.parfocal.fft.RealFft;
 
 /**
@@ -71,23 +70,9 @@ final class RichardsonLucySolver {
 
 	RichardsonLucySolver(final Volume psf, final int[] n, final EdgeMode mode, final float[] y, final double background,
 			final DeconvolutionMethod method, final double regularization, final float[] initial) {
-		final int[] k = psf.shape(), m = new int[3], w = new int[3], p = new int[3];
-		for (int d = 0; d < 3; d++) {
-			final int c = (k[d] - 1) / 2;
-			switch (mode) {
-			case PERIODIC:
-				p[d] = m[d] = n[d];
-				break;
-			case ZERO:
-				m[d] = n[d];
-				p[d] = FastSizes.next(n[d] + k[d] - 1);
-				break;
-			default:
-				m[d] = n[d] + k[d] - 1;
-				w[d] = k[d] - 1 - c;
-				p[d] = FastSizes.next(m[d]);
-			}
-		}
+		final int[] k = psf.shape();
+		final EdgeMode.Domains dom = mode.domains(n, k);
+		final int[] m = dom.object(), w = dom.window(), p = dom.grid();
 		MemoryBudget.require(bytesNeeded(n, k, mode, method), "deconvolving a " + n[0] + " x " + n[1] + " x " + n[2] + " image");
 		nx = n[0]; ny = n[1]; nz = n[2];
 		mx = m[0]; my = m[1]; mz = m[2];
@@ -130,11 +115,12 @@ final class RichardsonLucySolver {
 
 	/** Bytes the solver allocates (the prepared data y included). */
 	static long bytesNeeded(final int[] n, final int[] k, final EdgeMode mode, final DeconvolutionMethod method) {
+		final EdgeMode.Domains dom = mode.domains(n, k);
 		long s = 2, m = 1, img = 1;
 		for (int d = 0; d < 3; d++) {
-			final long pd = mode == EdgeMode.PERIODIC ? n[d] : FastSizes.next(n[d] + k[d] - 1);
+			final long pd = dom.grid()[d];
 			s *= d == 0 ? pd / 2 + 1 : pd;
-			m *= mode == EdgeMode.NON_CIRCULANT ? n[d] + k[d] - 1 : n[d];
+			m *= dom.object()[d];
 			img *= n[d];
 		}
 		final int objects = 1 + (mode == EdgeMode.NON_CIRCULANT ? 1 : 0) + (method == DeconvolutionMethod.RL_ACCELERATED ? 2 : 0);
