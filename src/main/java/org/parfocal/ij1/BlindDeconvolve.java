@@ -193,7 +193,7 @@ public class BlindDeconvolve implements PlugIn {
 		starts[titles.length] = FROM_OPTICS;
 		starts[titles.length + 1] = GAUSSIAN;
 		final GenericDialog gd = new GenericDialog(COMMAND);
-		gd.addChoice("Image:", titles, guessImage(titles));
+		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", starts, guessStart(titles));
 		gd.addNumericField("FWHM_xy:", Prefs.get(PREFS + "fwhm_xy", 0.25), 3, 6, "µm, lateral width of a gaussian start");
 		gd.addNumericField("FWHM_z:", Prefs.get(PREFS + "fwhm_z", 0.7), 3, 6, "µm, axial width of a gaussian start");
@@ -514,13 +514,6 @@ public class BlindDeconvolve implements PlugIn {
 		plot.addLegend(axial ? "lateral FWHM / start\naxial FWHM / start\ndistance to start" : "lateral FWHM / start\ndistance to start");
 		plot.setLimitsToFit(false);
 		return plot;
-	}
-
-	private static String guessImage(final String[] titles) {
-		final String cur = Commands.currentTitle(titles);
-		if (!cur.toLowerCase(Locale.ROOT).contains("psf")) return cur;
-		for (final String t : titles) if (!t.toLowerCase(Locale.ROOT).contains("psf")) return t;
-		return cur;
 	}
 
 	private static String guessStart(final String[] titles) {

@@ -2,6 +2,7 @@ package org.parfocal.ij1;
 
 import java.util.ArrayList;
 import java.util.List;
+import java.util.Locale;
 import java.util.function.Supplier;
 
 import ij.IJ;
@@ -45,6 +46,17 @@ final class Commands {
 	static String currentTitle(final String[] titles) {
 		final ImagePlus cur = WindowManager.getCurrentImage();
 		return cur != null ? cur.getTitle() : titles.length > 0 ? titles[0] : "";
+	}
+
+	/**
+	 * The default image of a deconvolution dialog: the current image unless its title says PSF, else the first
+	 * that does not.
+	 */
+	static String currentNonPsfTitle(final String[] titles) {
+		final String cur = currentTitle(titles);
+		if (!cur.toLowerCase(Locale.ROOT).contains("psf")) return cur;
+		for (final String t : titles) if (!t.toLowerCase(Locale.ROOT).contains("psf")) return t;
+		return cur;
 	}
 
 	/**

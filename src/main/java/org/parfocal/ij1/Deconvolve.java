@@ -171,7 +171,7 @@ public class Deconvolve implements PlugIn {
 		System.arraycopy(titles, 0, psfChoices, 0, titles.length);
 		psfChoices[titles.length] = FROM_OPTICS;
 		final GenericDialog gd = new GenericDialog(COMMAND);
-		gd.addChoice("Image:", titles, guessImage(titles));
+		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", psfChoices, guessPsf(titles));
 		gd.addChoice("Method:", DeconvolutionMethod.keys(), Prefs.get(PREFS + "method", DeconvolutionMethod.RL_TV.key()));
 		gd.addNumericField("Iterations:", Prefs.get(PREFS + "iterations", 30), 0, 6, "at most, with relative-change stop");
@@ -556,13 +556,6 @@ public class Deconvolve implements PlugIn {
 		}
 		plot.setLimitsToFit(false);
 		return plot;
-	}
-
-	private static String guessImage(final String[] titles) {
-		final String cur = Commands.currentTitle(titles);
-		if (!cur.toLowerCase(Locale.ROOT).contains("psf")) return cur;
-		for (final String t : titles) if (!t.toLowerCase(Locale.ROOT).contains("psf")) return t;
-		return cur;
 	}
 
 	private static String guessPsf(final String[] titles) {
