@@ -1,6 +1,5 @@
 package org.parfocal.blocks;
 
-import java.io.Serializable;
 import java.nio.file.Path;
 import java.util.LinkedHashMap;
 import java.util.Locale;
@@ -29,8 +28,8 @@ import org.parfocal.psf.PsfModels;
  * immersion_index immersion_index_design sample_index coverslip_index coverslip_index_design
  * coverslip_thickness coverslip_thickness_design working_distance depth emission excitation pinhole
  * sheet_thickness voxel_xy voxel_z size_xy size_z}. Missing keys take the dialog's first-use defaults. Other
- * keys ({@code image plot}) are ignored. Immutable and serialisable (it travels to cluster tasks as its
- * options text).
+ * keys ({@code image plot}) are ignored. Immutable. Not serialisable (the option records it holds are not):
+ * it travels to cluster tasks as its options text, from which {@link #parse} makes it again.
  *
  * @param options the deconvolution options
  * @param psfPath the PSF file (a {@code psf=} value that names a file, or the provenance record's PSF input
@@ -38,15 +37,13 @@ import org.parfocal.psf.PsfModels;
  * @param optics the PSF from the optics, or null with a file
  * @param text the macro options it came from
  */
-public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf optics, String text) implements Serializable {
+public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf optics, String text) {
 
-	private static final long serialVersionUID = 1L;
 	/** The {@code psf=} value that computes the PSF from the optics. */
 	public static final String FROM_OPTICS = "from_optics";
 
 	/** A PSF from the optics: model key, optics, voxel sizes (µm) and grid sizes (0 = from the optics). */
-	public record OpticsPsf(String model, Optics optics, double voxelXY, double voxelZ, int sizeXY, int sizeZ) implements Serializable {
-		private static final long serialVersionUID = 1L;
+	public record OpticsPsf(String model, Optics optics, double voxelXY, double voxelZ, int sizeXY, int sizeZ) {
 
 		/** The grid the PSF is sampled on (as {@code PSF from Optics...} chooses it). */
 		public PsfGrid grid() {
