@@ -7,6 +7,7 @@ import org.parfocal.core.Boundary;
 import org.parfocal.core.Noise;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
+import org.parfocal.testing.TestVolumes;
 
 /**
  * Seeded synthetic recordings of an invented specimen for the block tests: a dim cytoplasm with bright
@@ -19,21 +20,9 @@ final class BlockScenes {
 
 	private BlockScenes() {}
 
-	/** Sampled Gaussian PSF, sigmas in voxels, origin at the centre voxel, unit sum. */
+	/** Sampled Gaussian PSF ({@link TestVolumes#gaussianPsf}), sigmas in voxels, calibrated like the scenes. */
 	static Volume psf(final int kxy, final int kz, final double sxy, final double sz) {
-		final Volume h = Volume.zeros(kxy, kxy, kz, VOXEL);
-		double s = 0;
-		for (int z = 0; z < kz; z++)
-			for (int y = 0; y < kxy; y++)
-				for (int x = 0; x < kxy; x++) {
-					final double dx = (x - (kxy - 1) / 2) / sxy, dy = (y - (kxy - 1) / 2) / sxy, dz = kz == 1 ? 0 : (z - (kz - 1) / 2) / sz;
-					final double v = Math.exp(-0.5 * (dx * dx + dy * dy + dz * dz));
-					h.set(x, y, z, (float) v);
-					s += v;
-				}
-		final float[] d = h.data();
-		for (int i = 0; i < d.length; i++) d[i] = (float) (d[i] / s);
-		return h;
+		return TestVolumes.gaussianPsf(kxy, kxy, kz, sxy, sxy, sz).withVoxelSize(VOXEL);
 	}
 
 	/** The object: level 5, granules (+50…150) and fibres (+40). */

@@ -21,6 +21,23 @@ public final class TestVolumes {
 
 	private TestVolumes() {}
 
+	/** Sampled Gaussian, sigmas in voxels, origin at ⌊(k − 1)/2⌋, unit sum. A 2D PSF has kz = 1. */
+	public static Volume gaussianPsf(final int kx, final int ky, final int kz, final double sx, final double sy, final double sz) {
+		final Volume h = Volume.zeros(kx, ky, kz, null);
+		double s = 0;
+		for (int z = 0; z < kz; z++)
+			for (int y = 0; y < ky; y++)
+				for (int x = 0; x < kx; x++) {
+					final double dx = (x - (kx - 1) / 2) / sx, dy = (y - (ky - 1) / 2) / sy, dz = kz == 1 ? 0 : (z - (kz - 1) / 2) / sz;
+					final double v = Math.exp(-0.5 * (dx * dx + dy * dy + dz * dz));
+					h.set(x, y, z, (float) v);
+					s += v;
+				}
+		final float[] d = h.data();
+		for (int i = 0; i < d.length; i++) d[i] = (float) (d[i] / s);
+		return h;
+	}
+
 	/** Uniform [0, 1) values from a seeded generator, calibrated 0.1 × 0.1 × 0.3 µm. */
 	public static Volume random(final long seed, final int nx, final int ny, final int nz) {
 		final Random r = new Random(seed);
