@@ -145,9 +145,8 @@ public record BlockPlan(int[] shape, int[] psfShape, int[] tiles, int[] halo, in
 
 	/**
 	 * This plan with its tile faces moved to the nearest multiples of {@code chunk} (a chunked output's grid, x, y,
-	 * z), so that blocks start and end on chunk boundaries where possible: along an axis where a moved face would
-	 * leave a tile smaller than the PSF or the blend width, or two faces on one multiple, the faces stay where they
-	 * were. The number of tiles, the halo and the blend are unchanged; blocks may grow by up to half a chunk, and
+	 * z), so that blocks start and end on chunk boundaries where possible: a face whose nearer (or else farther)
+	 * multiple would leave a tile smaller than the PSF or the blend width stays where it was. The number of tiles, the halo and the blend are unchanged; blocks may grow by up to half a chunk, and
 	 * {@link #bytesPerBlock()} is recomputed.
 	 */
 	public BlockPlan alignedTo(final int[] chunk, final DeconvolutionOptions options) {
@@ -158,13 +157,17 @@ public record BlockPlan(int[] shape, int[] psfShape, int[] tiles, int[] halo, in
 			final int[] b = new int[m + 1];
 			for (int j = 0; j <= m; j++) b[j] = start(j, shape[d], m);
 			final int c = chunk[Math.min(d, chunk.length - 1)];
-			if (c > 0 && m > 1) {
-				final int[] a = b.clone();
-				boolean ok = true;
-				for (int j = 1; j < m; j++) a[j] = (int) Math.round((double) b[j] / c) * c;
-				for (int j = 0; j < m; j++) ok &= a[j + 1] - a[j] >= minTile[d];
-				if (ok) System.arraycopy(a, 0, b, 0, m + 1);
-			}
+			if (c > 0 && m > 1)
+				for (int j = 1; j < m; j++) {
+					// the nearer multiple of c first, then the other; a face that fits neither stays
+					final int lo = b[j] / c * c, hi = lo + c;
+					final int[] cand = b[j] - lo <= hi - b[j] ? new int[] { lo, hi } : new int[] { hi, lo };
+					for (final int a : cand)
+						if (a - b[j - 1] >= minTile[d] && b[j + 1] - a >= minTile[d] && shape[d] - a >= (m - j) * minTile[d]) {
+							b[j] = a;
+							break;
+						}
+				}
 			bounds[d] = b;
 		}
 		final int[] full = halo(psfShape, HALO_FACTOR), fullBlend = blend(shape, psfShape);
