@@ -87,6 +87,11 @@ public final class SparkRunner {
 	 * would; Spark retries the task (with {@code local[N,2]} or {@code spark.task.maxFailures} ≥ 2).
 	 */
 	public static final String FAIL_ONCE = "spark.parfocal.test.failOnceMarker";
+	/**
+	 * Nanoseconds spent by the Zarr block tasks of this JVM: [0] in all, [1] reading the input, [2] writing chunks
+	 * and fragments, [3] finishing seam chunks (read, add, write). For the benchmark (local mode: one JVM).
+	 */
+	static final java.util.concurrent.atomic.AtomicLongArray TASK_NANOS = new java.util.concurrent.atomic.AtomicLongArray(4);
 
 	private SparkRunner() {}
 
@@ -489,8 +494,11 @@ public final class SparkRunner {
 					for (final int[] g : new ZarrBlockSink(w, t, c, plans.get(c), fragments).seamChunks()) seams.add(new int[] { t, c, g[0], g[1], g[2] });
 			if (!seams.isEmpty()) {
 				final int slices = Math.min(seams.size(), Math.max(1, 4 * sc.defaultParallelism()));
-				sc.parallelize(seams, slices).foreach(g -> new ZarrBlockSink(OmeZarr.Writer.of(outS, hid), g[0], g[1], plans.get(g[1]), Path.of(frag))
-						.finishChunk(new int[] { g[2], g[3], g[4] }));
+				sc.parallelize(seams, slices).foreach(g -> {
+					final long a = System.nanoTime();
+					new ZarrBlockSink(OmeZarr.Writer.of(outS, hid), g[0], g[1], plans.get(g[1]), Path.of(frag)).finishChunk(new int[] { g[2], g[3], g[4] });
+					TASK_NANOS.addAndGet(3, System.nanoTime() - a);
+				});
 			}
 			w.complete(l.voxelSize(), prov);
 			return new BlocksOutcome(out, plans.get(0), levels.get(0), min == Integer.MAX_VALUE ? 0 : min, max, empty, seconds(t0));
@@ -508,23 +516,44 @@ public final class SparkRunner {
 			final String input, final String output, final String hidden, final String fragments, final int t, final int c, final int index,
 			final int threads, final String failOnce) throws IOException {
 		final Block block = plan.blocks().get(index);
+		final long start = System.nanoTime();
 		try {
 			final Recipe recipe = rt.recipe();
 			final Volume psf = psfData.volume();
 			final int[] it = new int[1];
 			final Volume part = Parallelization.runWithNumThreads(threads, () -> {
 				try (var source = ZarrBlockRunner.openSource(Path.of(input), t, c)) {
-					return BlockDeconvolution.deconvolve(source, psf, recipe.options(), plan, levels, block, Monitor.NONE, it);
+					final var timed = new org.parfocal.blocks.BlockSource() {
+						@Override
+						public int[] shape() { return source.shape(); }
+
+						@Override
+						public org.parfocal.core.VoxelSize voxelSize() { return source.voxelSize(); }
+
+						@Override
+						public Volume read(final int[] o, final int[] sz) throws IOException {
+							final long a = System.nanoTime();
+							try {
+								return source.read(o, sz);
+							} finally {
+								TASK_NANOS.addAndGet(1, System.nanoTime() - a);
+							}
+						}
+					};
+					return BlockDeconvolution.deconvolve(timed, psf, recipe.options(), plan, levels, block, Monitor.NONE, it);
 				} catch (final IOException e) {
 					throw new UncheckedIOException(e);
 				}
 			});
 			final ZarrBlockSink sink = new ZarrBlockSink(OmeZarr.Writer.of(output, hidden), t, c, plan, Path.of(fragments));
 			final int[] written = new int[1];
+			final long w0 = System.nanoTime();
 			sink.writeBlock(block, part, failOnce == null ? null : () -> {
 				if (++written[0] == 2 && firstAttempt(Path.of(failOnce)))
 					throw new UncheckedIOException(new IOException("test hook: task attempt stopped after writing 2 of its files"));
 			});
+			TASK_NANOS.addAndGet(2, System.nanoTime() - w0);
+			TASK_NANOS.addAndGet(0, System.nanoTime() - start);
 			return new BlockStatus(index, true, "", it[0]);
 		} catch (final IllegalArgumentException | IllegalStateException | OutOfMemoryError e) {
 			return new BlockStatus(index, false, message(e), 0);
