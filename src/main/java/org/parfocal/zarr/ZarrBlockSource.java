@@ -57,6 +57,11 @@ public final class ZarrBlockSource implements BlockSource {
 	}
 
 	@Override
+	public int[] chunkShape() {
+		return chunk.clone();
+	}
+
+	@Override
 	public String name() {
 		return image.name() + (image.frames() * image.channels() > 1 ? " (frame " + (t + 1) + ", channel " + (c + 1) + ")" : "");
 	}

@@ -122,6 +122,41 @@ class ZarrBlockRunnerTest {
 		assertTrue(e.getMessage().contains("one per channel"), e.getMessage());
 	}
 
+	/**
+	 * The levels read chunk by chunk (a chunked stack whose chunk layer does not fit in memory) are those read plane
+	 * by plane: the same sample (offset, background exactly), the start within float rounding of the sum's order.
+	 */
+	@Test
+	void levelsReadByChunksEqualLevelsReadByPlanes() throws Exception {
+		final Volume psf = BlockScenes.psf(7, 5, 1.2, 1.0), rec = BlockScenes.recording(21, 40, 36, 16, psf);
+		final Path in = dir.resolve("cell.zarr");
+		OmeZarr.write(in, 1, 1, List.of(rec), new int[] { 16, 16, 8 }, null);
+		final var o = recipe(tif(psf, dir.resolve("psf.tif")), 5).options();
+		final BlockDeconvolution.Levels planes = BlockDeconvolution.levels(BlockSource.of(rec), o, null);
+		final BlockDeconvolution.Levels chunks;
+		final int[] reads = new int[1];
+		BlockDeconvolution.streamLimit = 0;
+		try (var z = org.parfocal.zarr.ZarrBlockSource.open(in, 0, 0)) {
+			final BlockSource counted = new BlockSource() {
+				public int[] shape() { return z.shape(); }
+				public org.parfocal.core.VoxelSize voxelSize() { return z.voxelSize(); }
+				public int[] chunkShape() { return z.chunkShape(); }
+				public Volume read(final int[] a, final int[] b) throws java.io.IOException {
+					assertArrayEquals(new int[] { 16, 16, 8 }, new int[] { Math.max(b[0], 16), Math.max(b[1], 16), Math.max(b[2], 8) }, "chunk-sized reads");
+					reads[0]++;
+					return z.read(a, b);
+				}
+			};
+			chunks = BlockDeconvolution.levels(counted, o, null);
+		} finally {
+			BlockDeconvolution.streamLimit = -1;
+		}
+		assertEquals(2 * 3 * 3 * 2, reads[0], "each chunk read once per pass (offset estimated: two passes)");
+		assertEquals(planes.offset(), chunks.offset());
+		assertEquals(planes.background(), chunks.background());
+		assertEquals(planes.start(), chunks.start(), 1e-6 * planes.start());
+	}
+
 	@Test
 	void aFailedRunLeavesNothing() throws Exception {
 		final Volume psf = BlockScenes.psf(7, 5, 1.2, 1.0), rec = BlockScenes.recording(5, 40, 36, 16, psf);

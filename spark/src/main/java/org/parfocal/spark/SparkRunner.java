@@ -89,9 +89,10 @@ public final class SparkRunner {
 	public static final String FAIL_ONCE = "spark.parfocal.test.failOnceMarker";
 	/**
 	 * Nanoseconds spent by the Zarr block tasks of this JVM: [0] in all, [1] reading the input, [2] writing chunks
-	 * and fragments, [3] finishing seam chunks (read, add, write). For the benchmark (local mode: one JVM).
+	 * and fragments, [3] finishing seam chunks (read, add, write); [4] the driver's levels pass. For the benchmark
+	 * (local mode: one JVM).
 	 */
-	static final java.util.concurrent.atomic.AtomicLongArray TASK_NANOS = new java.util.concurrent.atomic.AtomicLongArray(4);
+	static final java.util.concurrent.atomic.AtomicLongArray TASK_NANOS = new java.util.concurrent.atomic.AtomicLongArray(5);
 
 	private SparkRunner() {}
 
@@ -455,11 +456,13 @@ public final class SparkRunner {
 		final List<BlockPlan> plans = new ArrayList<>();
 		for (final Volume h : psfs) plans.add(ZarrBlockRunner.plan(l, h, recipe, s.tile() != null ? 0 : driverBudget(sc, s), s.tile()));
 		final List<BlockDeconvolution.Levels> levels = new ArrayList<>();
+		final long lv = System.nanoTime();
 		for (int t = 0; t < l.frames(); t++)
 			for (int c = 0; c < l.channels(); c++)
 				try (var src = ZarrBlockRunner.openSource(in, t, c)) {
 					levels.add(BlockDeconvolution.levels(src, recipe.options(), Monitor.NONE));
 				}
+		TASK_NANOS.addAndGet(4, System.nanoTime() - lv);
 		final String prov = ZarrBlockRunner.provenance(recipe, psfFiles, in, l, plans, "SparkRunner blocks", s.threads()).toJson();
 		final OmeZarr.Writer w = OmeZarr.create(out, l.frames(), l.channels(), l.shape(), l.chunk(), l.voxelSize());
 		final Path fragments = w.hidden().resolveSibling(w.hidden().getFileName() + ".fragments");
