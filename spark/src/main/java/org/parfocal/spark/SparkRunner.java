@@ -52,13 +52,14 @@ import org.parfocal.zarr.ZarrBlockSink;
  * <pre>
  * SparkRunner stacks RECIPE INPUT_FOLDER OUTPUT_FOLDER [--psf FILE] [--budget MB] [--block X,Y,Z] [--threads N]
  * SparkRunner blocks RECIPE INPUT.tif OUTPUT.tif       [--psf FILE] [--budget MB] [--block X,Y,Z] [--threads N]
+ * SparkRunner blocks RECIPE INPUT.zarr OUTPUT.zarr     [--psf FILE[,FILE per channel]] [--budget MB] [--block X,Y,Z] [--threads N]
  * </pre>
  *
  * RECIPE is what {@link BlockRunner} takes: a file with the {@code Deconvolve...} macro options or a provenance
  * JSON record of a recorded run, or the options text itself ({@link Recipe#read}). Every path must be on a file
  * system that the driver and all executors see under the same name.
  * <ul>
- * <li><b>stacks</b>: every {@code .tif}/{@code .tiff} of the input folder is one Spark task, which runs the
+ * <li><b>stacks</b>: every {@code .tif}/{@code .tiff} (and {@code .zarr} image, written as {@code .zarr}) of the input folder is one Spark task, which runs the
  * engine as {@link BlockRunner} does (block-wise only when the stack does not fit the task's share of the
  * executor heap, or with {@code --block}). Output {@code <stack>-deconvolved.tif} in the output folder (with -2,
  * -3, … when taken: an existing file is never replaced), written under a hidden name and renamed when complete.
@@ -68,7 +69,8 @@ import org.parfocal.zarr.ZarrBlockSink;
  * ({@link BlockDeconvolution#levels}) and makes the {@link BlockPlan}; each task deconvolves one block and
  * writes it as a part file into a hidden folder beside the output; the driver adds the parts in block order into
  * a {@link TiffBlockSink} and commits. On any failure the sink is aborted and the parts deleted: nothing is left
- * under the output name.</li>
+ * under the output name. With a {@code .zarr} output (input {@code .zarr} or TIFF) the tasks write the output's
+ * chunks themselves, see {@link #runZarrBlocks}.</li>
  * </ul>
  * Threads per task: {@code --threads}, else {@code spark.task.cpus} (default 1). The master comes from
  * {@code spark-submit --master}; run with plain {@code java} it is {@code local[*]}. Exit code 0 when
