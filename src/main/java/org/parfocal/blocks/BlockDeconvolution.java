@@ -206,16 +206,17 @@ public final class BlockDeconvolution {
 
 	/**
 	 * The chunk shape to stream by, or null to stream by planes: chunks when the source has them and one layer of
-	 * them (nx · ny · chunk depth floats) would take more than a quarter of the free heap.
+	 * them (nx · ny · chunk depth floats) would take more than a sixteenth of the free heap (what a chunked source
+	 * may cache, so that plane-wise passes decode each chunk once).
 	 */
 	static int[] streamChunks(final BlockSource source) {
 		final int[] c = source.chunkShape(), n = source.shape();
 		if (c == null || c[2] <= 1) return null;
-		final long limit = streamLimit >= 0 ? streamLimit : org.parfocal.core.MemoryBudget.available() / 4;
+		final long limit = streamLimit >= 0 ? streamLimit : org.parfocal.core.MemoryBudget.available() / 16;
 		return 4L * n[0] * n[1] * Math.min(c[2], n[2]) > limit ? c : null;
 	}
 
-	/** Bytes of one chunk layer above which passes stream by chunks; negative: a quarter of the free heap (tests set 0). */
+	/** Bytes of one chunk layer above which passes stream by chunks; negative: a sixteenth of the free heap (tests set 0). */
 	static volatile long streamLimit = -1;
 
 	/**

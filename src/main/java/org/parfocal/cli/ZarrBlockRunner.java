@@ -55,9 +55,14 @@ public final class ZarrBlockRunner {
 		}
 	}
 
-	/** Frame t, channel c of a Zarr or TIFF input as a block source. */
+	/** Frame t, channel c of a Zarr or TIFF input as a block source (with a chunk cache for plane-wise passes). */
 	public static BlockSource openSource(final Path input, final int t, final int c) throws IOException {
-		if (OmeZarr.isZarr(input)) return ZarrBlockSource.open(input, t, c);
+		return openSource(input, t, c, true);
+	}
+
+	/** As {@link #openSource(Path, int, int)}; without the cache for tasks that read one block (each chunk once anyway). */
+	public static BlockSource openSource(final Path input, final int t, final int c, final boolean cache) throws IOException {
+		if (OmeZarr.isZarr(input)) return new ZarrBlockSource(OmeZarr.open(input), t, c, cache ? 0 : -1);
 		if (t != 0 || c != 0) throw new IllegalArgumentException(input.getFileName() + " has one frame and one channel");
 		return TiffBlockSource.open(input);
 	}

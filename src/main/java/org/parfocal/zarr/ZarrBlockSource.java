@@ -13,7 +13,9 @@ import org.parfocal.core.VoxelSize;
  * One frame and channel of an OME-Zarr image read a box at a time: a box is put together from the chunks it
  * meets (a block's halo comes from the neighbouring chunks). Decoded chunks are kept in a small least-recently-used
  * cache, so the plane-by-plane passes of the shared levels decode each chunk once when one layer of chunks fits in
- * the cache ({@code cacheBytes}; 0 for a cache of an eighth of the free heap, at most one chunk layer). Every read
+ * the cache ({@code cacheBytes}; 0 for a cache of a sixteenth of the free heap, at most one chunk layer; larger
+ * layers are streamed chunk by chunk instead, see {@link #chunkShape()}). A box read decodes each chunk it meets once
+ * whatever the cache. Every read
  * checks that the array's metadata has not changed since it was opened.
  */
 public final class ZarrBlockSource implements BlockSource {
@@ -38,7 +40,7 @@ public final class ZarrBlockSource implements BlockSource {
 		shape = image.shape();
 		final long chunkBytes = 4L * chunk[0] * chunk[1] * chunk[2];
 		final long layer = chunkBytes * ((shape[0] + chunk[0] - 1) / chunk[0]) * ((shape[1] + chunk[1] - 1) / chunk[1]);
-		capacity = cacheBytes < 0 ? 0 : cacheBytes > 0 ? cacheBytes : Math.max(chunkBytes, Math.min(layer, MemoryBudget.available() / 8));
+		capacity = cacheBytes < 0 ? 0 : cacheBytes > 0 ? cacheBytes : Math.max(chunkBytes, Math.min(layer, MemoryBudget.available() / 16));
 	}
 
 	/** Opens {@code path} and its frame t, channel c. */

@@ -527,7 +527,7 @@ public final class SparkRunner {
 			final Volume psf = psfData.volume();
 			final int[] it = new int[1];
 			final Volume part = Parallelization.runWithNumThreads(threads, () -> {
-				try (var source = ZarrBlockRunner.openSource(Path.of(input), t, c)) {
+				try (var source = ZarrBlockRunner.openSource(Path.of(input), t, c, false)) {
 					final var timed = new org.parfocal.blocks.BlockSource() {
 						@Override
 						public int[] shape() { return source.shape(); }
