@@ -89,6 +89,16 @@ public enum FftBackend {
 		}
 	}
 
+	/** Seconds this process has spent planning FFTW transforms (0 on the pure-Java path): part of a first run's cost. */
+	public static double planningSeconds() {
+		return Probe.ERROR == null ? FftwLibrary.planningSeconds() : 0;
+	}
+
+	/** Native bytes allocated now by the FFTW backend (its work buffers, busy or idle; 0 without FFTW). */
+	public static long nativeBytes() {
+		return Probe.ERROR == null ? FftwLibrary.nativeBytes() : 0;
+	}
+
 	static String version(final Class<?> c, final String fallback) {
 		final Package p = c.getPackage();
 		final String v = p == null ? null : p.getImplementationVersion();

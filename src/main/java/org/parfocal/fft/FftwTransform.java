@@ -87,7 +87,7 @@ final class FftwTransform {
 	}
 
 	private Plans plan(final FftwLibrary.Buffer b) {
-		final int flags = FftwLibrary.planFlags();
+		final int flags = FftwLibrary.planFlags(gridFloats());
 		// every slice must have the alignment of the one planned on, else the plans must not assume any
 		final boolean aligned = slices == 1 || (8L * columns) % FftwLibrary.ALIGN == 0;
 		final int sliceFlags = flags | (aligned ? 0 : FFTW_UNALIGNED);

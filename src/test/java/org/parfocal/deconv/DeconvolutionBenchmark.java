@@ -17,6 +17,8 @@ import org.parfocal.core.Boundary;
 import org.parfocal.core.Monitor;
 import org.parfocal.core.Volume;
 import org.parfocal.fft.FastSizes;
+import org.parfocal.fft.FftBackend;
+import org.parfocal.fft.FftwBound;
 import org.parfocal.fft.RealFft;
 
 /**
@@ -72,6 +74,46 @@ public final class DeconvolutionBenchmark {
 		final long padded = (long) p[0] * p[1] * p[2];
 		System.out.printf(Locale.ROOT, "%nimage %d x %d x %d (z y x), PSF %d x %d x %d, padded %d x %d x %d = %.1f M voxels%n", n[2], n[1], n[0], PSF[2],
 				PSF[1], PSF[0], p[2], p[1], p[0], padded / 1e6);
+		// FFTW's own whole-volume plans on a native grid (FFTW_MEASURE, FFTW's threads): the floor of an iteration
+		final double[] bound = new double[3];
+		for (final int threads : new int[] { 1, 2 }) {
+			final double[] b = FftwBound.fourTransforms(p[0], p[1], p[2], threads, true);
+			if (b == null) break;
+			bound[threads] = b[1];
+			System.out.printf(Locale.ROOT, "  FFTW bound, %d thread(s): 4 whole-volume transforms %.3f s (FFTW_MEASURE planning %.1f s)%n", threads, b[1], b[0]);
+			System.out.printf(Locale.ROOT, "RESULT %d fftw_bound_%d %.5f%n", n[0], threads, b[1]);
+		}
+		final String old = System.getProperty(FftBackend.PROPERTY);
+		for (final FftBackend backend : FftBackend.values()) {
+			if (!backend.available()) continue;
+			System.setProperty(FftBackend.PROPERTY, backend.key());
+			System.out.printf(Locale.ROOT, "  backend %s%n", backend.description());
+			final double planning0 = FftBackend.planningSeconds();
+			final long s0 = System.nanoTime();
+			Parallelization.runWithNumThreads(2, () -> Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, 1), Monitor.NONE));
+			System.out.printf(Locale.ROOT, "    first run (1 iteration, 2 threads): %.2f s, of which FFT planning %.2f s%n", (System.nanoTime() - s0) / 1e9,
+					FftBackend.planningSeconds() - planning0);
+			perIteration(image, psf, p, backend, bound);
+		}
+		if (old == null) System.clearProperty(FftBackend.PROPERTY);
+		else System.setProperty(FftBackend.PROPERTY, old);
+		// memory: the live heap measured by a full GC inside an iteration (all solver arrays live), minus the heap
+		// before the run (the input image); JMX pool peaks are also printed, an upper bound with garbage
+		final long base = usedAfterGc();
+		resetPeaks();
+		final long[] live = new long[2];
+		Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, 2), null, Monitor.NONE, (r, v) -> {
+			if (r.iteration() == 1) {
+				live[0] = usedAfterGc();
+				live[1] = FftBackend.nativeBytes();
+			}
+		});
+		System.out.printf(Locale.ROOT, "  heap during RL (%s): live %.2f x padded volume in float + native buffers %.2f x (solver accounting %.2f), JMX pool peaks %.2f x%n",
+				FftBackend.selected().key(), (live[0] - base) / (4.0 * padded), live[1] / (4.0 * padded), Deconvolution.bytesNeeded(n, PSF, options(DeconvolutionMethod.RL, 1)) / (4.0 * padded),
+				(peakHeap() - base) / (4.0 * padded));
+	}
+
+	private static void perIteration(final Volume image, final Volume psf, final int[] p, final FftBackend backend, final double[] bound) {
 		// rounds interleave 1 and 2 threads, so that a drift of a shared machine hits both alike; medians of rounds
 		final int rounds = 3;
 		final double[][] iter = new double[3][rounds], fft = new double[3][rounds];
@@ -85,27 +127,19 @@ public final class DeconvolutionBenchmark {
 		for (final int threads : new int[] { 1, 2 }) {
 			it[threads] = median(iter[threads]);
 			ff[threads] = median(fft[threads]);
-			System.out.printf(Locale.ROOT, "  %d thread(s): RL iteration %.3f s | bare FFT bound %.3f s | ratio %.3f (medians of %d rounds)%n", threads,
+			System.out.printf(Locale.ROOT, "    %d thread(s): RL iteration %.3f s | bare FFT bound %.3f s | ratio %.3f (medians of %d rounds)%n", threads,
 					it[threads], ff[threads], it[threads] / ff[threads], rounds);
+			if (bound[threads] > 0)
+				System.out.printf(Locale.ROOT, "      iteration / FFTW bound of the padded grid: %.2f%n", it[threads] / bound[threads]);
+			System.out.printf(Locale.ROOT, "RESULT %d %s_iteration_%d %.5f%n", image.shape()[0], backend.key(), threads, it[threads]);
 		}
 		final double[] speedUps = new double[rounds];
 		for (int r = 0; r < rounds; r++) speedUps[r] = iter[1][r] / iter[2][r];
 		Arrays.sort(speedUps);
-		System.out.printf(Locale.ROOT, "  speed-up 2 threads vs 1: %.2f (rounds %.2f to %.2f; FFT bound alone: %.2f)%n", it[1] / it[2], speedUps[0],
+		System.out.printf(Locale.ROOT, "    speed-up 2 threads vs 1: %.2f (rounds %.2f to %.2f; FFT bound alone: %.2f)%n", it[1] / it[2], speedUps[0],
 				speedUps[rounds - 1], ff[1] / ff[2]);
 		final double acc = Parallelization.runWithNumThreads(2, () -> secondsPerIteration(image, psf, DeconvolutionMethod.RL_ACCELERATED, 6));
-		System.out.printf(Locale.ROOT, "  accelerated RL iteration (2 threads) %.3f s = %.2f x a plain one%n", acc, acc / it[2]);
-		// memory: the live heap measured by a full GC inside an iteration (all solver arrays live), minus the heap
-		// before the run (the input image); JMX pool peaks are also printed, an upper bound with garbage
-		final long base = usedAfterGc();
-		resetPeaks();
-		final long[] live = new long[1];
-		Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, 2), null, Monitor.NONE, (r, v) -> {
-			if (r.iteration() == 1) live[0] = usedAfterGc();
-		});
-		System.out.printf(Locale.ROOT, "  heap during RL: live %.2f x padded volume in float (solver accounting %.2f), JMX pool peaks %.2f x%n",
-				(live[0] - base) / (4.0 * padded), Deconvolution.bytesNeeded(n, PSF, options(DeconvolutionMethod.RL, 1)) / (4.0 * padded),
-				(peakHeap() - base) / (4.0 * padded));
+		System.out.printf(Locale.ROOT, "    accelerated RL iteration (2 threads) %.3f s = %.2f x a plain one%n", acc, acc / it[2]);
 	}
 
 	/**
