@@ -242,6 +242,7 @@ public final class DeconvolutionBenchmark {
 					"  time-to-quality (2 threads, medians of %d rounds): plain RL 50 iterations %.2f s (log-likelihood %.7g); accelerated RL %d iterations %.2f s (%.7g, %s); ratio %.2f%n",
 					rounds, median(plainSeconds), target, k, median(accSeconds), acc.logLikelihood(), acc.logLikelihood() >= target ? "reached" : "NOT reached",
 					median(plainSeconds) / median(accSeconds));
+			System.out.printf(Locale.ROOT, "RESULT %d %s_time_to_quality %.5f%n", image.shape()[0], FftBackend.selected().key(), median(accSeconds));
 			return null;
 		});
 	}
