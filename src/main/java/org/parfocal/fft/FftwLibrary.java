@@ -39,15 +39,15 @@ import org.bytedeco.javacpp.Pointer;
  * With measured plans a rerun in another process gives the same bits when it plans from the same wisdom, and
  * otherwise agrees within float rounding. Planning time is counted in {@link #planningSeconds()}.
  * <p>
- * <b>Memory</b>: a transform borrows one native buffer of its grid's size for the duration of a call and gives
- * it back; at most {@link #IDLE_BUFFERS} idle buffers are kept for the next call and the others are freed at
+ * <b>Memory</b>: a transform borrows small native buffers (one slice, or one block of lines) for each step and
+ * gives them back; at most {@link #IDLE_BUFFERS} idle buffers are kept for the next call and the others are freed at
  * once (JavaCPP {@link Pointer#close}), so native memory never grows with the number of runs;
  * {@link #releaseIdle} frees them all. Plans of at most {@link #MAX_PLANS} sizes are kept.
  */
 final class FftwLibrary {
 
-	/** Idle native buffers kept for reuse. */
-	static final int IDLE_BUFFERS = 2;
+	/** Idle native buffers kept for reuse (slice and block buffers of a few threads, each a few hundred KB). */
+	static final int IDLE_BUFFERS = 8;
 	/** Sizes whose plans are kept. */
 	static final int MAX_PLANS = 16;
 	/** Alignment of buffers, in bytes (FFTW's SIMD codelets want 16 or 32). */
@@ -174,20 +174,20 @@ final class FftwLibrary {
 	}
 
 	/**
-	 * The plans of a transform size, made with {@code planner} (given a buffer to plan on) if not cached.
+	 * The plans of a transform size (a grid of {@code gridFloats} floats), made by {@code planner} if not cached.
 	 * Every caller must {@link #unuse} them afterwards.
 	 */
-	static FftwTransform.Plans use(final long key, final Buffer buffer, final java.util.function.Function<Buffer, FftwTransform.Plans> planner) {
+	static FftwTransform.Plans use(final long key, final long gridFloats, final java.util.function.Supplier<FftwTransform.Plans> planner) {
 		synchronized (PLANNER) {
 			FftwTransform.Plans p = PLANS.get(key);
 			if (p == null) {
-				final boolean measure = measure(buffer.length);
+				final boolean measure = measure(gridFloats);
 				if (measure && !wisdomLoaded) {
 					wisdomLoaded = true;
 					if (Files.isRegularFile(WISDOM)) fftwf_import_wisdom_from_filename(WISDOM.toString());
 				}
 				final long t0 = System.nanoTime();
-				p = planner.apply(buffer);
+				p = planner.get();
 				synchronized (FftwLibrary.class) {
 					planningSeconds += (System.nanoTime() - t0) * 1e-9;
 				}

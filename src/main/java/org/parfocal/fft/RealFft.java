@@ -162,7 +162,7 @@ public final class RealFft {
 	public void convolve(final float[] real, final float[] transfer, final boolean conjugate, final float[] work) {
 		checkLengths(real, work);
 		checkTransfer(transfer);
-		if (fftw != null) fftw.convolve(real, nx, transfer, false, conjugate, all, null, all, null);
+		if (fftw != null) fftw.convolve(real, nx, work, transfer, false, conjugate, all, null, all, null);
 		else convolveRows(real, nx, work, transfer, false, conjugate, all, null, all, null);
 	}
 
@@ -279,7 +279,7 @@ public final class RealFft {
 		checkTransfer(transfer);
 		checkRows(input);
 		checkRows(output);
-		if (fftw != null) fftw.convolve(grid, 2 * h, transfer, false, conjugate, input, before, output, after);
+		if (fftw != null) fftw.convolve(grid, 2 * h, grid, transfer, false, conjugate, input, before, output, after);
 		else convolveRows(grid, 2 * h, grid, transfer, false, conjugate, input, before, output, after);
 	}
 
@@ -344,7 +344,7 @@ public final class RealFft {
 			throw new IllegalArgumentException("The transfer function was made for another transform size");
 		checkRows(input);
 		checkRows(output);
-		if (fftw != null) fftw.convolve(grid, 2 * h, transfer.data, transfer.lines, conjugate, input, before, output, after);
+		if (fftw != null) fftw.convolve(grid, 2 * h, grid, transfer.data, transfer.lines, conjugate, input, before, output, after);
 		else convolveRows(grid, 2 * h, grid, transfer.data, transfer.lines, conjugate, input, before, output, after);
 	}
 
