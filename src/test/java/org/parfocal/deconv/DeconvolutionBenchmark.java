@@ -26,12 +26,15 @@ import org.parfocal.fft.RealFft;
  * <ol>
  * <li>seconds per Richardson–Lucy iteration (non-circulant edges) on 64×256×256 and 64×512×512 stacks with
  * a 33×65×65 PSF, with 1 and 2 threads, and the speed-up;</li>
+ * <li>for each FFT backend that runs here (FFTW, JTransforms): the first run's cost with its FFT planning, and
+ * the figures below; and FFTW's own floor, 4 whole-volume FFTW transforms of the padded grid on a native array
+ * ({@link FftwBound}, FFTW_MEASURE, FFTW's threads), with the ratio of an iteration to it;</li>
  * <li>the bare FFT lower bound: 2 forward + 2 inverse real FFTs ({@link RealFft}) of the padded size, full
  * (not pruned), the faster of the out-of-place ({@code forward}/{@code inverse}) and in-place paths, and the
  * ratio of an iteration to it (below 1 is possible: an iteration prunes transforms of rows known to be zero
  * or not needed);</li>
  * <li>peak heap during the run against the padded volume in float (JMX pool peaks, an upper bound that
- * includes uncollected garbage) and the solver's own accounting;</li>
+ * includes uncollected garbage), the native bytes of the FFTW backend's buffers, and the solver's own accounting;</li>
  * <li>time-to-quality on 64×256×256: wall time of plain RL for 50 iterations and of accelerated RL until its
  * log-likelihood reaches plain RL's after 50.</li>
  * </ol>
