@@ -35,6 +35,7 @@ import org.parfocal.quality.QualityWatch;
 import org.parfocal.quality.ReferenceComparison;
 import org.parfocal.quality.StoppingRule;
 import org.parfocal.quality.WatchedRun;
+import org.parfocal.psf.PsfExtent;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
 
@@ -494,10 +495,11 @@ public class Deconvolve implements PlugIn {
 	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes) {
 		final List<Volume> out = new ArrayList<>();
 		if (optics != null) {
-			final PsfGrid grid = optics.grid();
+			final PsfGrid grid = gridFor(optics, in);
 			final Volume v = Commands.withImageJThreads(() -> PsfModels.get(optics.model()).compute(optics.optics(), grid));
 			final Volume fitted = in.nz() == 1 && v.nz() > 1 ? centralPlane(v) : v;
 			for (int c = 0; c < in.channels(); c++) out.add(fitted);
+			notes.addAll(PsfExtent.warnings(fitted, in.first().shape(), microns(in.voxelSize()), optics.optics()));
 			return out;
 		}
 		final Hyperstack p = ImageBridge.toCore(psfImp);
@@ -509,8 +511,33 @@ public class Deconvolve implements PlugIn {
 			Volume v = p.get(p.channels() == 1 ? 0 : c, 0);
 			v = matchVoxelSize(v, in.voxelSize(), notes);
 			out.add(v);
+			for (final String w : PsfExtent.warnings(v, in.first().shape(), microns(in.voxelSize()), null))
+				if (!notes.contains(w)) notes.add(w);
 		}
 		return out;
+	}
+
+	/**
+	 * The grid of a PSF from optics for this stack: sizes given in the options are kept; a size of 0 ("from the
+	 * optics") is chosen for the stack ({@link PsfExtent#forStack}: a widefield box spans the stack's depth and
+	 * holds the defocus cone over it).
+	 */
+	static PsfGrid gridFor(final PsfFromOptics.Options optics, final Hyperstack in) {
+		if (optics.sizeXY() != 0 && optics.sizeZ() != 0) return optics.grid();
+		final PsfGrid auto = PsfExtent.forStack(optics.optics(), optics.voxelXY(), optics.voxelXY(), optics.voxelZ(), in.nx(), in.ny(), in.nz());
+		return new PsfGrid(optics.sizeXY() == 0 ? auto.nx() : optics.sizeXY(), optics.sizeXY() == 0 ? auto.ny() : optics.sizeXY(),
+				optics.sizeZ() == 0 ? auto.nz() : optics.sizeZ(), optics.voxelXY(), optics.voxelXY(), optics.voxelZ());
+	}
+
+	/** {dx, dy, dz} in µm, or null for an uncalibrated stack or an unknown unit. */
+	private static double[] microns(final VoxelSize v) {
+		if (!v.isCalibrated()) return null;
+		try {
+			final double f = PsfGrid.micronsPer(v);
+			return new double[] { v.dx() * f, v.dy() * f, v.dz() * f };
+		} catch (final IllegalArgumentException e) {
+			return null;
+		}
 	}
 
 	private static Volume matchVoxelSize(final Volume psf, final VoxelSize image, final List<String> notes) {
