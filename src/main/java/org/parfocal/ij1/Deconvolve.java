@@ -333,6 +333,12 @@ public class Deconvolve implements PlugIn {
 			vols.add(best ? watches.get(i).best() : r.estimate());
 			for (final String note : r.notes()) if (!notes.contains(note)) notes.add(note);
 		}
+		for (int i = 0; i < watches.size(); i++) {
+			final StoppingRule.Suggestion sg = watches.get(i).suggestion();
+			final String note = "watch" + (watches.size() > 1 ? " (volume " + (i + 1) + ")" : "") + ": " + sg.reason();
+			if (!sg.interior()) notes.add(note);
+			else IJ.log(COMMAND + ": suggested iteration " + sg.iteration() + " (" + sg.reason() + ")");
+		}
 		final String title = WindowManager.makeUniqueName(ConvolveWithPsf.stripExtension(imp.getTitle()) + "-deconvolved.tif");
 		final ImagePlus out = ImageBridge.toImagePlus(new Hyperstack(in.channels(), in.frames(), vols), title, imp.getCalibration());
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);
@@ -419,7 +425,7 @@ public class Deconvolve implements PlugIn {
 			final WatchedRun q = watches.get(i);
 			final String suffix = n > 1 ? "_" + (i + 1) : "";
 			final StoppingRule.Suggestion s = q.suggestion();
-			prov.run("suggested_iteration" + suffix, s.iteration()).run("suggestion" + suffix, s.reason());
+			prov.run("suggested_iteration" + suffix, s.iteration()).run("suggestion" + suffix, s.reason()).run("suggestion_interior" + suffix, s.interior());
 			if (w.stopAtSuggestion()) prov.run("returned_iteration" + suffix, q.best() != null ? s.iteration() : q.points().isEmpty() ? 0 : q.points().get(q.points().size() - 1).iteration());
 			if (!Double.isNaN(q.floor())) prov.run("watch_floor" + suffix, q.floor());
 			final StringBuilder sb = new StringBuilder();
@@ -473,9 +479,10 @@ public class Deconvolve implements PlugIn {
 		plot.setColor(Color.GRAY);
 		plot.drawDottedLine(0, 1, xmax * 1.02, 1, 2);
 		if (!watches.isEmpty() && watches.get(0).suggestion().iteration() > 0) {
-			final int s = watches.get(0).suggestion().iteration();
+			final StoppingRule.Suggestion sg = watches.get(0).suggestion();
+			final int s = sg.iteration();
 			plot.drawDottedLine(s, ymin / 1.2, s, ymax * 1.2, 4);
-			plot.addLabel(0.02, 0.08, "suggested: iteration " + s);
+			plot.addLabel(0.02, 0.08, sg.interior() ? "suggested: iteration " + s : "no interior minimum: iteration " + s + " is the edge of the evaluated range");
 		}
 		plot.setColor(Color.BLACK);
 		plot.addLegend(legend.toString().strip());
