@@ -298,6 +298,7 @@ public class Deconvolve implements PlugIn {
 			final ReferenceComparison.References prepared = o.watch() == null || refs.isEmpty() ? null
 					: CompareWithReferences.named(refs, () -> ReferenceComparison.prepare(refs.stream().map(CompareWithReferences.Reference::volume).toList(), in.first(),
 							ReferenceComparison.Options.defaults().withIgnoreCalibration(o.watch().ignoreCalibration()), monitor));
+			if (prepared != null) for (final String note : prepared.notes()) if (!notes.contains(note)) notes.add(note);
 			for (int t = 0; t < in.frames(); t++)
 				for (int c = 0; c < in.channels(); c++) {
 					final int index = rs.size();

@@ -114,8 +114,9 @@ public final class ReferenceComparison {
 	 * @param rows {@link #PATCHES} first, then the {@link Marginals#NAMES}
 	 * @param volumetricPatches whether the patches were 3D
 	 * @param grid the common voxel size (the result's), or null when calibrations were ignored
+	 * @param notes warnings about the references (e.g. pixel sizes far from the result's), one line each
 	 */
-	public record Report(List<Row> rows, boolean volumetricPatches, VoxelSize grid, int patchDimension) {
+	public record Report(List<Row> rows, boolean volumetricPatches, VoxelSize grid, int patchDimension, List<String> notes) {
 
 		public Row row(final String property) {
 			for (final Row r : rows)
@@ -149,9 +150,11 @@ public final class ReferenceComparison {
 		final SlicedWasserstein.Projected[] marginals;
 		final double[] floor;
 		final int count;
+		final List<String> notes;
 
 		References(final Options options, final VoxelSize grid, final boolean threeD, final boolean volumetric, final double[] spacing, final double[][] directions,
-				final SlicedWasserstein.Projected patches, final SlicedWasserstein.Projected[] marginals, final double[] floor, final int count) {
+				final SlicedWasserstein.Projected patches, final SlicedWasserstein.Projected[] marginals, final double[] floor, final int count, final List<String> notes) {
+			this.notes = List.copyOf(notes);
 			this.options = options;
 			this.grid = grid;
 			this.threeD = threeD;
@@ -168,6 +171,14 @@ public final class ReferenceComparison {
 
 		/** Number of reference images. */
 		public int count() { return count; }
+
+		/**
+		 * Warnings about the references, one line each: a reference whose voxels differ from the result's by more
+		 * than {@link ReferenceComparison#SAMPLING_MISMATCH}× along an axis (it was resampled with anti-aliasing,
+		 * but a reference of much finer or coarser sampling, or of another modality, shows structure at another
+		 * resolution, which moves the distance).
+		 */
+		public List<String> notes() { return notes; }
 
 		/** Floor of each row, in report order. */
 		public double[] floor() { return floor.clone(); }
@@ -231,7 +242,7 @@ public final class ReferenceComparison {
 		}
 		for (int k = 0; k < floor.length; k++) floor[k] /= o.floorSplits();
 		monitor.progress(total, total, "References ready");
-		return new References(o, grid, threeD, volumetric, spacing, directions, patches, marginals, floor, references.size());
+		return new References(o, grid, threeD, volumetric, spacing, directions, patches, marginals, floor, references.size(), samplingNotes(references, grid, threeD));
 	}
 
 	/**
@@ -282,7 +293,7 @@ public final class ReferenceComparison {
 			final double gap = base[k] - refs.floor[k] > 0 ? (base[k] - d[k]) / (base[k] - refs.floor[k]) : Double.NaN;
 			table.add(new Row(k == 0 ? PATCHES : Marginals.NAMES.get(k - 1), d[k], lo, hi, refs.floor[k], base[k], gap));
 		}
-		return new Report(List.copyOf(table), refs.volumetric, refs.grid, o.patches().dimension(refs.volumetric));
+		return new Report(List.copyOf(table), refs.volumetric, refs.grid, o.patches().dimension(refs.volumetric), refs.notes);
 	}
 
 	/** The sliced patch distance of {@code result} alone, without marginals or bootstrap (the cheap watch-mode number). */
@@ -346,6 +357,32 @@ public final class ReferenceComparison {
 		if (!result.isCalibrated()) return null;
 		Resampling.microns(result, "The result");
 		return result;
+	}
+
+	/** Voxel-size ratio between a reference and the result above which {@link References#notes} warn. */
+	public static final double SAMPLING_MISMATCH = 1.5;
+
+	private static List<String> samplingNotes(final List<Volume> refs, final VoxelSize grid, final boolean threeD) {
+		final List<String> notes = new ArrayList<>();
+		if (grid == null) return notes;
+		for (int i = 0; i < refs.size(); i++) {
+			final double[] f = Resampling.scaleFactors(refs.get(i).voxelSize(), grid);
+			double worst = 1;
+			for (int d = 0; d < (threeD ? 3 : 2); d++) worst = Math.max(worst, Math.max(f[d], 1 / f[d]));
+			if (worst > SAMPLING_MISMATCH) {
+				final double[] um = Resampling.microns(refs.get(i).voxelSize(), refName(i)), g = Resampling.microns(grid, "The result");
+				notes.add(String.format(Locale.ROOT, "%s has %s x %s%s µm voxels, %.2g times %s than the result's %s x %s%s µm; it was resampled with"
+						+ " anti-aliasing, but references of a very different sampling or modality show structure at another resolution: prefer references"
+						+ " recorded like the result", refName(i), num(um[0]), num(um[1]), threeD ? " x " + num(um[2]) : "", worst,
+						f[0] < 1 || f[1] < 1 ? "finer" : "coarser", num(g[0]), num(g[1]), threeD ? " x " + num(g[2]) : ""));
+			}
+		}
+		return notes;
+	}
+
+	/** Four significant digits, no trailing zeros. */
+	private static String num(final double v) {
+		return new java.math.BigDecimal(v).round(new java.math.MathContext(4)).stripTrailingZeros().toPlainString();
 	}
 
 	/** {1, dy/dx, dz/dx}. */
