@@ -84,13 +84,51 @@ public final class Provenance {
 
 	/** @throws IllegalArgumentException if the text is not a provenance record */
 	public static Provenance fromJson(final String json) {
+		// Gson reads nested objects recursively: a record nested thousands deep would overflow the stack.
+		final int depth = nesting(json);
+		if (depth > MAX_NESTING) throw new IllegalArgumentException("Provenance record is nested too deeply to read (" + depth + " levels)");
 		try {
 			final Provenance p = GSON.fromJson(json, Provenance.class);
 			if (p == null || p.command == null) throw new IllegalArgumentException("Not a Parfocal provenance record");
+			p.check(0);
 			return p;
 		} catch (final JsonParseException e) {
-			throw new IllegalArgumentException("Provenance record cannot be read: " + e.getMessage());
+			throw new IllegalArgumentException("Provenance record cannot be read: " + oneLine(e.getMessage()));
 		}
+	}
+
+	/** Deepest JSON nesting ({@code {}} and {@code []}) a record may have; a real chain of 20 steps has about 80. */
+	public static final int MAX_NESTING = 200;
+
+	/** Every step has a command and no empty input. */
+	private void check(final int depth) {
+		if (command == null || command.isBlank()) throw new IllegalArgumentException("Provenance record has a step without a command");
+		for (final Input in : inputs()) {
+			if (in == null) throw new IllegalArgumentException("Provenance record of " + command + " has an empty input");
+			if (in.title() == null) throw new IllegalArgumentException("Provenance record of " + command + " has an input without a title");
+			if (in.source() != null) in.source().check(depth + 1);
+		}
+	}
+
+	/** Deepest nesting of objects and arrays outside strings. */
+	private static int nesting(final String json) {
+		int depth = 0, max = 0;
+		boolean inString = false;
+		for (int i = 0; i < json.length(); i++) {
+			final char c = json.charAt(i);
+			if (inString) {
+				if (c == '\\') i++;
+				else if (c == '"') inString = false;
+			} else if (c == '"') inString = true;
+			else if (c == '{' || c == '[') max = Math.max(max, ++depth);
+			else if (c == '}' || c == ']') depth--;
+		}
+		return max;
+	}
+
+	private static String oneLine(final String s) {
+		final String t = String.valueOf(s).replaceAll("\\s+", " ");
+		return t.length() > 160 ? t.substring(0, 157) + "..." : t;
 	}
 
 	/** The human-readable block followed by the JSON line, ready to append to an image's Info. */
