@@ -229,7 +229,7 @@ public class PsfFromBeads implements PlugIn {
 			builder.run("model_fwhm_x_um", model[0]).run("model_fwhm_y_um", model[1]);
 			if (is3D) builder.run("model_fwhm_z_um", model[2]);
 		}
-		for (int i = 0; i < warnings.size(); i++) builder.run("warning" + (i + 1), warnings.get(i));
+		for (final String w : warnings) builder.warning(w);
 		Provenance.attach(psf, builder, start);
 
 		final Overlay overlay = overlay(imp, m.beads(), m.fwhm()[0] / (stack.voxelSize().dx() * um));

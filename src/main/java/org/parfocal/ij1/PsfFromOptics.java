@@ -176,7 +176,7 @@ public class PsfFromOptics implements PlugIn {
 		if (warning != null) IJ.log(COMMAND + ": " + warning);
 		final var builder = Provenance.start(COMMAND, o.macroOptions()).run("grid", grid.nx() + "x" + grid.ny() + "x" + grid.nz())
 				.run("fwhm_x_um", fx).run("fwhm_y_um", fy).run("fwhm_z_um", fz);
-		if (warning != null) builder.run("warning", warning);
+		if (warning != null) builder.warning(warning);
 		Provenance.attach(imp, builder, start);
 		IJ.showStatus(COMMAND + String.format(Locale.ROOT, ": FWHM %.3f x %.3f x %.3f µm", fx, fy, fz));
 		return new Result(imp, profiles(psf, o), table(o, fx, fy, fz), warning);

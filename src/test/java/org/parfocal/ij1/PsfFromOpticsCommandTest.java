@@ -62,7 +62,7 @@ class PsfFromOpticsCommandTest {
 		final String coarse = OPTIONS.replace("voxel_xy=0.08", "voxel_xy=0.2");
 		final ImageJHarness.Result r = ImageJHarness.run(null, CMD, coarse);
 		assertTrue(String.join("\n", r.log()).contains("lateral step 0.2 µm is coarser than Nyquist"), () -> String.join("\n", r.log()));
-		assertTrue(Provenance.of(r.onlyCreated()).orElseThrow().run().get("warning").toString().startsWith("Undersampled"));
+		assertTrue(Provenance.of(r.onlyCreated()).orElseThrow().warnings().get(0).startsWith("Undersampled"));
 	}
 
 	@Test
