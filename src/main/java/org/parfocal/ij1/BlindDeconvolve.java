@@ -192,6 +192,7 @@ public class BlindDeconvolve implements PlugIn {
 		System.arraycopy(titles, 0, starts, 0, titles.length);
 		starts[titles.length] = FROM_OPTICS;
 		starts[titles.length + 1] = GAUSSIAN;
+		Commands.acceptOldValue("edges", EdgeMode.OLD_NON_CIRCULANT_KEY, EdgeMode.NON_CIRCULANT.key());
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", starts, guessStart(titles));
@@ -217,10 +218,7 @@ public class BlindDeconvolve implements PlugIn {
 		gd.addStringField("Offset:", Prefs.get(PREFS + "offset", "auto"), 8);
 		gd.addStringField("Background:", Prefs.get(PREFS + "background", "auto"), 8);
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
-		gd.addHelp("PSF: the starting estimate, an open image, from_optics (computed in the next dialog) or gaussian (FWHM_xy, FWHM_z). "
-				+ "Band limit: needs the optics; without from_optics the next dialog asks for NA, immersion index and emission. "
-				+ "Support: the box the PSF lives in, odd sizes in voxels (or µm); 0 = from the optics or the start. "
-				+ "Offset: camera offset subtracted first (a number, or auto). Background: constant in the model H x + b (a number, or auto).");
+		gd.addHelp(DialogHelp.blind().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
@@ -284,6 +282,7 @@ public class BlindDeconvolve implements PlugIn {
 		gd.addNumericField("NA:", Prefs.get(PREFS + "na", 1.4), 3);
 		gd.addNumericField("Immersion_index:", Prefs.get(PREFS + "immersion_index", 1.518), 4);
 		gd.addNumericField("Emission:", Prefs.get(PREFS + "emission", 0.52), 3, 6, "µm");
+		gd.addHelp(DialogHelp.band().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final double na = Commands.number(gd, "na"), ni = Commands.number(gd, "immersion_index"), em = Commands.number(gd, "emission");

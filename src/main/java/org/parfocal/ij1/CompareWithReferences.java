@@ -128,9 +128,7 @@ public class CompareWithReferences implements PlugIn {
 		gd.addNumericField("Bootstrap:", 50, 0, 6, "resamples (0 = no intervals)");
 		gd.addNumericField("Seed:", 1, 0);
 		gd.addCheckbox("Ignore_calibration (compare voxel for voxel)", false);
-		gd.addHelp("References: every .tif/.tiff in the folder, and/or every open image whose title matches the pattern (* and ? wildcards). "
-				+ "Input and PSF (optional) give the baseline distance, the gap closed and the re-blur chi-square; offset and background are those "
-				+ "of the input (a number, or auto), photons and read noise its noise model.");
+		gd.addHelp(DialogHelp.compare().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String result = Commands.checkChoice("result", gd.getNextChoice(), "image title");

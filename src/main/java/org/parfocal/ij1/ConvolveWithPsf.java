@@ -61,8 +61,7 @@ public class ConvolveWithPsf implements PlugIn {
 		gd.addNumericField("Photons per unit:", 0, 3, 8, "0 = no noise");
 		gd.addNumericField("Seed:", 1, 0);
 		gd.addNumericField("Offset:", 0, 3, 8, "camera offset, added without noise");
-		gd.addHelp("Blurs the image with the PSF (PSF centre voxel at (k-1)/2), adds the background, then Poisson noise with "
-				+ "that many photons per intensity unit, then the camera offset. Boundary: how the image continues beyond its edges.");
+		gd.addHelp(DialogHelp.convolve().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");

@@ -170,6 +170,7 @@ public class Deconvolve implements PlugIn {
 		final String[] psfChoices = new String[titles.length + 1];
 		System.arraycopy(titles, 0, psfChoices, 0, titles.length);
 		psfChoices[titles.length] = FROM_OPTICS;
+		Commands.acceptOldValue("edges", EdgeMode.OLD_NON_CIRCULANT_KEY, EdgeMode.NON_CIRCULANT.key());
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", psfChoices, guessPsf(titles));
@@ -183,8 +184,7 @@ public class Deconvolve implements PlugIn {
 		gd.addStringField("Background:", Prefs.get(PREFS + "background", "auto"), 8);
 		gd.addCheckbox("Plot convergence", true);
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
-		gd.addHelp("Offset: camera offset subtracted first (a number, or auto = 0.1 % quantile). Background: constant in the model "
-				+ "H x + b (a number, or auto = sigma-clipped median). PSF: an open image, or from_optics to compute it in the next dialog.");
+		gd.addHelp(DialogHelp.deconvolve().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
@@ -236,10 +236,7 @@ public class Deconvolve implements PlugIn {
 		gd.addNumericField("Read_noise:", macro ? 0 : Prefs.get(PREFS + "read_noise", 0), 3, 8, "sigma, intensity units");
 		gd.addCheckbox("Stop_at_suggestion (return the suggested iterate)", false);
 		gd.addCheckbox("Ignore_calibration of the references", false);
-		gd.addHelp("Every k iterations the iterate is compared with sharp reference images of the same kind of structure (every .tif in the "
-				+ "folder and/or open images whose title matches the pattern, * and ? wildcards; both may be empty) and re-blurred against the data "
-				+ "(chi-square, noise model: photons per unit and read noise). The suggested iteration is the one closest to the references "
-				+ "(without references: the last with chi-square >= 1).");
+		gd.addHelp(DialogHelp.watch().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final double every = Commands.number(gd, "every");

@@ -138,9 +138,7 @@ public class PsfFromBeads implements PlugIn {
 		gd.addNumericField("Excitation:", Prefs.get(PREFS + "excitation", 0.488), 3, 6, "µm (confocal, two-photon)");
 		gd.addNumericField("Pinhole:", 1, 2, 6, "Airy units (confocal)");
 		gd.addNumericField("Sheet_thickness:", 2, 2, 6, "µm FWHM (light-sheet)");
-		gd.addHelp("Finds beads (local maxima of the lightly smoothed stack above threshold × robust noise), fits each with a Gaussian, "
-				+ "rejects beads whose box leaves the image, saturated beads, beads with a neighbour in the box and intensity or width outliers, "
-				+ "then aligns the rest to sub-voxel precision (Fourier shift), subtracts their background and averages them.");
+		gd.addHelp(DialogHelp.beads().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");

@@ -130,6 +130,7 @@ public class PsfFromOptics implements PlugIn {
 		gd.addNumericField("Size_xy:", 0, 0, 6, "voxels, odd; 0 = from the optics");
 		gd.addNumericField("Size_z:", 0, 0, 6, "voxels, odd; 0 = from the optics");
 		if (withProfiles) gd.addCheckbox("Show_profiles and FWHM table", true);
+		gd.addHelp(DialogHelp.psfFromOptics(withProfiles).html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String model = Commands.checkChoice("model", gd.getNextChoice(), "PSF model (" + String.join(", ", PsfModels.keys()) + ")");

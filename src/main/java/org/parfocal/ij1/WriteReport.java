@@ -57,6 +57,7 @@ public class WriteReport implements PlugIn {
 			final GenericDialog gd = new GenericDialog(COMMAND);
 			gd.addStringField("File:", defaultFile(imp), 50);
 			gd.addCheckbox("Replace an existing report", false);
+			gd.addHelp(DialogHelp.report().html());
 			gd.showDialog();
 			if (gd.wasCanceled()) return;
 			final File f = write(imp, new Options(gd.getNextString().trim(), gd.getNextBoolean()));
