@@ -176,8 +176,8 @@ public class PsfFromBeads implements PlugIn {
 		final Optics optics = NONE.equals(model) ? null
 				: Optics.builder().modality(modality).na(na).immersionIndex(ni).sampleIndex(ns).depth(depth)
 						.emissionWavelength(modality.usesEmission() || emission > 0 ? emission : Double.NaN)
-						.excitationWavelength(modality.usesExcitation() ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
-						.sheetThickness(modality == Modality.LIGHT_SHEET ? sheet : Double.NaN).build();
+						.excitationWavelength(modality.usesExcitation() || excitation > 0 ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
+						.sheetThickness(modality == Modality.LIGHT_SHEET || sheet > 0 ? sheet : Double.NaN).build();
 		return new Options(image, boxXY, boxZ, diameter, threshold, saturated, outlier, background, averaging, symmetrize, vxy, vz, model, optics);
 	}
 

@@ -57,6 +57,17 @@ class PsfFromOpticsCommandTest {
 		assertEquals(Fwhm.lateral(core), ((Number) p.run().get("fwhm_x_um")).doubleValue(), 1e-12);
 	}
 
+	/** Issue 17: a widefield run recorded excitation=0 and sheet_thickness=0 where the dialog showed 0.488 and 2. */
+	@Test
+	void theRecordKeepsWhatWasEnteredAndSaysWhichFieldsTheModalityIgnored() {
+		final var p = Provenance.of(ImageJHarness.run(null, CMD, OPTIONS).onlyCreated()).orElseThrow();
+		assertEquals("0.488", p.options().get("excitation"));
+		assertEquals("2", p.options().get("sheet_thickness"));
+		final String ignored = String.valueOf(p.run().get("ignored"));
+		assertTrue(ignored.contains("excitation") && ignored.contains("sheet_thickness") && ignored.contains("immersion_index_design"), ignored);
+		assertTrue(ignored.contains("born-wolf widefield"), ignored);
+	}
+
 	@Test
 	void undersamplingIsReportedWithTheNumbers() {
 		final String coarse = OPTIONS.replace("voxel_xy=0.08", "voxel_xy=0.2");
