@@ -338,7 +338,9 @@ public class Deconvolve implements PlugIn {
 		prov.run("iterations", first.iterations()).run("stop_reason", stopReason(o.deconvolution(), first) + (o.watch() != null && o.watch().stopAtSuggestion() && !watches.isEmpty()
 				&& watches.get(0).best() != null ? "; the suggested iterate " + watches.get(0).suggestion().iteration() + " was returned (watch mode)" : "")).run("offset", first.offset())
 				.run("background", first.background());
-		if (n > 1) prov.run("volumes", n);
+		if (n > 1) prov.run("volumes", n).run("offset_per_volume", results.stream().map(r -> (Object) r.offset()).toList())
+				.run("background_per_volume", results.stream().map(r -> (Object) r.background()).toList());
+		if (!first.history().isEmpty()) prov.run("relative_change", first.history().stream().map(h -> (Object) h.relativeChange()).toList());
 		if (o.watch() != null) watchProvenance(prov, o.watch(), watches, refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		Provenance.attach(out, prov, start);
@@ -495,6 +497,7 @@ public class Deconvolve implements PlugIn {
 			final Volume v = Commands.withImageJThreads(() -> PsfModels.get(optics.model()).compute(optics.optics(), grid));
 			final Volume fitted = in.nz() == 1 && v.nz() > 1 ? centralPlane(v) : v;
 			for (int c = 0; c < in.channels(); c++) out.add(fitted);
+			if (in.channels() > 1) notes.add("one PSF from the optics used for all " + in.channels() + " channels");
 			return out;
 		}
 		final Hyperstack p = ImageBridge.toCore(psfImp);
@@ -502,6 +505,8 @@ public class Deconvolve implements PlugIn {
 		if (p.channels() != 1 && p.channels() != in.channels())
 			throw new IllegalArgumentException("The PSF has " + p.channels() + " channels but the image has " + in.channels()
 					+ ": give one PSF, or one channel per image channel");
+		if (p.channels() == 1 && in.channels() > 1)
+			notes.add("one PSF ('" + psfImp.getTitle() + "') used for all " + in.channels() + " channels; give one channel per image channel for their own PSFs");
 		for (int c = 0; c < in.channels(); c++) {
 			Volume v = p.get(p.channels() == 1 ? 0 : c, 0);
 			v = matchVoxelSize(v, in.voxelSize(), notes);

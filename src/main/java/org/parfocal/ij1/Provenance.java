@@ -47,7 +47,8 @@ final class Provenance {
 	static String calibration(final ImagePlus imp) {
 		final ij.measure.Calibration c = imp.getCalibration();
 		if (c == null || !c.scaled()) return "uncalibrated";
-		return String.format(java.util.Locale.ROOT, "%.4g x %.4g x %.4g %s", c.pixelWidth, c.pixelHeight, c.pixelDepth, c.getUnit());
+		return org.parfocal.provenance.MacroOptions.number(c.pixelWidth) + " x " + org.parfocal.provenance.MacroOptions.number(c.pixelHeight) + " x "
+				+ org.parfocal.provenance.MacroOptions.number(c.pixelDepth) + " " + c.getUnit();
 	}
 
 	/** The record an image carries in its Info, if Parfocal made it. */
