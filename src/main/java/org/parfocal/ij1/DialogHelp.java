@@ -253,13 +253,16 @@ final class DialogHelp {
 				.field("Bootstrap", "bootstrap", "resamples", "resamples for the intervals; 0 = no intervals")
 				.field("Seed", "seed", "", "seed of the sampling (same seed, same figures)")
 				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when calibrations are missing or differ")
-				.note("<b>The table's columns.</b> <i>distance</i>: the measured distance to the references; <i>interval low/high</i>: the "
-						+ "95 % bootstrap interval; <i>noise floor</i>: the distance between two halves of the references themselves, the "
-						+ "smallest a result can reach; <i>input (blurred) distance</i>: the same distance for the blurred input; "
-						+ "<i>gap closed</i>: (input &minus; result) / (input &minus; floor), the fraction of the way from the blurred input "
-						+ "to the references' own spread. Left blank, with the reason, when there is no input or when the input is already "
-						+ "within the noise floor (nothing to close).")
-				.note("<b>The plot.</b> Quantile curves of each feature: the result, the references (dashed) and the input.");
+				.note("<b>The table's columns.</b> <i>value</i>: the distance to the references (smaller is closer; for the re-blur rows, "
+						+ "the chi-square, about 1 when the result explains the data down to the noise, and the whiteness of the residual); "
+						+ "<i>95% low / 95% high</i>: the bootstrap interval of the distance; <i>noise floor</i>: the distance between two halves "
+						+ "of the references themselves, about the smallest a result can reach; <i>blurred input</i>: the same distance for the "
+						+ "blurred input; <i>gap closed</i>: (blurred input &minus; value) / (blurred input &minus; noise floor), the fraction of the "
+						+ "way from the input to the references' own spread (1 = all the way, 0 = no better than the input, below 0 = worse); "
+						+ "<i>why no gap</i>: why gap closed is blank (no input given, or the input is already within the noise floor, so there "
+						+ "is no gap to close).")
+				.note("<b>The plot.</b> Quantile curves of intensity and gradient magnitude: the references as wide light bands, the "
+						+ "result as a dark line on top; where they overlap the result matches the references' distribution.");
 	}
 
 	static Page export() {
