@@ -79,7 +79,8 @@ final class DialogHelp {
 				.field("Photons per unit", "photons", "photons per intensity unit", "noise level: each voxel's mean is scaled to photons, drawn "
 						+ "from a Poisson law and scaled back; 0 = no noise")
 				.field("Seed", "seed", "", "seed of the noise: the same seed gives the same noise")
-				.field("Offset", "offset", "intensity units", "camera offset added at the end, without noise");
+				.field("Offset", "offset", "intensity units", "camera offset added at the end, without noise")
+				.field("Recentre the PSF", "recentre", "", "shift the PSF so its centre of mass sits on the centre voxel before blurring");
 	}
 
 	static Page psfFromOptics(final boolean withProfiles) {
@@ -174,6 +175,7 @@ final class DialogHelp {
 				.field("Edges", "edges", "", "what lies past the stack's edges: " + EDGES);
 		return levels(p).field("Plot convergence", "plot", "", "show the relative change per iteration")
 				.field("Watch quality", "watch", "", "every few iterations, compare the iterate with sharp references and the data (next dialog)")
+				.field("Recentre the PSF", "recentre", "", "shift an open PSF so its centre of mass sits on the centre voxel (a PSF off centre shifts the result)")
 				.note("With <code>psf=from_optics</code> the keys of PSF from Optics follow (see its Help).");
 	}
 
@@ -189,8 +191,10 @@ final class DialogHelp {
 				+ "iteration is the one closest to the references; without references, the last whose chi-square is still at least 1 "
 				+ "(Morozov's discrepancy principle). Treat it as a region to inspect, not an exact answer.")
 				.field("Every", "every", "iterations", "evaluate every this many iterations")
-				.field("References", "references", "folder", "folder whose .tif/.tiff files are the sharp references; may be empty")
-				.field("Open_references", "open_references", "title pattern", "open images whose title matches (* and ? wildcards); may be empty")
+				.field("Reference_folder", "reference_folder", "folder", "folder whose .tif/.tiff files are the sharp references; may be empty "
+						+ "(formerly <code>references</code>)")
+				.field("Reference_images", "reference_images", "title pattern", "open images whose title matches (* and ? wildcards); may be empty "
+						+ "(formerly <code>open_references</code>)")
 				.field("Photons", "photons", "photons per intensity unit", "noise model of the chi-square (1 = the data are photon counts)")
 				.field("Read_noise", "read_noise", "intensity units (&sigma;)", "camera read noise")
 				.field("Stop_at_suggestion", "stop_at_suggestion", "", "return the suggested iterate instead of the last one (kept in memory during the run)")
@@ -240,8 +244,10 @@ final class DialogHelp {
 				+ "between the distributions of intensity, gradient magnitude and Laplacian. Smaller is closer. With the blurred input and "
 				+ "the PSF it also re-blurs the result and compares with the data.")
 				.field("Result", "result", "", "the image to judge")
-				.field("References", "references", "folder", "folder of sharp reference .tif/.tiff files; may be empty")
-				.field("Open_references", "open_references", "title pattern", "open images whose title matches (* and ? wildcards)")
+				.field("Reference_folder", "reference_folder", "folder", "folder of sharp reference .tif/.tiff files; may be empty "
+						+ "(formerly <code>references</code>)")
+				.field("Reference_images", "reference_images", "title pattern", "open images whose title matches (* and ? wildcards) "
+						+ "(formerly <code>open_references</code>)")
 				.field("Input", "input", "", "the blurred recording the result came from, or <code>none</code>")
 				.field("PSF", "psf", "", "the PSF used, or <code>none</code>; with Input: the re-blur chi-square and whiteness")
 				.field("Offset", "offset", "intensity units", "camera offset of the input: " + LEVEL)
@@ -270,6 +276,12 @@ final class DialogHelp {
 				+ "replaying the recorded chain of Parfocal commands.")
 				.field("Macro", "macro", "file", "the .ijm file to write")
 				.field("Replace an existing file", "replace", "", "overwrite a file of that name (otherwise it is refused)");
+	}
+
+	static Page options() {
+		return new Page("Parfocal Options", "Settings for every Parfocal command, kept in ImageJ's preferences.")
+				.field("FFT_library", "fft_library", "", "<code>auto</code> (FFTW when installed, else JTransforms), <code>fftw</code> or "
+						+ "<code>java</code> (JTransforms, pure Java); the results agree within rounding");
 	}
 
 	static Page report() {

@@ -37,6 +37,7 @@ class DialogHelpTest {
 		PAGES.put("Compare with Sharp References...", List.of(DialogHelp.compare()));
 		PAGES.put("Export Provenance as Macro...", List.of(DialogHelp.export()));
 		PAGES.put("Write Report...", List.of(DialogHelp.report()));
+		PAGES.put("Parfocal Options...", List.of(DialogHelp.options()));
 	}
 
 	private static String readme() throws IOException {
@@ -85,14 +86,17 @@ class DialogHelpTest {
 			final Set<String> helped = new HashSet<>();
 			for (final DialogHelp.Page p : e.getValue()) for (final DialogHelp.Field f : p.fields()) helped.add(f.key());
 			assertFalse(readme.get(e.getKey()).isEmpty(), e.getKey());
-			for (final String key : readme.get(e.getKey())) assertTrue(helped.contains(key), e.getKey() + " Help lacks " + key);
+			final String html = String.join("", e.getValue().stream().map(DialogHelp.Page::html).toList());
+			for (final String key : readme.get(e.getKey()))
+				assertTrue(helped.contains(key) || html.contains("<code>" + key + "</code>"), e.getKey() + " Help lacks " + key);
 		}
 		// the watch dialog's keys are listed in the README's watch paragraph
 		final Matcher m = Pattern.compile("second-dialog keys `([^`]+)`").matcher(readme().replace("\n", " "));
 		assertTrue(m.find());
 		final Set<String> watch = new HashSet<>();
 		for (final DialogHelp.Field f : DialogHelp.watch().fields()) watch.add(f.key());
-		for (final String key : m.group(1).split(" ")) assertTrue(watch.contains(key), "watch Help lacks " + key);
+		for (final String key : m.group(1).split(" "))
+			assertTrue(watch.contains(key) || DialogHelp.watch().html().contains("<code>" + key + "</code>"), "watch Help lacks " + key);
 	}
 
 	@Test
