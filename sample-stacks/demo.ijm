@@ -66,7 +66,7 @@ print("simulated vs bundled recording: max |difference| on a 7-voxel grid = " + 
 if (maxDiff > 0.5) exit("The simulation does not reproduce the bundled recording");
 // 3. Deconvolve the bundled recording: Richardson-Lucy with total variation, camera offset 100 (known for
 //    this camera), background estimated, non-circulant edges.
-run("Deconvolve...", "image=quillwort-widefield.tif psf=" + psf + " method=richardson-lucy-tv iterations=40 regularization=0.002 stop=fixed threshold=0.001 edges=non-circulant offset=100 background=auto");
+run("Deconvolve...", "image=quillwort-widefield.tif psf=" + psf + " method=richardson-lucy-tv iterations=40 regularization=0.002 stop=fixed threshold=0.001 edges=extended offset=100 background=auto");
 path = newPath(out, "quillwort-deconvolved.tif");
 saveAs("Tiff", path);
 print("wrote " + path);

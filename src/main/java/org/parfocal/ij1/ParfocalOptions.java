@@ -30,6 +30,7 @@ public class ParfocalOptions implements PlugIn {
 			final GenericDialog gd = new GenericDialog(COMMAND);
 			gd.addChoice("FFT_library:", CHOICES, System.getProperty(FftBackend.PROPERTY, "auto"));
 			gd.addMessage("FFTW here: " + (FftBackend.FFTW.available() ? FftBackend.FFTW.description() : "not installed (" + FftBackend.FFTW.unavailableReason() + ")"));
+			gd.addHelp(DialogHelp.options().html());
 			gd.showDialog();
 			if (gd.wasCanceled()) return;
 			final String choice = Commands.checkChoice("fft_library", gd.getNextChoice(), "FFT library (auto, fftw or java)");
