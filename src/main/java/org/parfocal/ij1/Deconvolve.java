@@ -51,7 +51,7 @@ import org.parfocal.psf.PsfModels;
  * {@code show_profiles}). {@code offset} and {@code background} take a number or {@code auto}.
  * <p>
  * <b>Watch mode</b> ({@code watch}, off by default; iterative methods only): a second dialog (keys {@code every
- * references open_references photons read_noise stop_at_suggestion ignore_calibration}) sets up a
+ * reference_folder reference_images photons read_noise stop_at_suggestion ignore_calibration}) sets up a
  * {@link QualityWatch} per channel and frame: every {@code every} iterations the iterate's patch distance to
  * sharp references (a folder of TIFFs and/or open images matching a title pattern; optional) and its re-blur
  * χ² against the data (noise model: {@code photons} per intensity unit, {@code read_noise}) are computed; a
@@ -70,7 +70,14 @@ public class Deconvolve implements PlugIn {
 	/**
 	 * What the dialogs decide. {@code optics} is set when {@code psf} is {@link #FROM_OPTICS}.
 	 */
-	public record Options(String image, String psf, PsfFromOptics.Options optics, DeconvolutionOptions deconvolution, boolean plot, Watch watch) {
+	public record Options(String image, String psf, PsfFromOptics.Options optics, DeconvolutionOptions deconvolution, boolean plot, Watch watch,
+			boolean recentre) {
+
+		/** Without re-centring the PSF ({@code recentre}: shift an open PSF's centre of mass to its centre voxel). */
+		public Options(final String image, final String psf, final PsfFromOptics.Options optics, final DeconvolutionOptions deconvolution, final boolean plot,
+				final Watch watch) {
+			this(image, psf, optics, deconvolution, plot, watch, false);
+		}
 
 		/** Without watch mode. */
 		public Options(final String image, final String psf, final PsfFromOptics.Options optics, final DeconvolutionOptions deconvolution, final boolean plot) {
@@ -87,7 +94,7 @@ public class Deconvolve implements PlugIn {
 			final String s = "image=" + MacroOptions.quote(image) + " psf=" + MacroOptions.quote(psf) + " method=" + d.method().key() + " iterations="
 					+ d.iterations() + " regularization=" + MacroOptions.number(d.regularization()) + " stop=" + d.stopping().key() + " threshold="
 					+ MacroOptions.number(d.changeThreshold()) + " edges=" + d.edges().key() + " offset=" + level(d.offset()) + " background="
-					+ level(d.background()) + (plot ? " plot" : "") + (watch != null ? " watch" : "");
+					+ level(d.background()) + (plot ? " plot" : "") + (watch != null ? " watch" : "") + (recentre ? " recentre" : "");
 			final String withOptics = optics == null ? s : s + " " + optics.macroOptions();
 			return watch == null ? withOptics : withOptics + " " + watch.macroOptions();
 		}
@@ -123,7 +130,7 @@ public class Deconvolve implements PlugIn {
 		}
 
 		public String macroOptions() {
-			return "every=" + every + " references=" + MacroOptions.quote(referenceFolder) + " open_references=" + MacroOptions.quote(openReferences)
+			return "every=" + every + " reference_folder=" + MacroOptions.quote(referenceFolder) + " reference_images=" + MacroOptions.quote(openReferences)
 					+ " photons=" + MacroOptions.number(photons) + " read_noise=" + MacroOptions.number(readNoise) + (stopAtSuggestion ? " stop_at_suggestion" : "")
 					+ (ignoreCalibration ? " ignore_calibration" : "");
 		}
@@ -135,16 +142,16 @@ public class Deconvolve implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.DECONVOLVE, () -> {
 			Options o = showDialog();
-			if (o == null) return;
+			if (o == null) throw Commands.cancelled();
 			if (o.watch() != null && !o.watch().ignoreCalibration()) {
 				final ImagePlus imp = Commands.image(o.image(), "image");
 				final String problem = CompareWithReferences.calibrationProblem(imp,
 						CompareWithReferences.references(o.watch().referenceFolder(), o.watch().openReferences(), List.of(o.image(), o.psf())), null);
 				if (problem != null) {
-					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) return;
-					o = new Options(o.image(), o.psf(), o.optics(), o.deconvolution(), o.plot(), o.watch().withIgnoreCalibration());
+					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) throw Commands.cancelled();
+					o = new Options(o.image(), o.psf(), o.optics(), o.deconvolution(), o.plot(), o.watch().withIgnoreCalibration(), o.recentre());
 				}
 			}
 			final Output out = run(o);
@@ -174,16 +181,17 @@ public class Deconvolve implements PlugIn {
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", psfChoices, guessPsf(titles));
-		gd.addChoice("Method:", DeconvolutionMethod.keys(), Prefs.get(PREFS + "method", DeconvolutionMethod.RL_TV.key()));
-		gd.addNumericField("Iterations:", Prefs.get(PREFS + "iterations", 30), 0, 6, "at most, with relative-change stop");
-		gd.addNumericField("Regularization:", Prefs.get(PREFS + "regularization", 0.002), 4, 8, "TV weight (RL-TV) or Wiener weight");
-		gd.addChoice("Stop:", new String[] { Stopping.FIXED.key(), Stopping.RELATIVE_CHANGE.key() }, Prefs.get(PREFS + "stop", Stopping.FIXED.key()));
-		gd.addNumericField("Threshold:", Prefs.get(PREFS + "threshold", 0.001), 5, 8, "relative change that stops");
-		gd.addChoice("Edges:", EdgeMode.keys(), Prefs.get(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
-		gd.addStringField("Offset:", Prefs.get(PREFS + "offset", "auto"), 8);
-		gd.addStringField("Background:", Prefs.get(PREFS + "background", "auto"), 8);
+		gd.addChoice("Method:", DeconvolutionMethod.keys(), Commands.remembered(PREFS + "method", DeconvolutionMethod.RL_TV.key()));
+		gd.addNumericField("Iterations:", Commands.remembered(PREFS + "iterations", 30), 0, 6, "at most, with relative-change stop");
+		gd.addNumericField("Regularization:", Commands.remembered(PREFS + "regularization", 0.002), 4, 8, "TV weight (RL-TV) or Wiener weight");
+		gd.addChoice("Stop:", new String[] { Stopping.FIXED.key(), Stopping.RELATIVE_CHANGE.key() }, Commands.remembered(PREFS + "stop", Stopping.FIXED.key()));
+		gd.addNumericField("Threshold:", Commands.remembered(PREFS + "threshold", 0.001), 5, 8, "relative change that stops");
+		gd.addChoice("Edges:", EdgeMode.keys(), Commands.remembered(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
+		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
+		gd.addStringField("Background:", Commands.remembered(PREFS + "background", "auto"), 8);
 		gd.addCheckbox("Plot convergence", true);
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
+		gd.addCheckbox("Recentre the PSF (shift its centre of mass to the centre voxel)", false);
 		gd.addHelp("Offset: camera offset subtracted first (a number, or auto = 0.1 % quantile). Background: constant in the model "
 				+ "H x + b (a number, or auto = sigma-clipped median). PSF: an open image, or from_optics to compute it in the next dialog.");
 		gd.showDialog();
@@ -198,6 +206,7 @@ public class Deconvolve implements PlugIn {
 		final String offset = gd.getNextString().trim(), background = gd.getNextString().trim();
 		final boolean plot = gd.getNextBoolean();
 		final boolean watch = gd.getNextBoolean();
+		final boolean recentre = gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		if (iterations != Math.rint(iterations)) throw new IllegalArgumentException("Iterations must be a whole number, got " + iterations);
 		final DeconvolutionOptions d = new DeconvolutionOptions(method, (int) iterations, regularization, stop,
@@ -223,18 +232,18 @@ public class Deconvolve implements PlugIn {
 			Prefs.set(PREFS + "offset", offset);
 			Prefs.set(PREFS + "background", background);
 		}
-		return new Options(image, psf, optics, d, plot, w);
+		return new Options(image, psf, optics, d, plot, w, recentre);
 	}
 
 	/** The watch-mode dialog; in a macro, values not given take the defaults (never remembered ones). */
 	static Watch showWatchDialog() {
 		final boolean macro = Commands.isMacro();
 		final GenericDialog gd = new GenericDialog(COMMAND + ": watch quality");
-		gd.addNumericField("Every:", macro ? 5 : Prefs.get(PREFS + "every", 5), 0, 6, "iterations");
-		gd.addStringField("References:", macro ? "" : Prefs.get(PREFS + "references", ""), 30);
-		gd.addStringField("Open_references:", macro ? "" : Prefs.get(PREFS + "open_references", ""), 20);
-		gd.addNumericField("Photons:", macro ? 1 : Prefs.get(PREFS + "photons", 1), 4, 8, "per intensity unit (1 = photon counts)");
-		gd.addNumericField("Read_noise:", macro ? 0 : Prefs.get(PREFS + "read_noise", 0), 3, 8, "sigma, intensity units");
+		gd.addNumericField("Every:", macro ? 5 : Commands.remembered(PREFS + "every", 5), 0, 6, "iterations");
+		gd.addStringField("Reference_folder:", macro ? "" : Commands.remembered(PREFS + "references", ""), 30);
+		gd.addStringField("Reference_images:", macro ? "" : Commands.remembered(PREFS + "open_references", ""), 20);
+		gd.addNumericField("Photons:", macro ? 1 : Commands.remembered(PREFS + "photons", 1), 4, 8, "per intensity unit (1 = photon counts)");
+		gd.addNumericField("Read_noise:", macro ? 0 : Commands.remembered(PREFS + "read_noise", 0), 3, 8, "sigma, intensity units");
 		gd.addCheckbox("Stop_at_suggestion (return the suggested iterate)", false);
 		gd.addCheckbox("Ignore_calibration of the references", false);
 		gd.addHelp("Every k iterations the iterate is compared with sharp reference images of the same kind of structure (every .tif in the "
@@ -278,7 +287,7 @@ public class Deconvolve implements PlugIn {
 		final Hyperstack in = ImageBridge.toCore(imp);
 		final ImagePlus psfImp = o.optics() == null ? Commands.image(o.psf(), "PSF") : null;
 		final List<String> notes = new ArrayList<>();
-		final List<Volume> psfs = psfsFor(in, psfImp, o.optics(), notes);
+		final List<Volume> psfs = psfsFor(in, psfImp, o.optics(), notes, o.recentre());
 		final long budget = Long.getLong(BUDGET_PROPERTY, BlockPlan.heapBudget());
 		if (o.watch() == null && BlockPlan.needed(in.first().shape(), psfs.get(0).shape(), o.deconvolution(), budget))
 			return runInBlocks(o, imp, in, psfImp, psfs, notes, budget, start);
@@ -501,6 +510,15 @@ public class Deconvolve implements PlugIn {
 
 	/** One PSF per channel: resampled to the image's voxel size if needed, with a note. */
 	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes) {
+		return psfsFor(in, psfImp, optics, notes, false);
+	}
+
+	/**
+	 * The PSF per channel; an open PSF whose centre of mass is more than half a voxel off its centre voxel is
+	 * re-centred (whole voxels, {@link Psfs#recentred}) when {@code recentre}, else a warning note is added.
+	 */
+	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes,
+			final boolean recentre) {
 		final List<Volume> out = new ArrayList<>();
 		if (optics != null) {
 			final PsfGrid grid = gridFor(optics, in);
@@ -518,6 +536,12 @@ public class Deconvolve implements PlugIn {
 		for (int c = 0; c < in.channels(); c++) {
 			Volume v = p.get(p.channels() == 1 ? 0 : c, 0);
 			v = matchVoxelSize(v, in.voxelSize(), notes);
+			final String offCentre = Psfs.centroidWarning(v);
+			if (offCentre != null && recentre) {
+				final double[] off = Psfs.centroidOffset(v);
+				v = Psfs.recentred(v);
+				notes.add("PSF re-centred: its centre of mass was off its centre voxel by " + fmt(off[0]) + ", " + fmt(off[1]) + ", " + fmt(off[2]) + " voxels");
+			} else if (offCentre != null) notes.add("Warning: " + offCentre);
 			out.add(v);
 			for (final String w : PsfExtent.warnings(v, in.first().shape(), microns(in.voxelSize()), null))
 				if (!notes.contains(w)) notes.add(w);
