@@ -180,21 +180,22 @@ public final class BlindDeconvolution {
 			final PsfConstraints constraints = new PsfConstraints(k[0], k[1], k[2], um[0], um[1], um[2],
 					options.bandLimit() ? OtfSupport.widefield(options.optics()) : null, options.symmetric(), options.centring(), hFinal);
 			constraints.trustRegion(hFinal, plan.trustRadius());
-			final BlindSolver r = new BlindSolver(fit.psf(), n, options.edges(), y, d.background(), options.objectTv(), options.psfTv(), constraints);
-			r.holdOut(ModelFit.checkerboard(n));
-			for (int i = 0; i < plan.settings().objectIterations(); i++) {
+			final float[][] halves = ModelFit.split(y, plan.settings().photonsPerUnit());
+			final BlindSolver r = new BlindSolver(fit.psf(), n, options.edges(), halves[0], d.background() / 2, options.objectTv(), options.psfTv(), constraints);
+			r.validateWith(halves[1]);
+			for (int i = 0; i < plan.settings().candidateIterations(); i++) {
 				mon.checkCancelled();
 				r.objectUpdate(mon::checkCancelled);
 			}
 			// PSF steps in blocks of snapshotInterval iterations; at each block's end the block's PSF is checked
-			// against the last kept one, each with the object re-fitted (candidateIterations RL iterations from the
-			// refinement's object on the training voxels) and scored on the held-out voxels: at a fixed object, a
-			// narrower PSF always looks better while the object is blurrier than the truth
-			final BlindSolver check = new BlindSolver(fit.psf(), n, options.edges(), y, d.background(), options.objectTv(), 0,
-					new PsfConstraints(k[0], k[1], k[2], 1, 1, 1, null, false, false, hFinal));
-			check.holdOut(ModelFit.checkerboard(n));
+			// against the last kept one, each with its own object re-fitted from the flat start (candidateIterations
+			// RL iterations on the training voxels) and scored on the held-out voxels: at a fixed object, a narrower
+			// PSF looks better while the object is blurrier than the truth, and an object warm-started from the
+			// refinement's favours the PSF it was fitted with
+			final BlindSolver check = ModelFit.solver(fit.psf(), n, options.edges(), halves, d.background(), options.objectTv());
 			float[] kept = hFinal.clone();
-			double keptScore = Double.NaN;
+			final float[] flat = check.objectCopy();
+			double keptScore = fit.heldOutLogLikelihood();
 			final int block = options.snapshotInterval(), w = plan.settings().candidateIterations();
 			for (int it = 1; it <= max; it++) {
 				mon.checkCancelled();
@@ -202,18 +203,19 @@ public final class BlindDeconvolution {
 				for (int u = 0; u < options.objectUpdates(); u++) r.objectUpdate(mon::checkCancelled);
 				for (int u = 0; u < Math.max(1, options.psfUpdates()); u++) r.psfUpdate(mon::checkCancelled);
 				if (it % block == 0 || it == max) {
-					final float[] x = r.objectCopy(), cand = r.psf().clone();
+					final float[] cand = r.psf().clone();
 					final double dist = constraints.distanceToAnchor(cand);
-					final double before = score(check, kept, x, w, mon), after = score(check, cand, x, w, mon);
-					keptScore = before;
+					final double before = keptScore, after = score(check, cand, flat, w, mon);
 					final boolean keep = after >= before;
 					final String why = keep
 							? String.format(Locale.ROOT, "kept: held-out log-likelihood (object re-fitted) %+.4g; distance to the model %.3f (trust radius %.3g)", after - before, dist,
 									plan.trustRadius())
 							: String.format(Locale.ROOT, "undone: held-out log-likelihood (object re-fitted) would fall by %.4g; distance to the model %.3f", before - after, dist);
 					steps.add(new RefineStep(it, before, after, dist, keep, why));
-					if (keep) kept = cand;
-					else r.replacePsf(kept);
+					if (keep) {
+						kept = cand;
+						keptScore = after;
+					} else r.replacePsf(kept);
 					if (it < max) snaps.add(snapshot(it, r.psf(), h0, k, vs));
 				}
 			}
@@ -246,12 +248,11 @@ public final class BlindDeconvolution {
 				d.background(), notes, fit, steps);
 	}
 
-	/** Held-out log-likelihood of PSF h with the object re-fitted: w RL iterations from x on the training voxels. */
+	/** Held-out log-likelihood of PSF h with its own object: w RL iterations from x (the flat start) on the training voxels. */
 	private static double score(final BlindSolver check, final float[] h, final float[] x, final int w, final Monitor mon) {
 		check.replacePsf(h);
 		check.setObject(x);
-		for (int i = 0; i < w; i++) check.objectUpdate(mon::checkCancelled);
-		return check.evaluate()[1];
+		return ModelFit.peakHeldOut(check, w, mon::checkCancelled);
 	}
 
 	/** µm per voxel, or 1 per voxel for an uncalibrated image (used only by constraints that then are off). */

@@ -63,8 +63,8 @@ final class BlindSolver {
 	private final float b, floor, lambda, eps, lambdaH, epsH, seed;
 	/** Per-row partials: of window rows (ratio) and of object rows (update). */
 	private final double[] w1, w2, w3, r1, r2, r3;
-	/** Voxels of the image whose data are used (true) or held out (false), or null: all used. */
-	private boolean[] mask;
+	/** Independent validation data on the image (same model Hx + b), or null. */
+	private float[] validation;
 	/** Phase ramps exp(−2πi k·s/p) of the shift s per axis, (re, im) per frequency; null without shift. */
 	private final double[] phaseX, phaseY, phaseZ;
 	private final PsfConstraints constraints;
@@ -236,7 +236,7 @@ final class BlindSolver {
 		final double ll = ordered(w1), model = ordered(w2);
 		specValid = false;
 		tHoldsX = true;
-		return new Step(ll, model, cs[0], cs[1], mask == null ? Double.NaN : ordered(w3));
+		return new Step(ll, model, cs[0], cs[1], validation == null ? Double.NaN : ordered(w3));
 	}
 
 	/** One PSF update followed by the constraints; relative change is Σ|h_new − h| (both unit sum). */
@@ -276,16 +276,16 @@ final class BlindSolver {
 		cancelCheck.run();
 		newTransfer();
 		if (mode == EdgeMode.NON_CIRCULANT) updateSensitivity();
-		return new Step(ll, model, change, org.parfocal.core.Sums.sum(h), mask == null ? Double.NaN : ordered(w3));
+		return new Step(ll, model, change, org.parfocal.core.Sums.sum(h), validation == null ? Double.NaN : ordered(w3));
 	}
 
 	/**
-	 * Holds out the image voxels where {@code use} is false (null: use all): object and PSF updates then see only
-	 * the others (missing data, EM form), and every step also reports the held-out voxels' log-likelihood.
+	 * Sets independent validation data of the image's shape (null: none), e.g. the other half of a Poisson
+	 * thinning of the recording: every step then also reports its log-likelihood under the same model Hx + b.
 	 */
-	void holdOut(final boolean[] use) {
-		if (use != null && use.length != nx * ny * nz) throw new IllegalArgumentException("The mask does not match the image");
-		mask = use;
+	void validateWith(final float[] v) {
+		if (v != null && v.length != nx * ny * nz) throw new IllegalArgumentException("The validation data do not match the image");
+		validation = v;
 	}
 
 	/**
@@ -301,8 +301,8 @@ final class BlindSolver {
 	}
 
 	/**
-	 * Log-likelihood of the current object and PSF without an update: {used voxels, held-out voxels (NaN
-	 * without a mask)}. One convolution.
+	 * Log-likelihood of the current object and PSF without an update: {data, validation data (NaN without)}.
+	 * One convolution.
 	 */
 	double[] evaluate() {
 		if (specValid) productInverse(false);
@@ -317,7 +317,7 @@ final class BlindSolver {
 				final int row = (iy + wy) + py * (iz + wz);
 				r.row(row, row * rs);
 			}
-		return new double[] { ordered(w1), mask == null ? Double.NaN : ordered(w3) };
+		return new double[] { ordered(w1), validation == null ? Double.NaN : ordered(w3) };
 	}
 
 	/**
@@ -480,36 +480,17 @@ final class BlindSolver {
 			final int wr = (r % py - wy - dy) + ny * (r / py - wz - dz);
 			final int q = o + wx + dx, yo = wr * nx;
 			double ll = 0, model = 0, held = 0;
-			final boolean[] m = mask;
-			if (m == null) {
-				for (int i = 0; i < nx; i++) {
-					final float hx = tt[q + i];
-					float den = hx + b;
-					if (!(den >= floor)) den = floor;
-					final float yy = y[yo + i];
-					model += hx;
-					ll -= den;
-					if (yy > 0) ll += yy * FastLog.ln(den);
-					tt[q + i] = yy / den;
-				}
-			} else {
-				// held-out voxels: the EM step for missing data puts their expected value Hx + b in place of y,
-				// i.e. a ratio of 1; their log-likelihood is kept apart (the validation criterion)
-				for (int i = 0; i < nx; i++) {
-					final float hx = tt[q + i];
-					float den = hx + b;
-					if (!(den >= floor)) den = floor;
-					final float yy = y[yo + i];
-					model += hx;
-					final double l = yy > 0 ? yy * Math.log(den) - den : -den;
-					if (m[yo + i]) {
-						ll += l;
-						tt[q + i] = yy / den;
-					} else {
-						held += l;
-						tt[q + i] = 1f;
-					}
-				}
+			final float[] v = validation;
+			for (int i = 0; i < nx; i++) {
+				final float hx = tt[q + i];
+				float den = hx + b;
+				if (!(den >= floor)) den = floor;
+				final float yy = y[yo + i];
+				model += hx;
+				ll -= den;
+				if (yy > 0) ll += yy * FastLog.ln(den);
+				if (v != null) held += v[yo + i] > 0 ? v[yo + i] * Math.log(den) - den : -den;
+				tt[q + i] = yy / den;
 			}
 			Arrays.fill(tt, o, q, 0f);
 			Arrays.fill(tt, q + nx, o + px, 0f);

@@ -161,52 +161,71 @@ public final class ModelFit {
 	}
 
 	/**
-	 * @param objectIterations RL iterations of the shared object before the first search and between searches
-	 * @param candidateIterations RL iterations of each candidate's object, warm-started from the shared object
-	 * @param rounds searches at most (alternating with the shared object's iterations); stops early when a search
-	 *        moves no parameter by more than a tenth of its scale
-	 * @param maxEvaluations cap on the candidates of one search
+	 * @param candidateIterations cap on the RL iterations of each candidate's object, from the flat start (each stops past its held-out peak)
+	 * @param maxEvaluations cap on the candidates of the search
 	 * @param objectTv TV weight of the object fits (0: plain RL)
 	 * @param uncertainty also compute σ from the curvature (2p² + 1 more candidates)
+	 * @param photonsPerUnit photons per data unit after offset removal (camera gain's inverse), for the split
 	 */
-	public record Settings(int objectIterations, int candidateIterations, int rounds, int maxEvaluations, double objectTv, boolean uncertainty) {
-		public static final int DEFAULT_OBJECT_ITERATIONS = 40, DEFAULT_CANDIDATE_ITERATIONS = 8, DEFAULT_ROUNDS = 4, DEFAULT_MAX_EVALUATIONS = 40;
+	public record Settings(int candidateIterations, int maxEvaluations, double objectTv, boolean uncertainty, double photonsPerUnit) {
+		public static final int DEFAULT_CANDIDATE_ITERATIONS = 150, DEFAULT_MAX_EVALUATIONS = 40;
 
 		public Settings {
-			if (objectIterations < 1 || objectIterations > 10_000)
-				throw new IllegalArgumentException("Object iterations between model searches must be between 1 and 10000, got " + objectIterations);
 			if (candidateIterations < 1 || candidateIterations > 1000)
 				throw new IllegalArgumentException("Object iterations per candidate PSF must be between 1 and 1000, got " + candidateIterations);
-			if (rounds < 1 || rounds > 100) throw new IllegalArgumentException("Model searches must be between 1 and 100, got " + rounds);
 			if (maxEvaluations < 3 || maxEvaluations > 10_000)
-				throw new IllegalArgumentException("The candidate PSFs of one model search must be between 3 and 10000, got " + maxEvaluations);
+				throw new IllegalArgumentException("The candidate PSFs of the model search must be between 3 and 10000, got " + maxEvaluations);
 			if (!(objectTv >= 0 && objectTv <= BlindOptions.MAX_TV_WEIGHT))
 				throw new IllegalArgumentException("The object TV weight must be between 0 and " + BlindOptions.MAX_TV_WEIGHT + ", got " + objectTv);
+			if (!(photonsPerUnit > 0) || !Double.isFinite(photonsPerUnit))
+				throw new IllegalArgumentException("Photons per unit must be positive, got " + photonsPerUnit);
+		}
+
+		public Settings(final int candidateIterations, final int maxEvaluations, final double objectTv, final boolean uncertainty) {
+			this(candidateIterations, maxEvaluations, objectTv, uncertainty, 1);
 		}
 
 		public static Settings defaults() {
-			return new Settings(DEFAULT_OBJECT_ITERATIONS, DEFAULT_CANDIDATE_ITERATIONS, DEFAULT_ROUNDS, DEFAULT_MAX_EVALUATIONS, 0, true);
+			return new Settings(DEFAULT_CANDIDATE_ITERATIONS, DEFAULT_MAX_EVALUATIONS, 0, true, 1);
 		}
 
 		public Settings withObjectTv(final double tv) {
-			return new Settings(objectIterations, candidateIterations, rounds, maxEvaluations, tv, uncertainty);
+			return new Settings(candidateIterations, maxEvaluations, tv, uncertainty, photonsPerUnit);
+		}
+
+		public Settings withPhotonsPerUnit(final double s) {
+			return new Settings(candidateIterations, maxEvaluations, objectTv, uncertainty, s);
 		}
 	}
 
-	/** The training voxels: a 3D checkerboard (x + y + z even), the others held out. */
-	static boolean[] checkerboard(final int[] n) {
-		final boolean[] m = new boolean[n[0] * n[1] * n[2]];
-		for (int z = 0, i = 0; z < n[2]; z++)
-			for (int y = 0; y < n[1]; y++)
-				for (int x = 0; x < n[0]; x++, i++) m[i] = ((x + y + z) & 1) == 0;
-		return m;
+	/** Seed of the split (fixed: the fit is deterministic). */
+	static final long SPLIT_SEED = 0x5eed_15L;
+
+	/**
+	 * Poisson thinning: {first half, second half} of y, each photon of round(max(y, 0)·s) to either half with
+	 * probability ½ (Binomial(c, ½) as the number of set bits among c random bits: exact, and no library samples
+	 * a binomial this cheaply), divided back by s. Sequential and seeded: the same split on every run.
+	 */
+	static float[][] split(final float[] y, final double photonsPerUnit) {
+		final float[] a = new float[y.length], b = new float[y.length];
+		final java.util.SplittableRandom r = new java.util.SplittableRandom(SPLIT_SEED);
+		for (int i = 0; i < y.length; i++) {
+			final double v = y[i] * photonsPerUnit;
+			long c = v > 0 ? Math.round(v) : 0;
+			long k = 0;
+			final long total = c;
+			for (; c >= 64; c -= 64) k += Long.bitCount(r.nextLong());
+			if (c > 0) k += Long.bitCount(r.nextLong() & ((1L << c) - 1));
+			a[i] = (float) (k / photonsPerUnit);
+			b[i] = (float) ((total - k) / photonsPerUnit);
+		}
+		return new float[][] { a, b };
 	}
 
 	/**
-	 * Fits the space's parameters to the data: alternately, the shared object (training voxels) takes
-	 * {@code objectIterations} RL iterations with the current PSF, and a Nelder–Mead search picks the parameters
-	 * whose PSF, after {@code candidateIterations} more object iterations from the shared object, best predicts
-	 * the held-out voxels.
+	 * Fits the space's parameters to the data: a Nelder–Mead search for the parameters whose PSF, with its own
+	 * object ({@code candidateIterations} RL iterations from the flat start on the training voxels), best
+	 * predicts the held-out voxels.
 	 *
 	 * @param y offset-corrected data (not modified)
 	 * @param um voxel sizes in µm
@@ -217,16 +236,15 @@ public final class ModelFit {
 		final long t0 = System.nanoTime();
 		final Monitor mon = monitor == null ? Monitor.NONE : monitor;
 		final PsfGrid grid = new PsfGrid(box[0], box[1], box[2], um[0], um[1], um[2]);
-		final boolean[] train = checkerboard(n);
+		final float[][] halves = split(y, settings.photonsPerUnit());
 		final double[] start = space.start(), scale = space.scales(), lo = space.low(), hi = space.high();
 		final int p = start.length;
 		final List<Candidate> trace = new ArrayList<>();
 		final List<String> notes = new ArrayList<>();
-		final Volume p0 = space.psf(start, grid);
-		final BlindSolver shared = solver(p0, n, edges, y, background, settings, train);
-		final BlindSolver cand = solver(p0, n, edges, y, background, settings, train);
 		final Map<String, Double> cache = new LinkedHashMap<>();
-		final int total = settings.rounds() * (settings.maxEvaluations() + settings.objectIterations() / Math.max(1, settings.candidateIterations()));
+		final BlindSolver cand = solver(space.psf(start, grid), n, edges, halves, background, settings.objectTv());
+		final float[] flat = cand.objectCopy();
+		final int total = settings.maxEvaluations() + (settings.uncertainty() ? 2 * p * p + 1 : 0);
 		final java.util.function.ToDoubleFunction<double[]> score = v -> {
 			final String key = java.util.Arrays.toString(v);
 			final Double c = cache.get(key);
@@ -234,32 +252,15 @@ public final class ModelFit {
 			mon.checkCancelled();
 			mon.progress(Math.min(trace.size(), total), total, "Fitting the PSF model: candidate " + (trace.size() + 1));
 			cand.replacePsf(space.psf(v, grid).data());
-			cand.setObject(shared.objectCopy());
-			for (int i = 0; i < settings.candidateIterations(); i++) cand.objectUpdate(mon::checkCancelled);
-			final double s = cand.evaluate()[1];
+			cand.setObject(flat);
+			final double s = peakHeldOut(cand, settings.candidateIterations(), mon::checkCancelled);
 			cache.put(key, s);
 			trace.add(new Candidate(v.clone(), s));
 			return s;
 		};
-		double[] v = start.clone();
-		double bestScore = Double.NaN;
-		int round = 0;
-		for (; round < settings.rounds(); round++) {
-			for (int i = 0; i < settings.objectIterations(); i++) shared.objectUpdate(mon::checkCancelled);
-			cache.clear();
-			final double[] from = v.clone();
-			final double[] got = search(score, from, scale, lo, hi, settings.maxEvaluations(), notes);
-			bestScore = score.applyAsDouble(got);
-			boolean moved = false;
-			for (int i = 0; i < p; i++) moved |= Math.abs(got[i] - from[i]) > 0.1 * scale[i];
-			v = got;
-			shared.replacePsf(space.psf(v, grid).data());
-			if (!moved) {
-				round++;
-				break;
-			}
-		}
-		notes.add(String.format(Locale.ROOT, "Model fit: %d search round(s), %d candidate PSFs", round, trace.size()));
+		final double[] v = search(score, start, scale, lo, hi, settings.maxEvaluations(), notes);
+		final double bestScore = score.applyAsDouble(v);
+		notes.add(String.format(Locale.ROOT, "Model fit: %d candidate PSFs searched", trace.size()));
 		final double[] sigma = fill(p, Double.NaN);
 		if (settings.uncertainty()) curvature(score, v, scale, lo, hi, sigma, notes);
 		final List<Parameter> params = new ArrayList<>();
@@ -272,12 +273,12 @@ public final class ModelFit {
 		return new Fit(space.model(), params, psf, space.optics(v), bestScore, trace.size(), (System.nanoTime() - t0) * 1e-9, trace, notes);
 	}
 
-	private static BlindSolver solver(final Volume psf, final int[] n, final EdgeMode edges, final float[] y, final double background,
-			final Settings settings, final boolean[] train) {
+	/** A solver fitted to the first half (background b/2), validated on the second. */
+	static BlindSolver solver(final Volume psf, final int[] n, final EdgeMode edges, final float[][] halves, final double background, final double objectTv) {
 		final int[] k = psf.shape();
 		final PsfConstraints none = new PsfConstraints(k[0], k[1], k[2], 1, 1, 1, null, false, false, psf.data());
-		final BlindSolver s = new BlindSolver(psf, n, edges, y, background, settings.objectTv(), 0, none);
-		s.holdOut(train);
+		final BlindSolver s = new BlindSolver(psf, n, edges, halves[0], background / 2, objectTv, 0, none);
+		s.validateWith(halves[1]);
 		return s;
 	}
 
@@ -355,11 +356,32 @@ public final class ModelFit {
 		return a;
 	}
 
-	/** Held-out log-likelihood of one candidate PSF with its own object, {@code iterations} RL iterations from the flat start. */
-	static double heldOut(final float[] y, final int[] n, final EdgeMode edges, final double background, final Volume psf, final boolean[] train,
-			final int iterations, final double objectTv) {
-		final BlindSolver s = solver(psf, n, edges, y, background, new Settings(1, 1, 1, 3, objectTv, false), train);
-		for (int i = 0; i < iterations; i++) s.objectUpdate(() -> {});
-		return s.evaluate()[1];
+	/** Validation log-likelihood of one candidate PSF with its own object (best along at most {@code iterations} RL iterations). */
+	static double heldOut(final float[][] halves, final int[] n, final EdgeMode edges, final double background, final Volume psf, final int iterations,
+			final double objectTv) {
+		return peakHeldOut(solver(psf, n, edges, halves, background, objectTv), iterations, () -> {});
+	}
+
+	/** Iterations past the held-out peak after which a candidate's object run stops. */
+	static final int PATIENCE = 8;
+
+	/**
+	 * The best held-out log-likelihood along the solver's RL path (at most {@code cap} updates; stops
+	 * {@link #PATIENCE} updates past the best): each candidate stopped where its own object predicts the
+	 * held-out voxels best (cross-validated early stopping). A fixed iteration count would favour narrow PSFs,
+	 * with which RL converges faster.
+	 */
+	static double peakHeldOut(final BlindSolver s, final int cap, final Runnable cancel) {
+		double best = Double.NEGATIVE_INFINITY;
+		int since = 0;
+		for (int i = 0; i < cap && since < PATIENCE; i++) {
+			final double v = s.objectUpdate(cancel).heldOutLogLikelihood();
+			if (v > best) {
+				best = v;
+				since = 0;
+			} else since++;
+		}
+		if (since < PATIENCE) best = Math.max(best, s.evaluate()[1]);
+		return best;
 	}
 }

@@ -60,14 +60,17 @@ public final class PsfRanking {
 	 * @param refs references prepared for results like the image ({@link ReferenceComparison#prepare})
 	 * @param deconvolution the non-blind run each candidate gets (same for all)
 	 * @param noise the noise model of the χ²
-	 * @param heldOutIterations RL iterations of the held-out score's object (0: no held-out score)
+	 * @param heldOutIterations cap on the RL iterations of the held-out score's object (0: no held-out score;
+	 *        {@link ModelFit}'s Poisson-thinning split, with the noise model's photons per unit)
 	 */
 	public static Ranking rank(final Volume image, final List<Candidate> candidates, final ReferenceComparison.References refs,
 			final DeconvolutionOptions deconvolution, final ReblurConsistency.NoiseModel noise, final int heldOutIterations, final Monitor monitor) {
+		final double photonsPerUnit = noise == null ? 1 : noise.photonsPerUnit();
 		if (candidates == null || candidates.size() < 2) throw new IllegalArgumentException("Ranking PSFs needs at least two candidates");
 		final Monitor mon = monitor == null ? Monitor.NONE : monitor;
 		final List<Row> rows = new ArrayList<>();
 		final Preprocessing.Data d = Preprocessing.data(image, deconvolution.offset(), deconvolution.background());
+		final float[][] halves = ModelFit.split(d.y(), photonsPerUnit);
 		for (int i = 0; i < candidates.size(); i++) {
 			final Candidate c = candidates.get(i);
 			mon.checkCancelled();
@@ -80,7 +83,7 @@ public final class PsfRanking {
 			final int margin = Math.max(unit.nx(), unit.nz()) / 2;
 			final double chi = ReblurConsistency.evaluate(image, r.estimate(), h, noise, Math.min(margin, Math.min(image.nx(), image.nz()) / 4)).meanChiSquare();
 			final double ho = heldOutIterations > 0
-					? ModelFit.heldOut(d.y(), image.shape(), deconvolution.edges(), d.background(), unit, ModelFit.checkerboard(image.shape()), heldOutIterations,
+					? ModelFit.heldOut(halves, image.shape(), deconvolution.edges(), d.background(), unit, heldOutIterations,
 							deconvolution.method().key().contains("tv") ? deconvolution.regularization() : 0)
 					: Double.NaN;
 			rows.add(new Row(c.name(), p.distance(), p.low(), p.high(), chi, ho));
