@@ -49,7 +49,7 @@ class BatchRunnerTest {
 
 		assertEquals(4, rows.size());
 		assertTrue(rows.get(0).ok() && rows.get(1).ok(), rows.toString());
-		assertTrue(!rows.get(2).ok() && rows.get(2).message().contains("cannot open"), rows.get(2).toString());
+		assertTrue(!rows.get(2).ok() && rows.get(2).message().contains("cell-3-corrupt.tif is not a TIFF file"), rows.get(2).toString());
 		assertTrue(!rows.get(3).ok() && rows.get(3).message().contains("RGB"), rows.get(3).toString());
 		assertTrue(Files.isRegularFile(out.resolve("cell-1-blur.tif")) && Files.isRegularFile(out.resolve("cell-2-blur.tif")));
 		final List<String> summary = Files.readAllLines(out.resolve("summary.csv"));
