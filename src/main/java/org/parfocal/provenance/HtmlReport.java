@@ -4,6 +4,7 @@ import java.util.ArrayList;
 import java.util.Base64;
 import java.util.List;
 import java.util.Map;
+import java.util.Objects;
 
 /**
  * A self-contained HTML page describing one run: the caution, what was made and from what, every parameter, the
@@ -56,7 +57,9 @@ public final class HtmlReport {
 		if (!p.inputs().isEmpty()) {
 			final List<List<String>> rows = new ArrayList<>();
 			for (final Provenance.Input in : p.inputs())
-				rows.add(List.of(in.role(), in.title(), in.path() == null ? "" : in.path(), in.shape(), in.sha256(),
+				// a field may be missing (the blocks runner records no pixel hash: it never holds the stack): List.of takes no null
+				rows.add(List.of(Objects.toString(in.role(), ""), Objects.toString(in.title(), ""), Objects.toString(in.path(), ""),
+						Objects.toString(in.shape(), ""), Objects.toString(in.sha256(), "not recorded"),
 						in.source() == null ? "" : in.source().command() + "... " + MacroOptions.format(new java.util.LinkedHashMap<>(in.source().options()))));
 			h.append(tableHtml(new Table("Inputs", List.of("role", "title", "file", "shape", "SHA-256 of pixels", "made by"), rows)));
 		}
