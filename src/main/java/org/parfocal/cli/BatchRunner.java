@@ -128,28 +128,31 @@ public final class BatchRunner {
 			final Path tmp = out.resolve(OutputFiles.temporary(out, targetName).getFileName() + ".tif");
 			String message = null;
 			Path published = null;
-			closeAllImages(); // each stack starts alone: no window of an earlier stack can be picked by title
-			try {
-				message = fileProblem(stack, psf);
-				if (message == null) {
-					final String psfTitle = psf.isEmpty() ? "" : uniqueTitle("batch-psf-" + index + "-" + Path.of(psf).getFileName(), name);
-					final String prologue = prologue(stack, psf, psfTitle, out);
-					final HeadlessMacro.Outcome o = HeadlessMacro.run(prologue + recipeText + epilogue(tmp), null);
-					if (o.failed()) message = recipeLine(o, prologue);
-					else if (!Files.isRegularFile(tmp)) message = "the recipe wrote no output";
-					else message = psfProvenanceProblem(tmp, psf, psfTitle);
-					if (message == null) published = OutputFiles.publish(tmp, out, targetName);
-				}
-			} catch (final IOException | RuntimeException e) {
-				message = "cannot write the output: " + TiffBlockSource.oneLine(e);
-			} catch (final OutOfMemoryError e) {
-				message = "out of memory (" + MemoryBudget.format(Runtime.getRuntime().maxMemory()) + " heap); give the batch more heap (PARFOCAL_JAVA_OPTS=-Xmx...)";
-			} finally {
-				closeAllImages();
+			// ImageJ's images are per JVM: batches running on several threads of one JVM take turns per stack
+			synchronized (HeadlessMacro.class) {
+				closeAllImages(); // each stack starts alone: no window of an earlier stack can be picked by title
 				try {
-					Files.deleteIfExists(tmp);
-				} catch (final IOException e) {
-					System.err.println("Could not delete the temporary file " + tmp + ": " + TiffBlockSource.oneLine(e));
+					message = fileProblem(stack, psf);
+					if (message == null) {
+						final String psfTitle = psf.isEmpty() ? "" : uniqueTitle("batch-psf-" + index + "-" + Path.of(psf).getFileName(), name);
+						final String prologue = prologue(stack, psf, psfTitle, out);
+						final HeadlessMacro.Outcome o = HeadlessMacro.run(prologue + recipeText + epilogue(tmp), null);
+						if (o.failed()) message = recipeLine(o, prologue);
+						else if (!Files.isRegularFile(tmp)) message = "the recipe wrote no output";
+						else message = psfProvenanceProblem(tmp, psf, psfTitle);
+						if (message == null) published = OutputFiles.publish(tmp, out, targetName);
+					}
+				} catch (final IOException | RuntimeException e) {
+					message = "cannot write the output: " + TiffBlockSource.oneLine(e);
+				} catch (final OutOfMemoryError e) {
+					message = "out of memory (" + MemoryBudget.format(Runtime.getRuntime().maxMemory()) + " heap); give the batch more heap (PARFOCAL_JAVA_OPTS=-Xmx...)";
+				} finally {
+					closeAllImages();
+					try {
+						Files.deleteIfExists(tmp);
+					} catch (final IOException e) {
+						System.err.println("Could not delete the temporary file " + tmp + ": " + TiffBlockSource.oneLine(e));
+					}
 				}
 			}
 			final boolean ok = message == null;

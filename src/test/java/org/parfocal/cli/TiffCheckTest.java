@@ -24,7 +24,7 @@ import org.junit.jupiter.api.io.TempDir;
  * and from tifffile 2023.2.3 (one IFD per page, and zlib strips; {@code tools/golden/gen_tiff_pages.py}), whose
  * page offsets the script prints (pixels at 208, 592, 976, 1360, headers at 8, 1744, 1910, 2076, 2242 bytes).
  */
-class TiffCheckTest {
+public class TiffCheckTest {
 
 	@Test
 	void anImageJStackCutInHalfIsRefusedThoughImageJOpensItAsAShorterStack(@TempDir final Path dir) throws IOException {
@@ -86,7 +86,7 @@ class TiffCheckTest {
 		assertTrue(e.getMessage().contains("empty.tif"));
 	}
 
-	static void cut(final Path f, final long length) throws IOException {
+	public static void cut(final Path f, final long length) throws IOException {
 		try (RandomAccessFile r = new RandomAccessFile(f.toFile(), "rw")) {
 			r.setLength(length);
 		}
