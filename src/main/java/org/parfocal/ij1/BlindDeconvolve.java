@@ -59,7 +59,7 @@ import org.parfocal.psf.PsfModels;
  * means automatic.
  * <p>
  * <b>Watch mode</b> ({@code watch}, off by default): the second dialog and keys of {@code Deconvolve...}'s watch
- * mode ({@code every references open_references photons read_noise stop_at_suggestion ignore_calibration}). Every
+ * mode ({@code every reference_folder reference_images photons read_noise stop_at_suggestion ignore_calibration}). Every
  * {@code every} outer iterations a {@link BlindQualityWatch} computes the current object's patch distance to the
  * sharp references and its re-blur χ² with the PSF estimate of the same iteration; a plot shows both against
  * the iteration and {@link StoppingRule} suggests one. With {@code stop_at_suggestion} the deblurred image and
@@ -164,14 +164,14 @@ public class BlindDeconvolve implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.BLIND_DECONVOLVE, () -> {
 			Options o = showDialog();
-			if (o == null) return;
+			if (o == null) throw Commands.cancelled();
 			if (o.watch() != null && !o.watch().ignoreCalibration()) {
 				final String problem = CompareWithReferences.calibrationProblem(Commands.image(o.image(), "image"),
 						CompareWithReferences.references(o.watch().referenceFolder(), o.watch().openReferences(), List.of(o.image(), o.psf())), null);
 				if (problem != null) {
-					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) return;
+					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) throw Commands.cancelled();
 					o = o.withWatch(o.watch().withIgnoreCalibration());
 				}
 			}
@@ -195,27 +195,27 @@ public class BlindDeconvolve implements PlugIn {
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", starts, guessStart(titles));
-		gd.addNumericField("FWHM_xy:", Prefs.get(PREFS + "fwhm_xy", 0.25), 3, 6, "µm, lateral width of a gaussian start");
-		gd.addNumericField("FWHM_z:", Prefs.get(PREFS + "fwhm_z", 0.7), 3, 6, "µm, axial width of a gaussian start");
+		gd.addNumericField("FWHM_xy:", Commands.remembered(PREFS + "fwhm_xy", 0.25), 3, 6, "µm, lateral width of a gaussian start");
+		gd.addNumericField("FWHM_z:", Commands.remembered(PREFS + "fwhm_z", 0.7), 3, 6, "µm, axial width of a gaussian start");
 		gd.addMessage("Schedule");
-		gd.addNumericField("Iterations:", Prefs.get(PREFS + "iterations", BlindOptions.DEFAULT_ITERATIONS), 0, 6, "outer iterations");
-		gd.addNumericField("Object_updates:", Prefs.get(PREFS + "object_updates", 1), 0, 6, "per iteration");
-		gd.addNumericField("PSF_updates:", Prefs.get(PREFS + "psf_updates", 1), 0, 6, "per iteration (0: PSF kept)");
-		gd.addNumericField("Object_TV:", Prefs.get(PREFS + "object_tv", BlindOptions.DEFAULT_OBJECT_TV), 4, 8, "total-variation weight");
-		gd.addNumericField("PSF_TV:", Prefs.get(PREFS + "psf_tv", 0), 4, 8, "total-variation weight");
+		gd.addNumericField("Iterations:", Commands.remembered(PREFS + "iterations", BlindOptions.DEFAULT_ITERATIONS), 0, 6, "outer iterations");
+		gd.addNumericField("Object_updates:", Commands.remembered(PREFS + "object_updates", 1), 0, 6, "per iteration");
+		gd.addNumericField("PSF_updates:", Commands.remembered(PREFS + "psf_updates", 1), 0, 6, "per iteration (0: PSF kept)");
+		gd.addNumericField("Object_TV:", Commands.remembered(PREFS + "object_tv", BlindOptions.DEFAULT_OBJECT_TV), 4, 8, "total-variation weight");
+		gd.addNumericField("PSF_TV:", Commands.remembered(PREFS + "psf_tv", 0), 4, 8, "total-variation weight");
 		gd.addMessage("PSF constraints");
-		gd.addCheckbox("Band_limit (optical cutoff 2 NA / wavelength; widefield)", Prefs.get(PREFS + "band_limit", true));
-		gd.addCheckbox("Symmetric (cylindrical about the optical axis)", Prefs.get(PREFS + "symmetric", false));
-		gd.addCheckbox("Centring (keep the centre of mass of the start)", Prefs.get(PREFS + "centring", true));
-		gd.addNumericField("Support_xy:", Prefs.get(PREFS + "support_xy", 0), 2, 6, "PSF box width; 0 = automatic");
-		gd.addNumericField("Support_z:", Prefs.get(PREFS + "support_z", 0), 2, 6, "PSF box depth; 0 = automatic");
-		gd.addChoice("Support_units:", new String[] { VOXELS, MICRONS }, Prefs.get(PREFS + "support_units", VOXELS));
+		gd.addCheckbox("Band_limit (optical cutoff 2 NA / wavelength; widefield)", Commands.remembered(PREFS + "band_limit", true));
+		gd.addCheckbox("Symmetric (cylindrical about the optical axis)", Commands.remembered(PREFS + "symmetric", false));
+		gd.addCheckbox("Centring (keep the centre of mass of the start)", Commands.remembered(PREFS + "centring", true));
+		gd.addNumericField("Support_xy:", Commands.remembered(PREFS + "support_xy", 0), 2, 6, "PSF box width; 0 = automatic");
+		gd.addNumericField("Support_z:", Commands.remembered(PREFS + "support_z", 0), 2, 6, "PSF box depth; 0 = automatic");
+		gd.addChoice("Support_units:", new String[] { VOXELS, MICRONS }, Commands.remembered(PREFS + "support_units", VOXELS));
 		gd.addMessage("Output and data");
-		gd.addNumericField("Snapshot_interval:", Prefs.get(PREFS + "snapshot_interval", BlindOptions.DEFAULT_SNAPSHOT_INTERVAL), 0, 6,
+		gd.addNumericField("Snapshot_interval:", Commands.remembered(PREFS + "snapshot_interval", BlindOptions.DEFAULT_SNAPSHOT_INTERVAL), 0, 6,
 				"iterations between PSF snapshots");
-		gd.addChoice("Edges:", EdgeMode.keys(), Prefs.get(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
-		gd.addStringField("Offset:", Prefs.get(PREFS + "offset", "auto"), 8);
-		gd.addStringField("Background:", Prefs.get(PREFS + "background", "auto"), 8);
+		gd.addChoice("Edges:", EdgeMode.keys(), Commands.remembered(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
+		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
+		gd.addStringField("Background:", Commands.remembered(PREFS + "background", "auto"), 8);
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
 		gd.addHelp("PSF: the starting estimate, an open image, from_optics (computed in the next dialog) or gaussian (FWHM_xy, FWHM_z). "
 				+ "Band limit: needs the optics; without from_optics the next dialog asks for NA, immersion index and emission. "
@@ -281,9 +281,9 @@ public class BlindDeconvolve implements PlugIn {
 	private static BandOptics showBandDialog() {
 		final GenericDialog gd = new GenericDialog(COMMAND + ": optics for the band limit");
 		gd.addMessage("The band-limit constraint needs the widefield optics:");
-		gd.addNumericField("NA:", Prefs.get(PREFS + "na", 1.4), 3);
-		gd.addNumericField("Immersion_index:", Prefs.get(PREFS + "immersion_index", 1.518), 4);
-		gd.addNumericField("Emission:", Prefs.get(PREFS + "emission", 0.52), 3, 6, "µm");
+		gd.addNumericField("NA:", Commands.remembered(PREFS + "na", 1.4), 3);
+		gd.addNumericField("Immersion_index:", Commands.remembered(PREFS + "immersion_index", 1.518), 4);
+		gd.addNumericField("Emission:", Commands.remembered(PREFS + "emission", 0.52), 3, 6, "µm");
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final double na = Commands.number(gd, "na"), ni = Commands.number(gd, "immersion_index"), em = Commands.number(gd, "emission");
@@ -517,7 +517,7 @@ public class BlindDeconvolve implements PlugIn {
 	}
 
 	private static String guessStart(final String[] titles) {
-		final String last = Prefs.get(PREFS + "start", GAUSSIAN);
+		final String last = Commands.remembered(PREFS + "start", GAUSSIAN);
 		if (FROM_OPTICS.equals(last) || GAUSSIAN.equals(last)) return last;
 		for (final String t : titles) if (t.toLowerCase(Locale.ROOT).contains("psf")) return t;
 		return GAUSSIAN;

@@ -35,9 +35,9 @@ import org.parfocal.quality.ReferenceComparison;
  * table (distances with bootstrap intervals, floor, baseline, gap closed, χ², whiteness) and a plot of the
  * quantile curves of intensity and gradient magnitude (result vs references), which carries the provenance.
  * <p>
- * References: every TIFF in a folder ({@code references=}) and/or every open image whose title matches a
- * pattern ({@code open_references=}, {@code *} and {@code ?} wildcards). Macro keys (public API): {@code result
- * references open_references input psf offset background photons read_noise patch_size patches bootstrap seed
+ * References: every TIFF in a folder ({@code reference_folder=}) and/or every open image whose title matches a
+ * pattern ({@code reference_images=}, {@code *} and {@code ?} wildcards). Macro keys (public API): {@code result
+ * reference_folder reference_images input psf offset background photons read_noise patch_size patches bootstrap seed
  * ignore_calibration}.
  */
 public class CompareWithReferences implements PlugIn {
@@ -59,13 +59,13 @@ public class CompareWithReferences implements PlugIn {
 
 		public Options {
 			if (referenceFolder.isBlank() && openReferences.isBlank())
-				throw new IllegalArgumentException("No reference images given: name a folder of TIFFs (references=) or a title pattern of open images (open_references=)");
+				throw new IllegalArgumentException("No reference images given: name a folder of TIFFs (reference_folder=) or a title pattern of open images (reference_images=)");
 			if (!(photons > 0) || !Double.isFinite(photons)) throw new IllegalArgumentException("Photons per unit must be positive, got " + photons);
 			if (!(readNoise >= 0) || !Double.isFinite(readNoise)) throw new IllegalArgumentException("Read noise must be 0 or more, got " + readNoise);
 		}
 
 		public String macroOptions() {
-			return "result=" + MacroOptions.quote(result) + " references=" + MacroOptions.quote(referenceFolder) + " open_references="
+			return "result=" + MacroOptions.quote(result) + " reference_folder=" + MacroOptions.quote(referenceFolder) + " reference_images="
 					+ MacroOptions.quote(openReferences) + " input=" + MacroOptions.quote(input) + " psf=" + MacroOptions.quote(psf) + " offset="
 					+ Deconvolve.Options.level(offset) + " background=" + Deconvolve.Options.level(background) + " photons=" + MacroOptions.number(photons)
 					+ " read_noise=" + MacroOptions.number(readNoise) + " patch_size=" + patchSize + " patches=" + patches + " bootstrap=" + bootstrap
@@ -90,13 +90,13 @@ public class CompareWithReferences implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.COMPARE, () -> {
 			Options o = showDialog();
-			if (o == null) return;
+			if (o == null) throw Commands.cancelled();
 			if (!o.ignoreCalibration()) {
 				final String problem = calibrationProblem(o);
 				if (problem != null) {
-					if (!askIgnoreCalibration(COMMAND, problem)) return;
+					if (!askIgnoreCalibration(COMMAND, problem)) throw Commands.cancelled();
 					o = o.withIgnoreCalibration(true);
 				}
 			}
@@ -115,8 +115,8 @@ public class CompareWithReferences implements PlugIn {
 		final boolean macro = Commands.isMacro();
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Result:", titles, Commands.currentTitle(titles));
-		gd.addStringField("References:", macro ? "" : Prefs.get(PREFS + "folder", ""), 30);
-		gd.addStringField("Open_references:", macro ? "" : Prefs.get(PREFS + "pattern", ""), 20);
+		gd.addStringField("Reference_folder:", macro ? "" : Commands.remembered(PREFS + "folder", ""), 30);
+		gd.addStringField("Reference_images:", macro ? "" : Commands.remembered(PREFS + "pattern", ""), 20);
 		gd.addChoice("Input:", optional, NONE);
 		gd.addChoice("PSF:", optional, NONE);
 		gd.addStringField("Offset:", "auto", 8);
@@ -268,6 +268,7 @@ public class CompareWithReferences implements PlugIn {
 		final ReferenceComparison.Report report = (ReferenceComparison.Report) core[0];
 		final ReblurConsistency.Result chi = (ReblurConsistency.Result) core[1];
 		final MarginalQuantiles.Curves curves = (MarginalQuantiles.Curves) core[2];
+		for (final String note : report.notes()) IJ.log(COMMAND + ": " + note);
 		final String base = ConvolveWithPsf.stripExtension(resImp.getTitle());
 		final ResultsTable table = table(report, chi);
 		final Plot plot = plot(curves, base, refs.size());
@@ -281,6 +282,7 @@ public class CompareWithReferences implements PlugIn {
 		if (!Double.isNaN(p.baseline())) prov.run("baseline", p.baseline()).run("gap_closed", p.gapClosed());
 		if (chi != null) prov.run("chi_square", chi.meanChiSquare()).run("whiteness", chi.whiteness());
 		prov.run("table", report.toText().strip().replace('\n', ';'));
+		if (!report.notes().isEmpty()) prov.run("notes", String.join("; ", report.notes()));
 		Provenance.attach(plotImp, prov, start);
 		monitor.done(String.format(Locale.ROOT, "patch distance %.4g (floor %.4g)", p.distance(), p.floor()));
 		return new Output("Reference comparison of " + base, table, plot, report, chi);

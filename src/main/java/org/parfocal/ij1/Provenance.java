@@ -53,6 +53,19 @@ final class Provenance {
 		}
 	}
 
+	/**
+	 * The record of an image for commands that work on the record itself (export, report): a damaged record is an
+	 * error naming the damage, not "no record". @throws IllegalArgumentException one line
+	 */
+	static Optional<org.parfocal.provenance.Provenance> ofChecked(final ImagePlus imp) {
+		final Object info = imp.getProperty("Info");
+		try {
+			return org.parfocal.provenance.Provenance.findIn(info instanceof String s ? s : null);
+		} catch (final IllegalArgumentException e) {
+			throw new IllegalArgumentException("The Parfocal record in the Info of '" + imp.getTitle() + "' is damaged: " + e.getMessage());
+		}
+	}
+
 	/** Completes the record (versions, time since {@code startNanos}, threads, date) and appends it to {@code out}'s Info. */
 	static org.parfocal.provenance.Provenance attach(final ImagePlus out, final Builder builder, final long startNanos) {
 		final org.parfocal.provenance.Provenance p = builder.versions(version(), IJ.getFullVersion(), System.getProperty("java.version"))

@@ -75,9 +75,9 @@ public class PsfFromOptics implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.PSF_FROM_OPTICS, () -> {
 			final Options o = showDialog(WindowManager.getCurrentImage(), true);
-			if (o == null) return;
+			if (o == null) throw Commands.cancelled();
 			final Result r = run(o);
 			if (o.showProfiles()) {
 				r.profiles().show();
@@ -106,22 +106,22 @@ public class PsfFromOptics implements PlugIn {
 			// uncalibrated: the user must type the voxel size; 0 is refused with a message
 		}
 		final GenericDialog gd = new GenericDialog(COMMAND);
-		gd.addChoice("Model:", PsfModels.keys(), Prefs.get(PREFS + "model", "gibson-lanni"));
-		gd.addChoice("Modality:", Modality.keys(), Prefs.get(PREFS + "modality", "widefield"));
+		gd.addChoice("Model:", PsfModels.keys(), Commands.remembered(PREFS + "model", "gibson-lanni"));
+		gd.addChoice("Modality:", Modality.keys(), Commands.remembered(PREFS + "modality", "widefield"));
 		gd.addMessage("Objective and sample (lengths in µm)");
-		gd.addNumericField("NA:", Prefs.get(PREFS + "na", 1.4), 3);
-		gd.addNumericField("Immersion_index:", Prefs.get(PREFS + "ni", 1.518), 4);
-		gd.addNumericField("Immersion_index_design:", Prefs.get(PREFS + "nid", 1.518), 4);
-		gd.addNumericField("Sample_index:", Prefs.get(PREFS + "ns", 1.518), 4);
+		gd.addNumericField("NA:", Commands.remembered(PREFS + "na", 1.4), 3);
+		gd.addNumericField("Immersion_index:", Commands.remembered(PREFS + "ni", 1.518), 4);
+		gd.addNumericField("Immersion_index_design:", Commands.remembered(PREFS + "nid", 1.518), 4);
+		gd.addNumericField("Sample_index:", Commands.remembered(PREFS + "ns", 1.518), 4);
 		gd.addNumericField("Coverslip_index:", 1.522, 4);
 		gd.addNumericField("Coverslip_index_design:", 1.522, 4);
 		gd.addNumericField("Coverslip_thickness:", 170, 1, 6, "µm");
 		gd.addNumericField("Coverslip_thickness_design:", 170, 1, 6, "µm");
 		gd.addNumericField("Working_distance:", 150, 1, 6, "µm");
-		gd.addNumericField("Depth:", Prefs.get(PREFS + "depth", 0), 2, 6, "µm below the coverslip");
+		gd.addNumericField("Depth:", Commands.remembered(PREFS + "depth", 0), 2, 6, "µm below the coverslip");
 		gd.addMessage("Light");
-		gd.addNumericField("Emission:", Prefs.get(PREFS + "emission", 0.52), 3, 6, "µm");
-		gd.addNumericField("Excitation:", Prefs.get(PREFS + "excitation", 0.488), 3, 6, "µm (confocal, two-photon)");
+		gd.addNumericField("Emission:", Commands.remembered(PREFS + "emission", 0.52), 3, 6, "µm");
+		gd.addNumericField("Excitation:", Commands.remembered(PREFS + "excitation", 0.488), 3, 6, "µm (confocal, two-photon)");
 		gd.addNumericField("Pinhole:", 1, 2, 6, "Airy units (confocal)");
 		gd.addNumericField("Sheet_thickness:", 2, 2, 6, "µm FWHM (light-sheet)");
 		gd.addMessage("Sampling");

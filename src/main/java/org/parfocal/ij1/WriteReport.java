@@ -49,7 +49,7 @@ public class WriteReport implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.WRITE_REPORT, () -> {
 			final ImagePlus imp = WindowManager.getCurrentImage();
 			if (imp == null) throw new IllegalArgumentException("No image is open");
 			if (Provenance.of(imp).isEmpty())
@@ -58,7 +58,7 @@ public class WriteReport implements PlugIn {
 			gd.addStringField("File:", defaultFile(imp), 50);
 			gd.addCheckbox("Replace an existing report", false);
 			gd.showDialog();
-			if (gd.wasCanceled()) return;
+			if (gd.wasCanceled()) throw Commands.cancelled();
 			final File f = write(imp, new Options(gd.getNextString().trim(), gd.getNextBoolean()));
 			IJ.log(COMMAND + ": wrote " + f.getPath());
 		});

@@ -72,8 +72,8 @@ class BatchRunnerTest {
 		final Path psf = dir.resolve("psf.tif");
 		assertTrue(new FileSaver(ImageBridge.toImagePlus(SampleScene.gaussianPsf(3, 3, 3), "psf.tif")).saveAsTiff(psf.toString()));
 		final Path map = Files.writeString(dir.resolve("map.csv"), "*.tif,psf.tif\n");
-		final Path recipe = Files.writeString(dir.resolve("blur.ijm"), "run(\"Convolve with PSF...\", \"image=[\" + inputTitle + \"] psf=[\" + psfTitle
-				+ "] boundary=zero normalize background=0 photons=0 seed=1 offset=0\");\n");
+		final Path recipe = Files.writeString(dir.resolve("blur.ijm"), "run(\"Convolve with PSF...\", \"image=[\" + inputTitle + \"] psf=[\" + psfTitle"
+				+ " + \"] boundary=zero normalize background=0 photons=0 seed=1 offset=0\");\n");
 		final java.util.concurrent.CyclicBarrier start = new java.util.concurrent.CyclicBarrier(2);
 		final java.util.concurrent.ExecutorService pool = java.util.concurrent.Executors.newFixedThreadPool(2);
 		try {

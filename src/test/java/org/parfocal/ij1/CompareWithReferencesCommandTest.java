@@ -48,7 +48,7 @@ import org.parfocal.testing.ImageJHarness;
 class CompareWithReferencesCommandTest {
 
 	private static final String CMD = "Compare with Sharp References...";
-	static final List<String> KEYS = List.of("result", "references", "open_references", "input", "psf", "offset", "background", "photons", "read_noise",
+	static final List<String> KEYS = List.of("result", "reference_folder", "reference_images", "input", "psf", "offset", "background", "photons", "read_noise",
 			"patch_size", "patches", "bootstrap", "seed");
 	private static final VoxelSize VOXEL = SampleScene.VOXEL;
 
