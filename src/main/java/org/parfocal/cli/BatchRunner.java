@@ -310,7 +310,7 @@ public final class BatchRunner {
 	}
 
 	private static String esc(final String s) {
-		return s.replace("\\", "\\\\").replace("\"", "\\\"");
+		return s.replace("\\", "\\\\").replace("\"", "\\\"").replace("\n", "\\n").replace("\r", "\\r");
 	}
 
 	static String stripExtension(final String name) {
