@@ -139,6 +139,7 @@ final class Commands {
 	 */
 	static boolean run(final String command, final Runnable body) {
 		try {
+			ParfocalOptions.applySaved();
 			body.run();
 			return true;
 		} catch (final Monitor.CancelledException e) {

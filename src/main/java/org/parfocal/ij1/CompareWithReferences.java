@@ -267,6 +267,7 @@ public class CompareWithReferences implements PlugIn {
 		final ReferenceComparison.Report report = (ReferenceComparison.Report) core[0];
 		final ReblurConsistency.Result chi = (ReblurConsistency.Result) core[1];
 		final MarginalQuantiles.Curves curves = (MarginalQuantiles.Curves) core[2];
+		for (final String note : report.notes()) IJ.log(COMMAND + ": " + note);
 		final String base = ConvolveWithPsf.stripExtension(resImp.getTitle());
 		final ResultsTable table = table(report, chi);
 		final Plot plot = plot(curves, base, refs.size());
@@ -280,6 +281,7 @@ public class CompareWithReferences implements PlugIn {
 		if (!Double.isNaN(p.baseline())) prov.run("baseline", p.baseline()).run("gap_closed", p.gapClosed());
 		if (chi != null) prov.run("chi_square", chi.meanChiSquare()).run("whiteness", chi.whiteness());
 		prov.run("table", report.toText().strip().replace('\n', ';'));
+		if (!report.notes().isEmpty()) prov.run("notes", String.join("; ", report.notes()));
 		Provenance.attach(plotImp, prov, start);
 		monitor.done(String.format(Locale.ROOT, "patch distance %.4g (floor %.4g)", p.distance(), p.floor()));
 		return new Output("Reference comparison of " + base, table, plot, report, chi);

@@ -35,6 +35,7 @@ import org.parfocal.quality.QualityWatch;
 import org.parfocal.quality.ReferenceComparison;
 import org.parfocal.quality.StoppingRule;
 import org.parfocal.quality.WatchedRun;
+import org.parfocal.psf.PsfExtent;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
 
@@ -306,6 +307,7 @@ public class Deconvolve implements PlugIn {
 			final ReferenceComparison.References prepared = o.watch() == null || refs.isEmpty() ? null
 					: CompareWithReferences.named(refs, () -> ReferenceComparison.prepare(refs.stream().map(CompareWithReferences.Reference::volume).toList(), in.first(),
 							ReferenceComparison.Options.defaults().withIgnoreCalibration(o.watch().ignoreCalibration()), monitor));
+			if (prepared != null) for (final String note : prepared.notes()) if (!notes.contains(note)) notes.add(note);
 			for (int t = 0; t < in.frames(); t++)
 				for (int c = 0; c < in.channels(); c++) {
 					final int index = rs.size();
@@ -340,6 +342,12 @@ public class Deconvolve implements PlugIn {
 			final boolean best = o.watch() != null && o.watch().stopAtSuggestion() && watches.get(i).best() != null;
 			vols.add(best ? watches.get(i).best() : r.estimate());
 			for (final String note : r.notes()) if (!notes.contains(note)) notes.add(note);
+		}
+		for (int i = 0; i < watches.size(); i++) {
+			final StoppingRule.Suggestion sg = watches.get(i).suggestion();
+			final String note = "watch" + (watches.size() > 1 ? " (volume " + (i + 1) + ")" : "") + ": " + sg.reason();
+			if (!sg.interior()) notes.add(note);
+			else IJ.log(COMMAND + ": suggested iteration " + sg.iteration() + " (" + sg.reason() + ")");
 		}
 		final String title = WindowManager.makeUniqueName(ConvolveWithPsf.stripExtension(imp.getTitle()) + "-deconvolved.tif");
 		final ImagePlus out = ImageBridge.toImagePlus(new Hyperstack(in.channels(), in.frames(), vols), title, imp.getCalibration());
@@ -427,7 +435,7 @@ public class Deconvolve implements PlugIn {
 			final WatchedRun q = watches.get(i);
 			final String suffix = n > 1 ? "_" + (i + 1) : "";
 			final StoppingRule.Suggestion s = q.suggestion();
-			prov.run("suggested_iteration" + suffix, s.iteration()).run("suggestion" + suffix, s.reason());
+			prov.run("suggested_iteration" + suffix, s.iteration()).run("suggestion" + suffix, s.reason()).run("suggestion_interior" + suffix, s.interior());
 			if (w.stopAtSuggestion()) prov.run("returned_iteration" + suffix, q.best() != null ? s.iteration() : q.points().isEmpty() ? 0 : q.points().get(q.points().size() - 1).iteration());
 			if (!Double.isNaN(q.floor())) prov.run("watch_floor" + suffix, q.floor());
 			final StringBuilder sb = new StringBuilder();
@@ -481,9 +489,10 @@ public class Deconvolve implements PlugIn {
 		plot.setColor(Color.GRAY);
 		plot.drawDottedLine(0, 1, xmax * 1.02, 1, 2);
 		if (!watches.isEmpty() && watches.get(0).suggestion().iteration() > 0) {
-			final int s = watches.get(0).suggestion().iteration();
+			final StoppingRule.Suggestion sg = watches.get(0).suggestion();
+			final int s = sg.iteration();
 			plot.drawDottedLine(s, ymin / 1.2, s, ymax * 1.2, 4);
-			plot.addLabel(0.02, 0.08, "suggested: iteration " + s);
+			plot.addLabel(0.02, 0.08, sg.interior() ? "suggested: iteration " + s : "no interior minimum: iteration " + s + " is the edge of the evaluated range");
 		}
 		plot.setColor(Color.BLACK);
 		plot.addLegend(legend.toString().strip());
@@ -512,10 +521,11 @@ public class Deconvolve implements PlugIn {
 			final boolean recentre) {
 		final List<Volume> out = new ArrayList<>();
 		if (optics != null) {
-			final PsfGrid grid = optics.grid();
+			final PsfGrid grid = gridFor(optics, in);
 			final Volume v = Commands.withImageJThreads(() -> PsfModels.get(optics.model()).compute(optics.optics(), grid));
 			final Volume fitted = in.nz() == 1 && v.nz() > 1 ? centralPlane(v) : v;
 			for (int c = 0; c < in.channels(); c++) out.add(fitted);
+			notes.addAll(PsfExtent.warnings(fitted, in.first().shape(), microns(in.voxelSize()), optics.optics()));
 			return out;
 		}
 		final Hyperstack p = ImageBridge.toCore(psfImp);
@@ -533,8 +543,33 @@ public class Deconvolve implements PlugIn {
 				notes.add("PSF re-centred: its centre of mass was off its centre voxel by " + fmt(off[0]) + ", " + fmt(off[1]) + ", " + fmt(off[2]) + " voxels");
 			} else if (offCentre != null) notes.add("Warning: " + offCentre);
 			out.add(v);
+			for (final String w : PsfExtent.warnings(v, in.first().shape(), microns(in.voxelSize()), null))
+				if (!notes.contains(w)) notes.add(w);
 		}
 		return out;
+	}
+
+	/**
+	 * The grid of a PSF from optics for this stack: sizes given in the options are kept; a size of 0 ("from the
+	 * optics") is chosen for the stack ({@link PsfExtent#forStack}: a widefield box spans the stack's depth and
+	 * holds the defocus cone over it).
+	 */
+	static PsfGrid gridFor(final PsfFromOptics.Options optics, final Hyperstack in) {
+		if (optics.sizeXY() != 0 && optics.sizeZ() != 0) return optics.grid();
+		final PsfGrid auto = PsfExtent.forStack(optics.optics(), optics.voxelXY(), optics.voxelXY(), optics.voxelZ(), in.nx(), in.ny(), in.nz());
+		return new PsfGrid(optics.sizeXY() == 0 ? auto.nx() : optics.sizeXY(), optics.sizeXY() == 0 ? auto.ny() : optics.sizeXY(),
+				optics.sizeZ() == 0 ? auto.nz() : optics.sizeZ(), optics.voxelXY(), optics.voxelXY(), optics.voxelZ());
+	}
+
+	/** {dx, dy, dz} in µm, or null for an uncalibrated stack or an unknown unit. */
+	private static double[] microns(final VoxelSize v) {
+		if (!v.isCalibrated()) return null;
+		try {
+			final double f = PsfGrid.micronsPer(v);
+			return new double[] { v.dx() * f, v.dy() * f, v.dz() * f };
+		} catch (final IllegalArgumentException e) {
+			return null;
+		}
 	}
 
 	private static Volume matchVoxelSize(final Volume psf, final VoxelSize image, final List<String> notes) {

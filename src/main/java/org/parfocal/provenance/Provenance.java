@@ -14,7 +14,7 @@ import com.google.gson.ToNumberPolicy;
 /**
  * How an output was made: the command and every option, the inputs (title, file, SHA-256 of the pixels, and
  * their own provenance when Parfocal made them), what the run did (iterations, why it stopped, time,
- * threads), and the versions of Parfocal, ImageJ and Java.
+ * threads), and the versions of Parfocal, ImageJ and Java, and the FFT library that computed the transforms.
  * <p>
  * It is stored in an image's "Info" text, which ImageJ's TIFF writer keeps, as a human-readable block
  * followed by the same record as one line of JSON between {@link #JSON_BEGIN} and {@link #END}. The JSON
@@ -40,7 +40,7 @@ public final class Provenance {
 	private String macro;
 	private List<Input> inputs;
 	private LinkedHashMap<String, Object> run;
-	private String parfocalVersion, imagejVersion, javaVersion, date;
+	private String parfocalVersion, imagejVersion, javaVersion, fft, date;
 	private int threads;
 	private double seconds;
 	private String caution;
@@ -70,6 +70,9 @@ public final class Provenance {
 	public String imagejVersion() { return imagejVersion; }
 
 	public String javaVersion() { return javaVersion; }
+
+	/** The FFT library of the run (e.g. "FFTW 3.3.10 (JavaCPP presets 1.5.10), …" or "JTransforms 3.1 (pure Java)"); null in older records. */
+	public String fft() { return fft; }
 
 	public String date() { return date; }
 
@@ -143,7 +146,9 @@ public final class Provenance {
 		}
 		for (final Map.Entry<String, Object> e : run().entrySet()) sb.append("run ").append(e.getKey()).append(" = ").append(e.getValue()).append('\n');
 		sb.append("time: ").append(String.format(java.util.Locale.ROOT, "%.2f", seconds)).append(" s on ").append(threads).append(" thread(s), ").append(date).append('\n');
-		sb.append("versions: Parfocal ").append(parfocalVersion).append(", ImageJ ").append(imagejVersion).append(", Java ").append(javaVersion).append('\n');
+		sb.append("versions: Parfocal ").append(parfocalVersion).append(", ImageJ ").append(imagejVersion).append(", Java ").append(javaVersion);
+		if (fft != null) sb.append(", FFT ").append(fft);
+		sb.append('\n');
 		sb.append("rerun: ").append(macro).append('\n');
 		sb.append("caution: ").append(CAUTION).append('\n');
 		sb.append(JSON_BEGIN).append('\n').append(toJson()).append('\n').append(END).append('\n');
@@ -189,7 +194,17 @@ public final class Provenance {
 			p.parfocalVersion = parfocal;
 			p.imagejVersion = imagej;
 			p.javaVersion = java;
+			p.fft = fftLibrary();
 			return this;
+		}
+
+		/** The FFT backend that transforms made now use, described (its selection error if the selection is wrong). */
+		private static String fftLibrary() {
+			try {
+				return org.parfocal.fft.FftBackend.selected().description();
+			} catch (final IllegalArgumentException e) {
+				return e.getMessage();
+			}
 		}
 
 		public Builder timing(final double seconds, final int threads, final String isoDate) {
