@@ -69,9 +69,10 @@ class SaturationTest {
 			if (r[i] == 4095) clipped++;
 		}
 		assertTrue(clipped > 50, "the simulation must saturate: " + clipped);
+		final String count = clipped + " voxels";
 		final DeconvolutionOptions o = DeconvolutionOptions.of(DeconvolutionMethod.RL, 60).withOffset(Level.of(10)).withEdges(EdgeMode.ZERO);
 		final DeconvolutionResult masked = Deconvolution.run(rec, psf, o, null);
-		assertTrue(masked.notes().stream().anyMatch(s -> s.startsWith(clipped + " voxels") && s.contains("saturated")), masked.notes().toString());
+		assertTrue(masked.notes().stream().anyMatch(s -> s.startsWith(count) && s.contains("saturated")), masked.notes().toString());
 		// the same data without detection: shift the clipped voxels 1 below so they are no longer a spike at 4095
 		final float[] unmarked = r.clone();
 		for (int i = 0; i < unmarked.length; i++) if (unmarked[i] == 4095) unmarked[i] = 4094.5f;
