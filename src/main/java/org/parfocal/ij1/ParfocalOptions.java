@@ -41,6 +41,9 @@ public class ParfocalOptions implements PlugIn {
 
 	/** Selects the FFT library for the following runs and saves the choice. */
 	static void set(final String choice) {
+		// with a display, ImageJ hands a macro's choice over unchecked: refuse a word that is not one of ours
+		if (!java.util.List.of(CHOICES).contains(choice))
+			throw new IllegalArgumentException("'" + choice + "' is not a valid FFT library (auto, fftw or java) (fft_library=)");
 		if (!"auto".equals(choice) && !FftBackend.valueOf(choice.toUpperCase(java.util.Locale.ROOT)).available())
 			throw new IllegalArgumentException("FFT library " + choice + " cannot be used here: " + FftBackend.FFTW.unavailableReason());
 		System.setProperty(FftBackend.PROPERTY, choice);
