@@ -145,15 +145,16 @@ class BatchFaultInjectionTest {
 			o.close();
 		}
 
-		// memory flat: heap in use after each stack (after a collection), first ten against last ten
+		// memory flat: heap in use after each stack (after a collection), stacks 1-10 against 35-44 (all good stacks; the
+		// bad ones come last in name order). Before the fix it grew by 0.4 MB a stack here, 6.6 MB to 20.4 MB.
 		final Matcher m = Pattern.compile("heap after stack (\\d+): (\\d+) bytes").matcher(text);
 		final List<Long> heap = new ArrayList<>();
 		while (m.find()) heap.add(Long.parseLong(m.group(2)));
 		assertEquals(50, heap.size(), text);
 		final double first = heap.subList(0, 10).stream().mapToLong(Long::longValue).average().orElseThrow();
-		final double last = heap.subList(40, 50).stream().mapToLong(Long::longValue).average().orElseThrow();
-		System.out.printf("batch of 50 in -Xmx200m: heap after stacks 1-10 %.1f MB, after 41-50 %.1f MB%n", first / 1048576, last / 1048576);
-		assertTrue(last - first < 8 * 1048576, "heap grew from " + first / 1048576 + " MB to " + last / 1048576 + " MB");
+		final double last = heap.subList(34, 44).stream().mapToLong(Long::longValue).average().orElseThrow();
+		System.out.printf("batch of 50 in -Xmx200m: heap after stacks 1-10 %.2f MB, after 35-44 %.2f MB%n", first / 1048576, last / 1048576);
+		assertTrue(last - first < 2 * 1048576, "heap grew from " + first / 1048576 + " MB to " + last / 1048576 + " MB");
 
 		// inputs untouched, and nothing hidden left in the output folder
 		assertEquals(before, hashes(dir));
