@@ -167,6 +167,7 @@ public class CompareWithReferences implements PlugIn {
 			if (files == null || files.length == 0) throw new IllegalArgumentException("No TIFF files (.tif, .tiff) in the reference folder '" + folder + "'");
 			Arrays.sort(files);
 			for (final File f : files) {
+				org.parfocal.cli.TiffCheck.requireComplete(f.toPath()); // empty, truncated or not a TIFF: one line
 				final ImagePlus imp = IJ.openImage(f.getPath());
 				if (imp == null) throw new IllegalArgumentException("Could not read the reference '" + f.getName() + "' in '" + folder + "'");
 				out.add(new Reference(imp, ImageBridge.toVolume(imp, "The reference")));

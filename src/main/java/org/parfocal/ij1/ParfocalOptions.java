@@ -25,14 +25,14 @@ public class ParfocalOptions implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.PARFOCAL_OPTIONS, () -> {
 			applySaved();
 			final GenericDialog gd = new GenericDialog(COMMAND);
 			gd.addChoice("FFT_library:", CHOICES, System.getProperty(FftBackend.PROPERTY, "auto"));
 			gd.addMessage("FFTW here: " + (FftBackend.FFTW.available() ? FftBackend.FFTW.description() : "not installed (" + FftBackend.FFTW.unavailableReason() + ")"));
 			gd.addHelp(DialogHelp.options().html());
 			gd.showDialog();
-			if (gd.wasCanceled()) return;
+			if (gd.wasCanceled()) throw Commands.cancelled();
 			final String choice = Commands.checkChoice("fft_library", gd.getNextChoice(), "FFT library (auto, fftw or java)");
 			set(choice);
 			IJ.showStatus(COMMAND + ": FFT library " + FftBackend.selected().description());
@@ -41,6 +41,9 @@ public class ParfocalOptions implements PlugIn {
 
 	/** Selects the FFT library for the following runs and saves the choice. */
 	static void set(final String choice) {
+		// with a display, ImageJ hands a macro's choice over unchecked: refuse a word that is not one of ours
+		if (!java.util.List.of(CHOICES).contains(choice))
+			throw new IllegalArgumentException("'" + choice + "' is not a valid FFT library (auto, fftw or java) (fft_library=)");
 		if (!"auto".equals(choice) && !FftBackend.valueOf(choice.toUpperCase(java.util.Locale.ROOT)).available())
 			throw new IllegalArgumentException("FFT library " + choice + " cannot be used here: " + FftBackend.FFTW.unavailableReason());
 		System.setProperty(FftBackend.PROPERTY, choice);

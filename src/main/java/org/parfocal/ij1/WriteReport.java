@@ -107,7 +107,11 @@ public class WriteReport implements PlugIn {
 						+ (sug != null ? " (" + sug + ")" : "") + "; 1 = indistinguishable from the references / consistent with the noise", png(w));
 			}
 		try {
-			Files.writeString(f.toPath(), report.toHtml(), StandardCharsets.UTF_8);
+			final byte[] html = report.toHtml().getBytes(StandardCharsets.UTF_8);
+			if (o.replace()) Files.write(f.toPath(), html);
+			else org.parfocal.core.OutputFiles.writeExactly(f.toPath(), out2 -> out2.write(html)); // atomic: never replaces a file another run made meanwhile
+		} catch (final java.nio.file.FileAlreadyExistsException e) {
+			throw new IllegalArgumentException("'" + f.getPath() + "' exists; give another name or add 'replace'");
 		} catch (final IOException e) {
 			throw new IllegalArgumentException("Cannot write '" + f.getPath() + "': " + e.getMessage());
 		}

@@ -4,6 +4,7 @@ import java.util.ArrayList;
 import java.util.Base64;
 import java.util.List;
 import java.util.Map;
+import java.util.Objects;
 
 /**
  * A self-contained HTML page describing one run: the caution, what was made and from what, every parameter, the
@@ -102,9 +103,10 @@ public final class HtmlReport {
 		if (!p.inputs().isEmpty()) {
 			final List<List<String>> rows = new ArrayList<>();
 			for (final Provenance.Input in : p.inputs())
-				rows.add(List.of(in.role(), in.title(), in.shape(), in.calibration() == null ? "not recorded" : in.calibration(),
+				// a field may be missing (the blocks runner records no pixel hash: it never holds the stack): List.of takes no null
+				rows.add(List.of(Objects.toString(in.role(), ""), Objects.toString(in.title(), ""), Objects.toString(in.shape(), ""), in.calibration() == null ? "not recorded" : in.calibration(),
 						in.source() == null ? (in.path() == null ? "open image" : "file") : in.source().command() + "...",
-						in.path() == null ? "" : in.path(), in.sha256() == null ? "" : in.sha256()));
+						in.path() == null ? "" : in.path(), in.sha256() == null ? "not recorded" : in.sha256()));
 			h.append(tableHtml(new Table("Inputs", List.of("role", "title", "shape", "voxel size", "made by", "file", "SHA-256 of pixels"), rows), 5));
 		}
 		h.append(mapTable("Parameters", p.options()));

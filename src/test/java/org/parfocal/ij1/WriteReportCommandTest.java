@@ -31,6 +31,23 @@ class WriteReportCommandTest {
 		ImageJHarness.closeAll();
 	}
 
+	/** Issue 13, item 6: the record of a bin/parfocal-blocks output (inputs by path, no pixel hash) gave a NullPointerException. */
+	@Test
+	void reportOfABlocksRunnerOutput(@TempDir final Path dir) throws Exception {
+		final org.parfocal.core.VoxelSize v = org.parfocal.core.VoxelSize.microns(0.08, 0.08, 0.2);
+		final Path in = dir.resolve("in.tif"), psf = dir.resolve("psf.tif"), out = dir.resolve("out.tif");
+		assertTrue(new ij.io.FileSaver(ImageBridge.toImagePlus(org.parfocal.demo.SampleScene.cell(24, 20, 6, 5).withVoxelSize(v), "in")).saveAsTiffStack(in.toString()));
+		assertTrue(new ij.io.FileSaver(ImageBridge.toImagePlus(org.parfocal.demo.SampleScene.gaussianPsf(5, 5, 3), "psf")).saveAsTiffStack(psf.toString()));
+		org.parfocal.cli.BlockRunner.run(org.parfocal.blocks.Recipe.parse("psf=" + psf + " method=richardson-lucy iterations=2 stop=fixed offset=0 background=0"),
+				in, out, 0, null, org.parfocal.core.Monitor.NONE);
+		final ImagePlus result = ij.IJ.openImage(out.toString());
+		Interpreter.addBatchModeImage(result);
+		final Path html = dir.resolve("blocks-report.html");
+		ImageJHarness.run(result, "Write Report...", "file=[" + html + "]");
+		final String page = Files.readString(html);
+		assertTrue(page.contains("block_plan") && page.contains("psf.tif"), "the plan and the PSF file are in the report");
+	}
+
 	@Test
 	void reportOfADeconvolutionIsOneSelfContainedPageWithEveryParameterAndReadableFigures(@TempDir final Path dir) throws Exception {
 		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
