@@ -59,11 +59,12 @@ public class PsfFromOptics implements PlugIn {
 
 		public String macroOptions() {
 			final Optics o = optics;
+			// in dialog order, as the Recorder writes them
 			return "model=" + model + " modality=" + o.modality().key() + " na=" + n(o.na()) + " immersion_index=" + n(o.immersionIndex())
-					+ " immersion_index_design=" + n(o.immersionIndexDesign()) + " sample_index=" + n(o.sampleIndex()) + " coverslip_index="
-					+ n(o.coverslipIndex()) + " coverslip_index_design=" + n(o.coverslipIndexDesign()) + " coverslip_thickness="
-					+ n(o.coverslipThickness()) + " coverslip_thickness_design=" + n(o.coverslipThicknessDesign()) + " working_distance="
-					+ n(o.workingDistance()) + " depth=" + n(o.depth()) + " emission=" + n(o.emissionWavelength()) + " excitation="
+					+ " sample_index=" + n(o.sampleIndex()) + " coverslip_index=" + n(o.coverslipIndex()) + " coverslip_thickness="
+					+ n(o.coverslipThickness()) + " depth=" + n(o.depth()) + " immersion_index_design=" + n(o.immersionIndexDesign())
+					+ " coverslip_index_design=" + n(o.coverslipIndexDesign()) + " coverslip_thickness_design=" + n(o.coverslipThicknessDesign())
+					+ " working_distance=" + n(o.workingDistance()) + " emission=" + n(o.emissionWavelength()) + " excitation="
 					+ n(o.excitationWavelength()) + " pinhole=" + n(o.pinholeAiryUnits()) + " sheet_thickness=" + n(o.sheetThickness())
 					+ " voxel_xy=" + n(voxelXY) + " voxel_z=" + n(voxelZ) + " size_xy=" + sizeXY + " size_z=" + sizeZ
 					+ (showProfiles ? " show_profiles" : "");

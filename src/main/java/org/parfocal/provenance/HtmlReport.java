@@ -45,9 +45,19 @@ public final class HtmlReport {
 		return key.equals("relative_change") || key.startsWith("watch_curve") || key.equals(Provenance.WARNINGS);
 	}
 
-	/** The warnings of the run and of the inputs' own records, each once. */
+	/** Words that mark a note of the run as a warning (commands that wrote warnings into {@code notes}). */
+	private static final java.util.regex.Pattern WARNING_NOTE = java.util.regex.Pattern.compile("(?i)warning|cut off|undersampl|saturat|truncat");
+
+	/**
+	 * The warnings of the run (its {@link Provenance#WARNINGS} list, and the parts of its {@code notes} that are
+	 * warnings) and of the inputs' own records, each once.
+	 */
 	public static List<String> warnings(final Provenance p) {
 		final List<String> w = new ArrayList<>(p.warnings());
+		final Object notes = p.run().get("notes");
+		if (notes != null)
+			for (final String part : String.valueOf(notes).split("; "))
+				if (WARNING_NOTE.matcher(part).find() && !w.contains(part.trim())) w.add(part.trim());
 		for (final Provenance.Input in : p.inputs())
 			if (in.source() != null)
 				for (final String s : in.source().warnings()) {

@@ -154,9 +154,9 @@ class BlindDeconvolveCommandTest {
 
 		// from the optics (Born & Wolf, second dialog) with the band limit from the same optics; z size automatic,
 		// cropped to the image's 10 slices (largest odd: 9)
-		final String optics = "model=born-wolf modality=widefield na=1.2 immersion_index=1.333 immersion_index_design=1.333 sample_index=1.333 "
-				+ "coverslip_index=1.522 coverslip_index_design=1.522 coverslip_thickness=170 coverslip_thickness_design=170 working_distance=150 "
-				+ "depth=0 emission=0.52 excitation=0.488 pinhole=1 sheet_thickness=2 voxel_xy=0.08 voxel_z=0.2 size_xy=15 size_z=0";
+		final String optics = "model=born-wolf modality=widefield na=1.2 immersion_index=1.333 sample_index=1.333 coverslip_index=1.522 "
+				+ "coverslip_thickness=170 depth=0 immersion_index_design=1.333 coverslip_index_design=1.522 coverslip_thickness_design=170 "
+				+ "working_distance=150 emission=0.52 excitation=0.488 pinhole=1 sheet_thickness=2 voxel_xy=0.08 voxel_z=0.2 size_xy=15 size_z=0";
 		final String opt2 = OPTIONS.replace("psf=gaussian", "psf=from_optics").replace("support_xy=9 support_z=5", "support_xy=0 support_z=0")
 				.replace("iterations=4", "iterations=2").replace(" na=1.2 immersion_index=1.333 emission=0.52", "") + " " + optics;
 		final ImageJHarness.Result r2 = ImageJHarness.run(img, CMD, opt2);

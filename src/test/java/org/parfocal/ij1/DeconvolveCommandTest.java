@@ -94,9 +94,9 @@ class DeconvolveCommandTest {
 	void psfFromOpticsInTheSameCommand() {
 		final ImagePlus img = recorded("cell.tif");
 		open(img);
-		final String optics = "model=born-wolf modality=widefield na=1.2 immersion_index=1.333 immersion_index_design=1.333 sample_index=1.333 "
-				+ "coverslip_index=1.522 coverslip_index_design=1.522 coverslip_thickness=170 coverslip_thickness_design=170 working_distance=150 "
-				+ "depth=0 emission=0.52 excitation=0.488 pinhole=1 sheet_thickness=2 voxel_xy=0.08 voxel_z=0.2 size_xy=15 size_z=7";
+		final String optics = "model=born-wolf modality=widefield na=1.2 immersion_index=1.333 sample_index=1.333 coverslip_index=1.522 "
+				+ "coverslip_thickness=170 depth=0 immersion_index_design=1.333 coverslip_index_design=1.522 coverslip_thickness_design=170 "
+				+ "working_distance=150 emission=0.52 excitation=0.488 pinhole=1 sheet_thickness=2 voxel_xy=0.08 voxel_z=0.2 size_xy=15 size_z=7";
 		final String options = OPTIONS.replace("psf=psf.tif", "psf=from_optics").replace("iterations=12", "iterations=5") + " " + optics;
 		final ImagePlus out = ImageJHarness.run(img, CMD, options).onlyCreated();
 		final Volume psf = PsfModels.get("born-wolf").compute(Optics.builder().na(1.2).immersionIndex(1.333).emissionWavelength(0.52).build(),

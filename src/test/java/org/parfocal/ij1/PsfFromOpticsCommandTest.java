@@ -25,8 +25,8 @@ import org.parfocal.testing.ImageJHarness;
 class PsfFromOpticsCommandTest {
 
 	private static final String CMD = "PSF from Optics...";
-	static final List<String> KEYS = List.of("model", "modality", "na", "immersion_index", "immersion_index_design", "sample_index",
-			"coverslip_index", "coverslip_index_design", "coverslip_thickness", "coverslip_thickness_design", "working_distance", "depth",
+	static final List<String> KEYS = List.of("model", "modality", "na", "immersion_index", "sample_index", "coverslip_index",
+			"coverslip_thickness", "depth", "immersion_index_design", "coverslip_index_design", "coverslip_thickness_design", "working_distance",
 			"emission", "excitation", "pinhole", "sheet_thickness", "voxel_xy", "voxel_z", "size_xy", "size_z", "show_profiles");
 
 	static final String OPTIONS = "model=born-wolf modality=widefield na=1.2 immersion_index=1.333 immersion_index_design=1.333 "
