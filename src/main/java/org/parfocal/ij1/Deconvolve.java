@@ -94,6 +94,7 @@ public class Deconvolve implements PlugIn {
 		static String level(final Level l) {
 			return switch (l.kind()) {
 			case ESTIMATED -> "auto";
+			case DARK -> "dark";
 			case NONE -> "0";
 			default -> MacroOptions.number(l.value());
 			};
@@ -262,6 +263,7 @@ public class Deconvolve implements PlugIn {
 	static Level level(final String key, final String text) {
 		if (text.isEmpty() || text.equals("0")) return Level.NONE;
 		if (text.equalsIgnoreCase("auto")) return Level.ESTIMATED;
+		if (text.equalsIgnoreCase("dark")) return Level.DARK;
 		try {
 			final double v = Double.parseDouble(text);
 			return v == 0 ? Level.NONE : Level.of(v);
