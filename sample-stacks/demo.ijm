@@ -65,6 +65,10 @@ run("Deconvolve...", "image=quillwort-widefield.tif psf=" + psf + " method=richa
 path = newPath(out, "quillwort-deconvolved.tif");
 saveAs("Tiff", path);
 print("wrote " + path);
+info = getMetadata("Info");
+lines = split(info, "\n;");
+for (i = 0; i < lines.length; i++)
+    if (startsWith(String.trim(lines[i]), "Noise model") || startsWith(String.trim(lines[i]), "run notes")) print("deconvolve: " + String.trim(lines[i]));
 Stack.getStatistics(voxels, mean, min, max);
 print("deconvolved: mean " + d2s(mean, 3) + ", max " + d2s(max, 1) + " (estimates: deconvolution can show artefacts that look like structure)");
 

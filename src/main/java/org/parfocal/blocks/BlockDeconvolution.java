@@ -97,6 +97,7 @@ public final class BlockDeconvolution {
 			background = Preprocessing.estimateBackground(ys);
 			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (sigma-clipped median)", background));
 		}
+		case DARK -> throw new IllegalArgumentException("background=dark is not available block by block yet: give a number (e.g. from a run on a crop) or auto");
 		default -> background = 0;
 		}
 		if (background >= stats[1])

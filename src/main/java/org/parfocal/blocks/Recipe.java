@@ -126,6 +126,7 @@ public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf opt
 		final String t = text.trim();
 		if (t.isEmpty() || t.equals("0")) return Level.NONE;
 		if (t.equalsIgnoreCase("auto")) return Level.ESTIMATED;
+		if (t.equalsIgnoreCase("dark") && key.equals("background")) return Level.DARK;
 		try {
 			final double v = Double.parseDouble(t);
 			return v == 0 ? Level.NONE : Level.of(v);

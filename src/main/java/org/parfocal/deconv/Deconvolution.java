@@ -64,6 +64,7 @@ public final class Deconvolution {
 			return new DeconvolutionResult(Volume.wrap(out, n[0], n[1], n[2], image.voxelSize()), 0, false, List.of(), Double.NaN, d.offset(),
 					d.background(), notes);
 		}
+		noiseNote(image, d.offset(), notes);
 		final Saturation sat = Saturation.detect(image);
 		if (sat != null) {
 			notes.add(sat.describe(d.y().length));
@@ -103,6 +104,19 @@ public final class Deconvolution {
 		mon.progress(max, max, name + " done");
 		return new DeconvolutionResult(Volume.wrap(out, n[0], n[1], n[2], image.voxelSize()), done, converged, history, ll, d.offset(), d.background(),
 				notes);
+	}
+
+	/**
+	 * Adds the camera noise model estimated from a recording of camera counts (integer values) to the notes,
+	 * for the Log and the provenance ({@link org.parfocal.core.CameraNoise}); other images get no note.
+	 */
+	static void noiseNote(final Volume image, final double offset, final List<String> notes) {
+		for (final float v : image.data()) if (v != Math.rint(v)) return;
+		try {
+			notes.add("Noise model estimated from the recording: " + org.parfocal.core.CameraNoise.estimate(image, offset).describe());
+		} catch (final IllegalArgumentException e) {
+			notes.add("Noise model not estimated: " + e.getMessage());
+		}
 	}
 
 	/** Bytes a run allocates, for a memory check before starting. */

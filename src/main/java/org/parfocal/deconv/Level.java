@@ -6,10 +6,12 @@ package org.parfocal.deconv;
  */
 public record Level(Kind kind, double value) {
 
-	public enum Kind { NONE, VALUE, ESTIMATED }
+	/** ESTIMATED: the sigma-clipped median (macro word {@code auto}); DARK: the darkest region (macro word {@code dark}). */
+	public enum Kind { NONE, VALUE, ESTIMATED, DARK }
 
 	public static final Level NONE = new Level(Kind.NONE, 0);
 	public static final Level ESTIMATED = new Level(Kind.ESTIMATED, 0);
+	public static final Level DARK = new Level(Kind.DARK, 0);
 
 	public Level {
 		if (kind == null) kind = Kind.NONE;

@@ -82,6 +82,10 @@ public final class Preprocessing {
 			background = estimateBackground(y);
 			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (sigma-clipped median)", background));
 			break;
+		case DARK:
+			background = estimateDarkBackground(y, image.nx(), image.ny(), image.nz());
+			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (darkest region)", background));
+			break;
 		default:
 			background = 0;
 		}

@@ -144,6 +144,7 @@ public class BlindDeconvolve implements PlugIn {
 		private static String level(final Level l) {
 			return switch (l.kind()) {
 			case ESTIMATED -> "auto";
+			case DARK -> "dark";
 			case NONE -> "0";
 			default -> MacroOptions.number(l.value());
 			};

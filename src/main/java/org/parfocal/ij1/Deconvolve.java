@@ -102,6 +102,7 @@ public class Deconvolve implements PlugIn {
 		static String level(final Level l) {
 			return switch (l.kind()) {
 			case ESTIMATED -> "auto";
+			case DARK -> "dark";
 			case NONE -> "0";
 			default -> MacroOptions.number(l.value());
 			};
@@ -269,6 +270,7 @@ public class Deconvolve implements PlugIn {
 	static Level level(final String key, final String text) {
 		if (text.isEmpty() || text.equals("0")) return Level.NONE;
 		if (text.equalsIgnoreCase("auto")) return Level.ESTIMATED;
+		if (text.equalsIgnoreCase("dark") && key.equals("background")) return Level.DARK; // the darkest region (background only)
 		try {
 			final double v = Double.parseDouble(text);
 			return v == 0 ? Level.NONE : Level.of(v);

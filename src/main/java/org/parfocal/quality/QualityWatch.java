@@ -75,6 +75,11 @@ public final class QualityWatch implements IterationListener, WatchedRun {
 			};
 			final double b = switch (background.kind()) {
 			case VALUE -> background.value();
+			case DARK -> {
+				final float[] in = recording.data(), y = new float[in.length];
+				for (int i = 0; i < in.length; i++) y[i] = (float) Math.max(0, in[i] - o);
+				yield Preprocessing.estimateDarkBackground(y, recording.nx(), recording.ny(), recording.nz());
+			}
 			case ESTIMATED -> {
 				final float[] in = recording.data(), y = new float[in.length];
 				for (int i = 0; i < in.length; i++) {
