@@ -204,8 +204,60 @@ public final class BlockDeconvolution {
 		return sink.result();
 	}
 
+	/**
+	 * The chunk shape to stream by, or null to stream by planes: chunks when the source has them and one layer of
+	 * them (nx · ny · chunk depth floats) would take more than a sixteenth of the free heap (what a chunked source
+	 * may cache, so that plane-wise passes decode each chunk once).
+	 */
+	static int[] streamChunks(final BlockSource source) {
+		final int[] c = source.chunkShape(), n = source.shape();
+		if (c == null || c[2] <= 1) return null;
+		final long limit = streamLimit >= 0 ? streamLimit : org.parfocal.core.MemoryBudget.available() / 16;
+		return 4L * n[0] * n[1] * Math.min(c[2], n[2]) > limit ? c : null;
+	}
+
+	/** Bytes of one chunk layer above which passes stream by chunks; negative: a sixteenth of the free heap (tests set 0). */
+	static volatile long streamLimit = -1;
+
+	/**
+	 * The streaming pass chunk by chunk: each value {@code v} at stack index i goes to {@code each.accept(i, v)} in
+	 * chunk order (not stack order).
+	 */
+	private static void forEachByChunk(final BlockSource source, final int[] c, final Monitor mon, final VoxelVisitor each) throws IOException {
+		final int[] n = source.shape();
+		for (int z0 = 0; z0 < n[2]; z0 += c[2]) {
+			mon.checkCancelled();
+			mon.progress(z0, n[2], "Reading levels");
+			for (int y0 = 0; y0 < n[1]; y0 += c[1])
+				for (int x0 = 0; x0 < n[0]; x0 += c[0]) {
+					final int[] s = { Math.min(c[0], n[0] - x0), Math.min(c[1], n[1] - y0), Math.min(c[2], n[2] - z0) };
+					final float[] p = source.read(new int[] { x0, y0, z0 }, s).data();
+					int k = 0;
+					for (int z = 0; z < s[2]; z++)
+						for (int y = 0; y < s[1]; y++) {
+							final long row = (long) n[0] * ((y0 + y) + (long) n[1] * (z0 + z)) + x0;
+							for (int x = 0; x < s[0]; x++, k++) each.accept(row + x, p[k], x0 + x, y0 + y, z0 + z);
+						}
+				}
+		}
+	}
+
+	@FunctionalInterface
+	private interface VoxelVisitor {
+		void accept(long index, float v, int x, int y, int z);
+	}
+
 	private static float[] sample(final BlockSource source, final long step, final double unused, final Monitor mon) throws IOException {
 		final int[] n = source.shape();
+		final int[] chunks = streamChunks(source);
+		if (chunks != null) {
+			final long total = (long) n[0] * n[1] * n[2];
+			final float[] s = new float[(int) ((total + step - 1) / step)];
+			forEachByChunk(source, chunks, mon, (i, v, x, y, z) -> {
+				if (i % step == 0) s[(int) (i / step)] = v;
+			});
+			return s;
+		}
 		final long total = (long) n[0] * n[1] * n[2];
 		final float[] s = new float[(int) ((total + step - 1) / step)];
 		final long plane = (long) n[0] * n[1];
@@ -230,6 +282,24 @@ public final class BlockDeconvolution {
 		float max = 0;
 		long clipped = 0;
 		int j = 0;
+		final int[] chunks = streamChunks(source);
+		if (chunks != null) {
+			// chunk order: the same sample and maximum; the sum in another order (differences of the order of 1e-16 relative)
+			final double[] acc = new double[3];
+			forEachByChunk(source, chunks, mon, (i, v0, x, y, z) -> {
+				if (!Float.isFinite(v0)) throw new IllegalArgumentException("The image has a non-finite value (" + v0 + ") at (" + x + ", " + y + ", " + z + ")");
+				final float v = (float) (v0 - offset);
+				if (v < 0) acc[2]++;
+				final float yv = v > 0 ? v : 0f;
+				acc[0] += yv;
+				if (yv > acc[1]) acc[1] = yv;
+				if (i % step == 0) s[(int) (i / step)] = yv;
+			});
+			stats[0] = acc[0];
+			stats[1] = acc[1];
+			stats[2] = acc[2];
+			return s;
+		}
 		for (int z = 0; z < n[2]; z++) {
 			mon.checkCancelled();
 			mon.progress(z, n[2], "Reading levels");

@@ -143,6 +143,40 @@ public record BlockPlan(int[] shape, int[] psfShape, int[] tiles, int[] halo, in
 		return build(shape, psfShape, options, m, halo, blend, largestBlockBytes(shape, psfShape, options, m, halo, blend));
 	}
 
+	/**
+	 * This plan with its tile faces moved to the nearest multiples of {@code chunk} (a chunked output's grid, x, y,
+	 * z), so that blocks start and end on chunk boundaries where possible: a face whose nearer (or else farther)
+	 * multiple would leave a tile smaller than the PSF or the blend width stays where it was. The number of tiles, the halo and the blend are unchanged; blocks may grow by up to half a chunk, and
+	 * {@link #bytesPerBlock()} is recomputed.
+	 */
+	public BlockPlan alignedTo(final int[] chunk, final DeconvolutionOptions options) {
+		final int[] minTile = minTile(psfShape, blend(shape, psfShape));
+		final int[][] bounds = new int[3][];
+		for (int d = 0; d < 3; d++) {
+			final int m = tiles[d];
+			final int[] b = new int[m + 1];
+			for (int j = 0; j <= m; j++) b[j] = start(j, shape[d], m);
+			final int c = chunk[Math.min(d, chunk.length - 1)];
+			if (c > 0 && m > 1)
+				for (int j = 1; j < m; j++) {
+					// the nearer multiple of c first, then the other; a face that fits neither stays
+					final int lo = b[j] / c * c, hi = lo + c;
+					final int[] cand = b[j] - lo <= hi - b[j] ? new int[] { lo, hi } : new int[] { hi, lo };
+					for (final int a : cand)
+						if (a - b[j - 1] >= minTile[d] && b[j + 1] - a >= minTile[d] && shape[d] - a >= (m - j) * minTile[d]) {
+							b[j] = a;
+							break;
+						}
+				}
+			bounds[d] = b;
+		}
+		final int[] full = halo(psfShape, HALO_FACTOR), fullBlend = blend(shape, psfShape);
+		long worst = 0;
+		final BlockPlan p = build(shape, psfShape, options, tiles, full, fullBlend, budget, bounds);
+		for (final Block b : p.blocks()) worst = Math.max(worst, blockBytes(b.readSize(), psfShape, options));
+		return new BlockPlan(p.shape, p.psfShape, p.tiles, p.halo, p.blend, p.blocks, worst, budget, p.notes);
+	}
+
 	/** Number of blocks. */
 	public int count() {
 		return blocks.size();
@@ -206,7 +240,7 @@ public record BlockPlan(int[] shape, int[] psfShape, int[] tiles, int[] halo, in
 	@Override
 	public boolean equals(final Object o) {
 		return o instanceof BlockPlan p && Arrays.equals(p.shape, shape) && Arrays.equals(p.psfShape, psfShape) && Arrays.equals(p.tiles, tiles)
-				&& Arrays.equals(p.halo, halo) && Arrays.equals(p.blend, blend);
+				&& Arrays.equals(p.halo, halo) && Arrays.equals(p.blend, blend) && p.blocks.equals(blocks);
 	}
 
 	@Override
@@ -280,6 +314,23 @@ public record BlockPlan(int[] shape, int[] psfShape, int[] tiles, int[] halo, in
 
 	private static BlockPlan build(final int[] n, final int[] k, final DeconvolutionOptions o, final int[] m, final int[] halo, final int[] blend,
 			final long budget) {
+		final int[][] bounds = new int[3][];
+		for (int d = 0; d < 3; d++) {
+			bounds[d] = new int[m[d] + 1];
+			for (int j = 0; j <= m[d]; j++) bounds[d][j] = start(j, n[d], m[d]);
+		}
+		return build(n, k, o, m, halo, blend, budget, bounds);
+	}
+
+	/** Read interval {origin, size} of the tile between faces lo and hi of an axis of length n. */
+	private static int[] read(final int lo, final int hi, final boolean first, final boolean last, final int n, final int halo, final int blend) {
+		final int ext = blend / 2 + halo;
+		final int a = first ? 0 : Math.max(0, lo - ext), b = last ? n : Math.min(n, hi + ext);
+		return new int[] { a, b - a };
+	}
+
+	private static BlockPlan build(final int[] n, final int[] k, final DeconvolutionOptions o, final int[] m, final int[] halo, final int[] blend,
+			final long budget, final int[][] bounds) {
 		final List<Block> blocks = new ArrayList<>();
 		final int[] h = new int[3], w = new int[3];
 		for (int d = 0; d < 3; d++) {
@@ -293,12 +344,13 @@ public record BlockPlan(int[] shape, int[] psfShape, int[] tiles, int[] halo, in
 					final int[] j = { jx, jy, jz };
 					final int[] co = new int[3], cs = new int[3], oo = new int[3], os = new int[3], ro = new int[3], rs = new int[3];
 					for (int d = 0; d < 3; d++) {
-						co[d] = start(j[d], n[d], m[d]);
-						cs[d] = start(j[d] + 1, n[d], m[d]) - co[d];
-						final int[] out = read(j[d], n[d], m[d], 0, w[d]);
+						co[d] = bounds[d][j[d]];
+						cs[d] = bounds[d][j[d] + 1] - co[d];
+						final boolean first = j[d] == 0, last = j[d] == m[d] - 1;
+						final int[] out = read(co[d], co[d] + cs[d], first, last, n[d], 0, w[d]);
 						oo[d] = out[0];
 						os[d] = out[1];
-						final int[] rd = read(j[d], n[d], m[d], h[d], w[d]);
+						final int[] rd = read(co[d], co[d] + cs[d], first, last, n[d], h[d], w[d]);
 						ro[d] = rd[0];
 						rs[d] = rd[1];
 					}

@@ -19,6 +19,15 @@ public interface BlockSource extends AutoCloseable {
 	/** A new volume holding the box {@code origin + size} (inside the stack), with the stack's calibration. */
 	Volume read(int[] origin, int[] size) throws IOException;
 
+	/**
+	 * The boxes {x, y, z} this source reads most cheaply (a chunked file's chunks), or null when planes are cheap.
+	 * The streaming passes of {@link BlockDeconvolution#levels} read such boxes instead of planes when one layer of
+	 * them does not fit in memory (every chunk would otherwise be decoded once per plane).
+	 */
+	default int[] chunkShape() {
+		return null;
+	}
+
 	/** Where the stack comes from, for messages and provenance. */
 	default String name() {
 		return "stack";

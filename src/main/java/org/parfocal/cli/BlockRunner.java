@@ -86,11 +86,16 @@ public final class BlockRunner {
 		try {
 			final long start = System.nanoTime();
 			final Recipe base = readRecipe(pos.get(0));
-			final Recipe recipe = psf != null ? base.withPsfFile(psf) : base;
+			// --psf A.tif,B.tif: one PSF per channel (Zarr inputs with channels)
+			final java.util.List<String> psfs = psf == null ? java.util.List.of() : java.util.List.of(psf.split(","));
+			final Recipe recipe = psf != null ? base.withPsfFile(psfs.get(0)) : base;
 			final long bytes = budget == null ? 0 : (long) (positive(budget, "--budget") * 1024 * 1024);
 			final int[] tile = block == null ? null : tiles(block);
 			final int n = threads == null ? Runtime.getRuntime().availableProcessors() : (int) positive(threads, "--threads");
-			final Outcome out = Parallelization.runWithNumThreads(n, () -> run(recipe, Path.of(pos.get(1)), Path.of(pos.get(2)), bytes, tile, Monitor.NONE));
+			final Path in = Path.of(pos.get(1)), outPath = Path.of(pos.get(2));
+			final Outcome out = Parallelization.runWithNumThreads(n, () -> ZarrBlockRunner.handles(in, outPath)
+					? ZarrBlockRunner.run(recipe, psfs, in, outPath, bytes, tile, Monitor.NONE)
+					: run(recipe, in, outPath, bytes, tile, Monitor.NONE));
 			System.out.println(String.format(Locale.ROOT, "Done: %s -> %s, %s, %.1f s", pos.get(1), pos.get(2), out.plan(),
 					(System.nanoTime() - start) / 1e9));
 			return 0;
@@ -118,6 +123,7 @@ public final class BlockRunner {
 	 */
 	public static Outcome run(final Recipe recipe, final Path input, final Path output, final long budget, final int[] tile, final Monitor monitor)
 			throws IOException {
+		if (ZarrBlockRunner.handles(input, output)) return ZarrBlockRunner.run(recipe, null, input, output, budget, tile, monitor);
 		recipe.requirePsf();
 		if (input.toAbsolutePath().normalize().equals(output.toAbsolutePath().normalize()))
 			throw new IllegalArgumentException("The output must differ from the input (inputs are never written)");
@@ -195,7 +201,7 @@ public final class BlockRunner {
 
 	private static int usage(final String problem) {
 		if (problem != null) System.err.println("Error: " + problem);
-		System.err.println("Usage: BlockRunner <recipe (options file, provenance JSON or options text)> <input.tif> <output.tif> [--budget MB] [--block X,Y,Z] [--psf FILE] [--threads N]");
+		System.err.println("Usage: BlockRunner <recipe (options file, provenance JSON or options text)> <input.tif|.zarr> <output.tif|.zarr> [--budget MB] [--block X,Y,Z] [--psf FILE[,FILE per channel]] [--threads N]");
 		return HeadlessMacro.EXIT_USAGE;
 	}
 }

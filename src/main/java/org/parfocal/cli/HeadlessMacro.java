@@ -19,6 +19,8 @@ import ij.Macro;
 import ij.Menus;
 import ij.macro.Interpreter;
 
+import org.parfocal.ij1.CommandFailure;
+
 /**
  * Batch entry: runs an ImageJ 1.x macro without a display and reports failure through the exit code.
  *
@@ -140,6 +142,7 @@ public final class HeadlessMacro {
 		out.abortOnException(interpreter);
 		err.swallowMacroErrors(true);
 		IJ.getErrorMessage(); // clear any earlier error
+		CommandFailure.take(); // and any earlier command failure
 		String returned = null;
 		String unexpected = null;
 		boolean cancelled = false;
@@ -173,6 +176,10 @@ public final class HeadlessMacro {
 			if (trace != null) error = trace.firstLine();
 		}
 		if (error == null) error = unexpected;
+		// A Parfocal command that failed aborted the macro: its line is the reason. (The interpreter's own message is
+		// then a consequence of the abort, e.g. "';' expected" inside a for loop.)
+		final String commandFailure = CommandFailure.take();
+		if (commandFailure != null && (error != null || cancelled)) error = commandFailure;
 		// Convention for batch macros: exit("Error: <why>") ends the macro as a failure (a plain exit() or an
 		// exit with any other message is a normal end). Without a display, exit's message is the last line.
 		if (error == null && cancelled && !log.isEmpty() && log.get(log.size() - 1).startsWith(EXIT_ERROR_PREFIX))

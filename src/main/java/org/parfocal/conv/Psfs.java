@@ -65,6 +65,60 @@ public final class Psfs {
 		return out;
 	}
 
+	/**
+	 * The PSF's centre of mass minus its origin voxel ⌊(k − 1)/2⌋, in voxels per axis (x, y, z); null if its sum
+	 * is not positive. A PSF convolves an image shifted by this much (the shift theorem), so a PSF whose centre of
+	 * mass is off its origin moves the result.
+	 */
+	public static double[] centroidOffset(final Volume psf) {
+		final float[] d = psf.data();
+		final int nx = psf.nx(), ny = psf.ny(), nz = psf.nz();
+		double s = 0, sx = 0, sy = 0, sz = 0;
+		for (int z = 0, i = 0; z < nz; z++)
+			for (int y = 0; y < ny; y++)
+				for (int x = 0; x < nx; x++, i++) {
+					final double v = d[i];
+					s += v;
+					sx += v * x;
+					sy += v * y;
+					sz += v * z;
+				}
+		if (!(s > 0) || !Double.isFinite(s)) return null;
+		return new double[] { sx / s - (nx - 1) / 2, sy / s - (ny - 1) / 2, sz / s - (nz - 1) / 2 };
+	}
+
+	/** Offsets larger than this (voxels, along any axis) are worth a warning: the result shifts visibly. */
+	public static final double CENTROID_TOLERANCE = 0.5;
+
+	/**
+	 * A one-line warning when the centre of mass is more than half a voxel off the origin voxel along any axis,
+	 * else null.
+	 */
+	public static String centroidWarning(final Volume psf) {
+		final double[] o = centroidOffset(psf);
+		if (o == null) return null;
+		if (Math.abs(o[0]) <= CENTROID_TOLERANCE && Math.abs(o[1]) <= CENTROID_TOLERANCE && Math.abs(o[2]) <= CENTROID_TOLERANCE) return null;
+		return String.format(java.util.Locale.ROOT, "the PSF's centre of mass is off its centre voxel by (%.2f, %.2f, %.2f) voxels (x, y, z), "
+				+ "so the result is shifted by as much; add recentre to move it to the centre", o[0], o[1], o[2]);
+	}
+
+	/**
+	 * Copy circularly shifted by whole voxels so that its centre of mass lies within half a voxel of the origin
+	 * voxel along every axis (the shift is the rounded {@link #centroidOffset}; whole voxels keep the values
+	 * exact). Returned unchanged if its sum is not positive.
+	 */
+	public static Volume recentred(final Volume psf) {
+		final double[] o = centroidOffset(psf);
+		if (o == null) return psf.copy();
+		final int dx = (int) -Math.round(o[0]), dy = (int) -Math.round(o[1]), dz = (int) -Math.round(o[2]);
+		final Volume out = Volume.zeros(psf.nx(), psf.ny(), psf.nz(), psf.voxelSize());
+		for (int z = 0; z < psf.nz(); z++)
+			for (int y = 0; y < psf.ny(); y++)
+				for (int x = 0; x < psf.nx(); x++)
+					out.set(Math.floorMod(x + dx, psf.nx()), Math.floorMod(y + dy, psf.ny()), Math.floorMod(z + dz, psf.nz()), psf.get(x, y, z));
+		return out;
+	}
+
 	/** Copy circularly shifted by whole voxels so that its maximum sits at the origin voxel. */
 	public static Volume centerOnPeak(final Volume psf) {
 		final float[] d = psf.data();

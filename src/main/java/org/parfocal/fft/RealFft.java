@@ -11,6 +11,11 @@ import org.parfocal.core.Parallel;
 /**
  * Discrete Fourier transform of real 1D, 2D and 3D data of any size, X(k) = Σ_n x(n)·exp(−2πi k·n/N).
  * <p>
+ * <b>Backends.</b> Each instance computes on the {@link FftBackend} selected when it is made: FFTW
+ * ({@link FftwTransform}, natives, when installed) or JTransforms (pure Java, below). Both give the same layouts,
+ * normalisation, pruning and row hooks, and results that agree within float rounding; the paragraphs below
+ * describe the pure-Java path.
+ * <p>
  * <b>Why composed from 1D transforms.</b> JTransforms' 2D and 3D {@code realForward} accept only
  * power-of-two sizes, and {@code realForwardFull} costs twice the time and memory. This class composes the
  * real transform from JTransforms' 1D plans, which take any length: a real transform along x, then complex
@@ -66,9 +71,26 @@ public final class RealFft {
 	private final int blockY, blockZ;
 	private final ThreadLocal<Lines> lines;
 	private final Rows all;
+	private final FftBackend backend;
+	/** The FFTW implementation of the operations, or null on the pure-Java path. */
+	private final FftwTransform fftw;
 
-	/** Plan for a real array of nx × ny × nz (use 1 for absent dimensions). */
+	/**
+	 * Plan for a real array of nx × ny × nz (use 1 for absent dimensions), on the backend selected now
+	 * ({@link FftBackend#selected}).
+	 *
+	 * @throws IllegalArgumentException for sizes below 1 or too large, or if the selection names an FFTW that does not load
+	 */
 	public RealFft(final int nx, final int ny, final int nz) {
+		this(nx, ny, nz, FftBackend.selected());
+	}
+
+	/**
+	 * Plan for a real array of nx × ny × nz on a given backend (for comparisons).
+	 *
+	 * @throws IllegalArgumentException if the backend cannot run here
+	 */
+	public RealFft(final int nx, final int ny, final int nz, final FftBackend backend) {
 		if (nx < 1 || ny < 1 || nz < 1)
 			throw new IllegalArgumentException("Transform sizes must be at least 1, got " + nx + " x " + ny + " x " + nz);
 		if ((long) 2 * (nx / 2 + 1) * ny * nz > Integer.MAX_VALUE - 8)
@@ -81,7 +103,13 @@ public final class RealFft {
 		this.blockZ = blockSize(nz, ny);
 		this.lines = ThreadLocal.withInitial(Lines::new);
 		this.all = new Rows(0, ny, 0, nz);
+		if (!backend.available()) throw new IllegalArgumentException("FFT backend " + backend.key() + " cannot be used: " + backend.unavailableReason());
+		this.backend = backend;
+		this.fftw = backend == FftBackend.FFTW ? new FftwTransform(nx, ny, nz) : null;
 	}
+
+	/** The library computing this instance's transforms. */
+	public FftBackend backend() { return backend; }
 
 	/**
 	 * Columns per block for lines of n values with {@code outer} lines per column: about BLOCK_FLOATS of
@@ -112,7 +140,8 @@ public final class RealFft {
 	/** Forward transform of {@code real} (unchanged) into {@code spectrum} (overwritten). */
 	public void forward(final float[] real, final float[] spectrum) {
 		checkLengths(real, spectrum);
-		forwardRows(real, nx, spectrum, all);
+		if (fftw != null) fftw.forward(real, nx, all, spectrum);
+		else forwardRows(real, nx, spectrum, all);
 	}
 
 	/**
@@ -121,7 +150,8 @@ public final class RealFft {
 	 */
 	public void inverse(final float[] spectrum, final float[] real) {
 		checkLengths(real, spectrum);
-		inverseRows(spectrum, real, nx, all);
+		if (fftw != null) fftw.inverse(spectrum, real, nx, all);
+		else inverseRows(spectrum, real, nx, all);
 	}
 
 	/**
@@ -137,7 +167,8 @@ public final class RealFft {
 	public void convolve(final float[] real, final float[] transfer, final boolean conjugate, final float[] work) {
 		checkLengths(real, work);
 		checkTransfer(transfer);
-		convolveRows(real, nx, work, transfer, false, conjugate, all, null, all, null);
+		if (fftw != null) fftw.convolve(real, nx, work, transfer, false, conjugate, all, null, all, null);
+		else convolveRows(real, nx, work, transfer, false, conjugate, all, null, all, null);
 	}
 
 	/**
@@ -193,7 +224,12 @@ public final class RealFft {
 	 */
 	public void forwardInPlace(final float[] grid, final Rows input) {
 		checkGrid(grid);
-		forwardRows(grid, 2 * h, grid, input);
+		if (fftw != null) {
+			checkRows(input);
+			fftw.forward(grid, 2 * h, input, grid);
+		} else {
+			forwardRows(grid, 2 * h, grid, input);
+		}
 	}
 
 	/**
@@ -202,7 +238,12 @@ public final class RealFft {
 	 */
 	public void inverseInPlace(final float[] grid, final Rows output) {
 		checkGrid(grid);
-		inverseRows(grid, grid, 2 * h, output);
+		if (fftw != null) {
+			checkRows(output);
+			fftw.inverse(grid, grid, 2 * h, output);
+		} else {
+			inverseRows(grid, grid, 2 * h, output);
+		}
 	}
 
 	/**
@@ -241,7 +282,10 @@ public final class RealFft {
 			final Rows output, final RowAction after) {
 		checkGrid(grid);
 		checkTransfer(transfer);
-		convolveRows(grid, 2 * h, grid, transfer, false, conjugate, input, before, output, after);
+		checkRows(input);
+		checkRows(output);
+		if (fftw != null) fftw.convolve(grid, 2 * h, grid, transfer, false, conjugate, input, before, output, after);
+		else convolveRows(grid, 2 * h, grid, transfer, false, conjugate, input, before, output, after);
 	}
 
 	/**
@@ -254,10 +298,13 @@ public final class RealFft {
 	public static final class LineTransfer {
 		private final float[] data;
 		private final RealFft owner;
+		/** Whether data is in line layout (the pure-Java path) or still in spectrum layout (FFTW reads whole runs of a plane). */
+		private final boolean lines;
 
-		private LineTransfer(final float[] data, final RealFft owner) {
+		private LineTransfer(final float[] data, final RealFft owner, final boolean lines) {
 			this.data = data;
 			this.owner = owner;
+			this.lines = lines;
 		}
 	}
 
@@ -270,6 +317,11 @@ public final class RealFft {
 		checkTransfer(transfer);
 		checkTransfer(dst);
 		if (dst == transfer) throw new IllegalArgumentException("The rearranged transfer function needs its own array");
+		if (fftw != null) {
+			// FFTW's product reads runs of adjacent columns of each plane: the spectrum layout is already sequential
+			System.arraycopy(transfer, 0, dst, 0, transfer.length);
+			return new LineTransfer(dst, this, false);
+		}
 		final int n = nz > 1 ? nz : ny > 1 ? ny : 1, outerCount = nz > 1 ? ny : 1, stride = nz > 1 ? 2 * h * ny : 2 * h;
 		if (n == 1) {
 			System.arraycopy(transfer, 0, dst, 0, transfer.length);
@@ -286,7 +338,7 @@ public final class RealFft {
 				}
 			});
 		}
-		return new LineTransfer(dst, this);
+		return new LineTransfer(dst, this, n > 1);
 	}
 
 	/** {@link #convolveInPlace(float[], float[], boolean, Rows, RowAction, Rows, RowAction)} with a rearranged transfer function: the same results. */
@@ -295,7 +347,10 @@ public final class RealFft {
 		checkGrid(grid);
 		if (transfer.owner != this && !sameShape(transfer.owner))
 			throw new IllegalArgumentException("The transfer function was made for another transform size");
-		convolveRows(grid, 2 * h, grid, transfer.data, true, conjugate, input, before, output, after);
+		checkRows(input);
+		checkRows(output);
+		if (fftw != null) fftw.convolve(grid, 2 * h, grid, transfer.data, transfer.lines, conjugate, input, before, output, after);
+		else convolveRows(grid, 2 * h, grid, transfer.data, transfer.lines, conjugate, input, before, output, after);
 	}
 
 	private boolean sameShape(final RealFft o) {

@@ -61,7 +61,7 @@ import org.parfocal.psf.PsfModels;
  * means automatic.
  * <p>
  * <b>Watch mode</b> ({@code watch}, off by default): the second dialog and keys of {@code Deconvolve...}'s watch
- * mode ({@code every references open_references photons read_noise stop_at_suggestion ignore_calibration}). Every
+ * mode ({@code every reference_folder reference_images photons read_noise stop_at_suggestion ignore_calibration}). Every
  * {@code every} outer iterations a {@link BlindQualityWatch} computes the current object's patch distance to the
  * sharp references and its re-blur χ² with the PSF estimate of the same iteration; a plot shows both against
  * the iteration and {@link StoppingRule} suggests one. With {@code stop_at_suggestion} the deblurred image and
@@ -197,14 +197,14 @@ public class BlindDeconvolve implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.BLIND_DECONVOLVE, () -> {
 			Options o = showDialog();
-			if (o == null) return;
+			if (o == null) throw Commands.cancelled();
 			if (o.watch() != null && !o.watch().ignoreCalibration()) {
 				final String problem = CompareWithReferences.calibrationProblem(Commands.image(o.image(), "image"),
 						CompareWithReferences.references(o.watch().referenceFolder(), o.watch().openReferences(), List.of(o.image(), o.psf())), null);
 				if (problem != null) {
-					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) return;
+					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) throw Commands.cancelled();
 					o = o.withWatch(o.watch().withIgnoreCalibration());
 				}
 			}
@@ -213,7 +213,9 @@ public class BlindDeconvolve implements PlugIn {
 			out.plot().show();
 			if (out.quality() != null) out.quality().show();
 			out.history().show();
+			zoomSmall(out.history());
 			out.psf().show();
+			zoomSmall(out.psf());
 			out.image().show(); // last, so that it is the current image for the next macro line
 		});
 	}
@@ -225,37 +227,35 @@ public class BlindDeconvolve implements PlugIn {
 		System.arraycopy(titles, 0, starts, 0, titles.length);
 		starts[titles.length] = FROM_OPTICS;
 		starts[titles.length + 1] = GAUSSIAN;
+		Commands.acceptOldValue("edges", EdgeMode.OLD_NON_CIRCULANT_KEY, EdgeMode.NON_CIRCULANT.key());
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", starts, guessStart(titles));
-		gd.addNumericField("FWHM_xy:", Prefs.get(PREFS + "fwhm_xy", 0.25), 3, 6, "µm, lateral width of a gaussian start");
-		gd.addNumericField("FWHM_z:", Prefs.get(PREFS + "fwhm_z", 0.7), 3, 6, "µm, axial width of a gaussian start");
+		gd.addNumericField("FWHM_xy:", Commands.remembered(PREFS + "fwhm_xy", 0.25), 3, 6, "µm, lateral width of a gaussian start");
+		gd.addNumericField("FWHM_z:", Commands.remembered(PREFS + "fwhm_z", 0.7), 3, 6, "µm, axial width of a gaussian start");
 		gd.addMessage("Schedule");
-		gd.addNumericField("Iterations:", Prefs.get(PREFS + "iterations", BlindOptions.DEFAULT_ITERATIONS), 0, 6, "outer iterations");
-		gd.addNumericField("Object_updates:", Prefs.get(PREFS + "object_updates", 1), 0, 6, "per iteration");
-		gd.addNumericField("PSF_updates:", Prefs.get(PREFS + "psf_updates", 1), 0, 6, "per iteration (0: PSF kept)");
-		gd.addNumericField("Object_TV:", Prefs.get(PREFS + "object_tv", BlindOptions.DEFAULT_OBJECT_TV), 4, 8, "total-variation weight");
-		gd.addNumericField("PSF_TV:", Prefs.get(PREFS + "psf_tv", 0), 4, 8, "total-variation weight");
-		gd.addChoice("Estimate:", new String[] { FREE_FORM, MODEL_FIT, MODEL_FIT_REFINED }, Prefs.get(PREFS + "estimate", FREE_FORM));
-		gd.addNumericField("Trust_radius:", Prefs.get(PREFS + "trust_radius", FitPlan.DEFAULT_TRUST_RADIUS), 3, 6, "largest distance of a refined PSF to the fitted model");
+		gd.addNumericField("Iterations:", Commands.remembered(PREFS + "iterations", BlindOptions.DEFAULT_ITERATIONS), 0, 6, "outer iterations");
+		gd.addNumericField("Object_updates:", Commands.remembered(PREFS + "object_updates", 1), 0, 6, "per iteration");
+		gd.addNumericField("PSF_updates:", Commands.remembered(PREFS + "psf_updates", 1), 0, 6, "per iteration (0: PSF kept)");
+		gd.addNumericField("Object_TV:", Commands.remembered(PREFS + "object_tv", BlindOptions.DEFAULT_OBJECT_TV), 4, 8, "total-variation weight");
+		gd.addNumericField("PSF_TV:", Commands.remembered(PREFS + "psf_tv", 0), 4, 8, "total-variation weight");
+		gd.addChoice("Estimate:", new String[] { FREE_FORM, MODEL_FIT, MODEL_FIT_REFINED }, Commands.remembered(PREFS + "estimate", FREE_FORM));
+		gd.addNumericField("Trust_radius:", Commands.remembered(PREFS + "trust_radius", FitPlan.DEFAULT_TRUST_RADIUS), 3, 6, "largest distance of a refined PSF to the fitted model");
 		gd.addMessage("PSF constraints");
-		gd.addCheckbox("Band_limit (optical cutoff 2 NA / wavelength; widefield)", Prefs.get(PREFS + "band_limit", true));
-		gd.addCheckbox("Symmetric (cylindrical about the optical axis)", Prefs.get(PREFS + "symmetric", false));
-		gd.addCheckbox("Centring (keep the centre of mass of the start)", Prefs.get(PREFS + "centring", true));
-		gd.addNumericField("Support_xy:", Prefs.get(PREFS + "support_xy", 0), 2, 6, "PSF box width; 0 = automatic");
-		gd.addNumericField("Support_z:", Prefs.get(PREFS + "support_z", 0), 2, 6, "PSF box depth; 0 = automatic");
-		gd.addChoice("Support_units:", new String[] { VOXELS, MICRONS }, Prefs.get(PREFS + "support_units", VOXELS));
+		gd.addCheckbox("Band_limit (optical cutoff 2 NA / wavelength; widefield)", Commands.remembered(PREFS + "band_limit", true));
+		gd.addCheckbox("Symmetric (cylindrical about the optical axis)", Commands.remembered(PREFS + "symmetric", false));
+		gd.addCheckbox("Centring (keep the centre of mass of the start)", Commands.remembered(PREFS + "centring", true));
+		gd.addNumericField("Support_xy:", Commands.remembered(PREFS + "support_xy", 0), 2, 6, "PSF box width; 0 = automatic");
+		gd.addNumericField("Support_z:", Commands.remembered(PREFS + "support_z", 0), 2, 6, "PSF box depth; 0 = automatic");
+		gd.addChoice("Support_units:", new String[] { VOXELS, MICRONS }, Commands.remembered(PREFS + "support_units", VOXELS));
 		gd.addMessage("Output and data");
-		gd.addNumericField("Snapshot_interval:", Prefs.get(PREFS + "snapshot_interval", BlindOptions.DEFAULT_SNAPSHOT_INTERVAL), 0, 6,
+		gd.addNumericField("Snapshot_interval:", Commands.remembered(PREFS + "snapshot_interval", BlindOptions.DEFAULT_SNAPSHOT_INTERVAL), 0, 6,
 				"iterations between PSF snapshots");
-		gd.addChoice("Edges:", EdgeMode.keys(), Prefs.get(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
-		gd.addStringField("Offset:", Prefs.get(PREFS + "offset", "auto"), 8);
-		gd.addStringField("Background:", Prefs.get(PREFS + "background", "auto"), 8);
+		gd.addChoice("Edges:", EdgeMode.keys(), Commands.remembered(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
+		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
+		gd.addStringField("Background:", Commands.remembered(PREFS + "background", "auto"), 8);
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
-		gd.addHelp("PSF: the starting estimate, an open image, from_optics (computed in the next dialog) or gaussian (FWHM_xy, FWHM_z). "
-				+ "Band limit: needs the optics; without from_optics the next dialog asks for NA, immersion index and emission. "
-				+ "Support: the box the PSF lives in, odd sizes in voxels (or µm); 0 = from the optics or the start. "
-				+ "Offset: camera offset subtracted first (a number, or auto). Background: constant in the model H x + b (a number, or auto).");
+		gd.addHelp(DialogHelp.blind().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
@@ -320,9 +320,10 @@ public class BlindDeconvolve implements PlugIn {
 	private static BandOptics showBandDialog() {
 		final GenericDialog gd = new GenericDialog(COMMAND + ": optics for the band limit");
 		gd.addMessage("The band-limit constraint needs the widefield optics:");
-		gd.addNumericField("NA:", Prefs.get(PREFS + "na", 1.4), 3);
-		gd.addNumericField("Immersion_index:", Prefs.get(PREFS + "immersion_index", 1.518), 4);
-		gd.addNumericField("Emission:", Prefs.get(PREFS + "emission", 0.52), 3, 6, "µm");
+		gd.addNumericField("NA:", Commands.remembered(PREFS + "na", 1.4), 3);
+		gd.addNumericField("Immersion_index:", Commands.remembered(PREFS + "immersion_index", 1.518), 4);
+		gd.addNumericField("Emission:", Commands.remembered(PREFS + "emission", 0.52), 3, 6, "µm");
+		gd.addHelp(DialogHelp.band().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final double na = Commands.number(gd, "na"), ni = Commands.number(gd, "immersion_index"), em = Commands.number(gd, "emission");
@@ -506,7 +507,19 @@ public class BlindDeconvolve implements PlugIn {
 		for (int t = 0; t < snaps.size(); t++)
 			for (int z = 0; z < nz; z++)
 				st.setSliceLabel(label(snaps.get(t).iteration(), z, nz), imp.getStackIndex(1, z + 1, t + 1));
+		// open on the last snapshot's brightest plane, displayed from 0 to that plane's peak, so the PSF shows
+		final Volume last = vols.get(vols.size() - 1);
+		final int[] pk = org.parfocal.psf.Fwhm.peak(last);
+		imp.setPosition(1, pk[2] + 1, vols.size());
+		imp.setDisplayRange(0, Math.max(Float.MIN_NORMAL, last.get(pk[0], pk[1], pk[2])));
 		return imp;
+	}
+
+	/** Enlarges a small image's window (PSFs are a few tens of voxels wide) to about 300 pixels. */
+	static void zoomSmall(final ImagePlus imp) {
+		if (imp.getWindow() == null || imp.getWidth() >= 150) return;
+		final int percent = 100 * Math.max(2, Math.min(16, 300 / imp.getWidth()));
+		IJ.run(imp, "Set... ", "zoom=" + percent);
 	}
 
 	static String label(final int iteration, final int z, final int nz) {
@@ -572,13 +585,16 @@ public class BlindDeconvolve implements PlugIn {
 		plot.setColor(new Color(90, 90, 90));
 		plot.addPoints(it, dist, Plot.CONNECTED_CIRCLES);
 		plot.setColor(Color.black);
-		plot.addLegend(axial ? "lateral FWHM / start\naxial FWHM / start\ndistance to start" : "lateral FWHM / start\ndistance to start");
-		plot.setLimitsToFit(false);
+		// headroom above the curves, so the legend in the top-right corner covers no data
+		double ymax = 1;
+		for (int i = 0; i < n; i++) for (final double v : new double[] { lat[i], ax[i], dist[i] }) if (Double.isFinite(v)) ymax = Math.max(ymax, v);
+		plot.setLimits(it[0], Math.max(it[n - 1], it[0] + 1), 0, ymax * (axial ? 1.45 : 1.35));
+		plot.addLegend(axial ? "lateral FWHM / start\naxial FWHM / start\ndistance to start" : "lateral FWHM / start\ndistance to start", "top-right");
 		return plot;
 	}
 
 	private static String guessStart(final String[] titles) {
-		final String last = Prefs.get(PREFS + "start", GAUSSIAN);
+		final String last = Commands.remembered(PREFS + "start", GAUSSIAN);
 		if (FROM_OPTICS.equals(last) || GAUSSIAN.equals(last)) return last;
 		for (final String t : titles) if (t.toLowerCase(Locale.ROOT).contains("psf")) return t;
 		return GAUSSIAN;

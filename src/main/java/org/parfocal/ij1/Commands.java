@@ -12,10 +12,12 @@ import ij.Prefs;
 import ij.WindowManager;
 import ij.gui.GenericDialog;
 import ij.macro.Interpreter;
+import ij.plugin.frame.Recorder;
 
 import net.imglib2.parallel.Parallelization;
 
 import org.parfocal.core.Monitor;
+import org.parfocal.provenance.CommandKeys;
 
 /**
  * What every Parfocal command shares: picking images by title, running the core with ImageJ's thread count,
@@ -96,6 +98,37 @@ final class Commands {
 		return v;
 	}
 
+	/**
+	 * In a macro, an old value of a choice is replaced by its current one before the dialog reads the options
+	 * (a released macro value keeps working though the dialog lists the new one).
+	 */
+	static void acceptOldValue(final String key, final String oldValue, final String newValue) {
+		final String options = Macro.getOptions();
+		if (options == null) return;
+		final String given = Macro.getValue(options, key, null);
+		if (given == null || !given.trim().equalsIgnoreCase(oldValue)) return;
+		Macro.setOptions(options.replaceFirst("(^|\\s)" + java.util.regex.Pattern.quote(key) + "=\\[?" + java.util.regex.Pattern.quote(given) + "\\]?(?=\\s|$)",
+				"$1" + key + "=" + newValue));
+	}
+
+	/**
+	 * A dialog default: the value remembered from the last interactive run, but in a macro always the documented
+	 * default {@code d} (as ImageJ's own filters do), so a macro that omits a key gets the same result everywhere.
+	 */
+	static double remembered(final String prefsKey, final double d) {
+		return isMacro() ? d : Prefs.get(prefsKey, d);
+	}
+
+	/** See {@link #remembered(String, double)}. */
+	static boolean remembered(final String prefsKey, final boolean d) {
+		return isMacro() ? d : Prefs.get(prefsKey, d);
+	}
+
+	/** See {@link #remembered(String, double)}. */
+	static String remembered(final String prefsKey, final String d) {
+		return isMacro() ? d : Prefs.get(prefsKey, d);
+	}
+
 	/** True while a macro (or a headless replay) drives the command. */
 	static boolean isMacro() {
 		return Macro.getOptions() != null;
@@ -119,9 +152,12 @@ final class Commands {
 	 */
 	static boolean run(final String command, final Runnable body) {
 		try {
+			ParfocalOptions.applySaved();
 			body.run();
 			return true;
 		} catch (final Monitor.CancelledException e) {
+			// A cancelled run (Cancel in a dialog, Esc during the run) made nothing: the Recorder must not record it.
+			Recorder.disableCommandRecording();
 			IJ.showProgress(1.0);
 			IJ.showStatus(command + ": cancelled, nothing was created");
 			return false;
@@ -137,6 +173,70 @@ final class Commands {
 		} catch (final OutOfMemoryError e) {
 			fail(command, "Out of memory: give ImageJ more (Edit > Options > Memory & Threads) or use a smaller image");
 			return false;
+		} catch (final StackOverflowError e) {
+			fail(command, "An input is nested too deeply to read (stack overflow)" + details(e));
+			return false;
+		} catch (final RuntimeException | Error e) {
+			if (Macro.MACRO_CANCELED.equals(e.getMessage())) throw e; // the macro is being aborted: let it unwind
+			if (java.awt.GraphicsEnvironment.isHeadless() && (e instanceof java.awt.HeadlessException
+					|| String.valueOf(e.getMessage()).toLowerCase(Locale.ROOT).contains("headless"))) {
+				fail(command, "Without a display this command needs its options, e.g. run(\"" + command + "...\", \"image=... \") (see README)");
+				return false;
+			}
+			// The safety net: an unexpected error is one line; the details go to a file, never to the user's screen.
+			fail(command, "Unexpected " + e.getClass().getSimpleName() + where(e) + details(e));
+			return false;
+		}
+	}
+
+	/** Runs a command body after checking the macro's keys against {@code keys} (see {@link #acceptKeys}). */
+	static boolean run(final String command, final CommandKeys.Command keys, final Runnable body) {
+		return run(command, () -> {
+			acceptKeys(keys);
+			body.run();
+		});
+	}
+
+	/**
+	 * In a macro: an unknown key is an error naming the closest known key, a missing required key an error, and
+	 * old key names are translated (as whole keys) so the dialogs read them under their new names.
+	 */
+	static void acceptKeys(final CommandKeys.Command keys) {
+		final String options = Macro.getOptions();
+		if (options == null) return;
+		final String checked = CommandKeys.check(keys, options);
+		if (!checked.equals(options)) Macro.setOptions(checked);
+	}
+
+	/** The exception to throw when the user cancelled a dialog: nothing is made and nothing recorded. */
+	static Monitor.CancelledException cancelled() {
+		return new Monitor.CancelledException();
+	}
+
+	/** " at Class.method:line" of the first Parfocal frame (else the first frame), or "". */
+	private static String where(final Throwable e) {
+		StackTraceElement first = null;
+		for (final StackTraceElement f : e.getStackTrace()) {
+			if (first == null) first = f;
+			if (f.getClassName().startsWith("org.parfocal.")) {
+				first = f;
+				break;
+			}
+		}
+		return first == null ? "" : " at " + first.getClassName().substring(first.getClassName().lastIndexOf('.') + 1) + "." + first.getMethodName()
+				+ ":" + first.getLineNumber();
+	}
+
+	/** Writes the stack trace to a new file in the temporary folder and returns "; details in FILE" (or "" if that fails). */
+	private static String details(final Throwable e) {
+		try {
+			final java.nio.file.Path f = java.nio.file.Files.createTempFile("parfocal-error-", ".txt");
+			final java.io.StringWriter w = new java.io.StringWriter();
+			e.printStackTrace(new java.io.PrintWriter(w));
+			java.nio.file.Files.writeString(f, w.toString(), java.nio.charset.StandardCharsets.UTF_8);
+			return "; details in " + f;
+		} catch (final java.io.IOException | RuntimeException io) {
+			return "";
 		}
 	}
 
@@ -146,6 +246,7 @@ final class Commands {
 	 */
 	static void fail(final String command, final String message) {
 		IJ.showProgress(1.0);
+		CommandFailure.report(command + ": " + message);
 		IJ.error("Parfocal", command + ": " + message);
 		if (Interpreter.getInstance() != null) Interpreter.abort();
 	}

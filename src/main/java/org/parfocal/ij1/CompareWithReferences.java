@@ -35,9 +35,9 @@ import org.parfocal.quality.ReferenceComparison;
  * table (distances with bootstrap intervals, floor, baseline, gap closed, χ², whiteness) and a plot of the
  * quantile curves of intensity and gradient magnitude (result vs references), which carries the provenance.
  * <p>
- * References: every TIFF in a folder ({@code references=}) and/or every open image whose title matches a
- * pattern ({@code open_references=}, {@code *} and {@code ?} wildcards). Macro keys (public API): {@code result
- * references open_references input psf offset background photons read_noise patch_size patches bootstrap seed
+ * References: every TIFF in a folder ({@code reference_folder=}) and/or every open image whose title matches a
+ * pattern ({@code reference_images=}, {@code *} and {@code ?} wildcards). Macro keys (public API): {@code result
+ * reference_folder reference_images input psf offset background photons read_noise patch_size patches bootstrap seed
  * ignore_calibration}.
  */
 public class CompareWithReferences implements PlugIn {
@@ -59,13 +59,13 @@ public class CompareWithReferences implements PlugIn {
 
 		public Options {
 			if (referenceFolder.isBlank() && openReferences.isBlank())
-				throw new IllegalArgumentException("No reference images given: name a folder of TIFFs (references=) or a title pattern of open images (open_references=)");
+				throw new IllegalArgumentException("No reference images given: name a folder of TIFFs (reference_folder=) or a title pattern of open images (reference_images=)");
 			if (!(photons > 0) || !Double.isFinite(photons)) throw new IllegalArgumentException("Photons per unit must be positive, got " + photons);
 			if (!(readNoise >= 0) || !Double.isFinite(readNoise)) throw new IllegalArgumentException("Read noise must be 0 or more, got " + readNoise);
 		}
 
 		public String macroOptions() {
-			return "result=" + MacroOptions.quote(result) + " references=" + MacroOptions.quote(referenceFolder) + " open_references="
+			return "result=" + MacroOptions.quote(result) + " reference_folder=" + MacroOptions.quote(referenceFolder) + " reference_images="
 					+ MacroOptions.quote(openReferences) + " input=" + MacroOptions.quote(input) + " psf=" + MacroOptions.quote(psf) + " offset="
 					+ Deconvolve.Options.level(offset) + " background=" + Deconvolve.Options.level(background) + " photons=" + MacroOptions.number(photons)
 					+ " read_noise=" + MacroOptions.number(readNoise) + " patch_size=" + patchSize + " patches=" + patches + " bootstrap=" + bootstrap
@@ -90,13 +90,13 @@ public class CompareWithReferences implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.COMPARE, () -> {
 			Options o = showDialog();
-			if (o == null) return;
+			if (o == null) throw Commands.cancelled();
 			if (!o.ignoreCalibration()) {
 				final String problem = calibrationProblem(o);
 				if (problem != null) {
-					if (!askIgnoreCalibration(COMMAND, problem)) return;
+					if (!askIgnoreCalibration(COMMAND, problem)) throw Commands.cancelled();
 					o = o.withIgnoreCalibration(true);
 				}
 			}
@@ -115,8 +115,8 @@ public class CompareWithReferences implements PlugIn {
 		final boolean macro = Commands.isMacro();
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Result:", titles, Commands.currentTitle(titles));
-		gd.addStringField("References:", macro ? "" : Prefs.get(PREFS + "folder", ""), 30);
-		gd.addStringField("Open_references:", macro ? "" : Prefs.get(PREFS + "pattern", ""), 20);
+		gd.addStringField("Reference_folder:", macro ? "" : Commands.remembered(PREFS + "folder", ""), 30);
+		gd.addStringField("Reference_images:", macro ? "" : Commands.remembered(PREFS + "pattern", ""), 20);
 		gd.addChoice("Input:", optional, NONE);
 		gd.addChoice("PSF:", optional, NONE);
 		gd.addStringField("Offset:", "auto", 8);
@@ -128,9 +128,7 @@ public class CompareWithReferences implements PlugIn {
 		gd.addNumericField("Bootstrap:", 50, 0, 6, "resamples (0 = no intervals)");
 		gd.addNumericField("Seed:", 1, 0);
 		gd.addCheckbox("Ignore_calibration (compare voxel for voxel)", false);
-		gd.addHelp("References: every .tif/.tiff in the folder, and/or every open image whose title matches the pattern (* and ? wildcards). "
-				+ "Input and PSF (optional) give the baseline distance, the gap closed and the re-blur chi-square; offset and background are those "
-				+ "of the input (a number, or auto), photons and read noise its noise model.");
+		gd.addHelp(DialogHelp.compare().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String result = Commands.checkChoice("result", gd.getNextChoice(), "image title");
@@ -267,6 +265,7 @@ public class CompareWithReferences implements PlugIn {
 		final ReferenceComparison.Report report = (ReferenceComparison.Report) core[0];
 		final ReblurConsistency.Result chi = (ReblurConsistency.Result) core[1];
 		final MarginalQuantiles.Curves curves = (MarginalQuantiles.Curves) core[2];
+		for (final String note : report.notes()) IJ.log(COMMAND + ": " + note);
 		final String base = ConvolveWithPsf.stripExtension(resImp.getTitle());
 		final ResultsTable table = table(report, chi);
 		final Plot plot = plot(curves, base, refs.size());
@@ -280,6 +279,7 @@ public class CompareWithReferences implements PlugIn {
 		if (!Double.isNaN(p.baseline())) prov.run("baseline", p.baseline()).run("gap_closed", p.gapClosed());
 		if (chi != null) prov.run("chi_square", chi.meanChiSquare()).run("whiteness", chi.whiteness());
 		prov.run("table", report.toText().strip().replace('\n', ';'));
+		if (!report.notes().isEmpty()) prov.run("notes", String.join("; ", report.notes()));
 		Provenance.attach(plotImp, prov, start);
 		monitor.done(String.format(Locale.ROOT, "patch distance %.4g (floor %.4g)", p.distance(), p.floor()));
 		return new Output("Reference comparison of " + base, table, plot, report, chi);
@@ -306,11 +306,12 @@ public class CompareWithReferences implements PlugIn {
 			t.incrementCounter();
 			t.addValue("property", r.property());
 			t.addValue("value", r.distance());
-			t.addValue("low", r.low());
-			t.addValue("high", r.high());
-			t.addValue("floor", r.floor());
-			t.addValue("baseline", r.baseline());
-			t.addValue("gap_closed", r.gapClosed());
+			t.addValue(LOW, r.low());
+			t.addValue(HIGH, r.high());
+			t.addValue(FLOOR, r.floor());
+			t.addValue(BASELINE, r.baseline());
+			t.addValue(GAP, r.gapClosed());
+			t.addValue(WHY, whyNoGap(r.baseline(), r.floor(), r.gapClosed()));
 		}
 		if (chi != null) {
 			addScalar(t, "re-blur chi-square", chi.meanChiSquare());
@@ -324,22 +325,40 @@ public class CompareWithReferences implements PlugIn {
 		t.incrementCounter();
 		t.addValue("property", name);
 		t.addValue("value", v);
-		for (final String c : new String[] { "low", "high", "floor", "baseline", "gap_closed" }) t.addValue(c, Double.NaN);
+		for (final String c : new String[] { LOW, HIGH, FLOOR, BASELINE, GAP }) t.addValue(c, Double.NaN);
+		t.addValue(WHY, "");
 	}
 
-	/** Quantile curves of intensity and gradient magnitude, result (solid) vs references (dashed). */
+	/** Worded column headings of the table (explained in the dialog's Help). */
+	static final String LOW = "95% low", HIGH = "95% high", FLOOR = "noise floor", BASELINE = "blurred input", GAP = "gap closed", WHY = "why no gap";
+
+	/** Why "gap closed" is blank, or "" when it has a value. */
+	static String whyNoGap(final double baseline, final double floor, final double gap) {
+		if (Double.isFinite(gap)) return "";
+		if (Double.isNaN(baseline)) return "no input given";
+		if (!(baseline > floor)) return "input already within the noise floor";
+		return "undefined";
+	}
+
+	/** Quantile curves of intensity and gradient magnitude: references (wide, light) under the result (dark). */
 	static Plot plot(final MarginalQuantiles.Curves c, final String title, final int refCount) {
 		final Plot plot = new Plot("Marginals of " + title + " vs references", "Quantile level (%)", "Normalized value");
 		final Color[] colors = { new Color(0, 90, 170), new Color(200, 80, 0) };
+		final Color[] light = { new Color(140, 185, 230), new Color(240, 180, 130) };
 		for (int k = 0; k < 2; k++) {
+			// the references first, as a wide light band of the same hue, then the result as a dark line on top:
+			// both stay visible where they agree
+			plot.setColor(light[k]);
+			plot.setLineWidth(5);
+			plot.addPoints(c.levels(), c.references()[k], Plot.LINE);
 			plot.setColor(colors[k]);
 			plot.setLineWidth(2);
 			plot.addPoints(c.levels(), c.result()[k], Plot.LINE);
-			plot.setLineWidth(1);
-			plot.addPoints(c.levels(), c.references()[k], Plot.DOT);
 		}
+		plot.setLineWidth(1);
 		plot.setColor(Color.BLACK);
-		plot.addLegend("intensity, result\tintensity, " + refCount + " reference(s)\tgradient magnitude, result\tgradient magnitude, references");
+		plot.addLegend("intensity, " + refCount + " reference(s) (wide, light)\tintensity, result\tgradient magnitude, references (wide, light)\tgradient magnitude, result",
+				"top-left");
 		plot.setLimitsToFit(false);
 		return plot;
 	}

@@ -8,9 +8,11 @@ import ij.gui.GenericDialog;
 import ij.plugin.PlugIn;
 
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.List;
 
 import org.parfocal.conv.Acquisition;
+import org.parfocal.conv.Psfs;
 import org.parfocal.core.Boundary;
 import org.parfocal.core.Hyperstack;
 import org.parfocal.core.Volume;
@@ -29,22 +31,28 @@ public class ConvolveWithPsf implements PlugIn {
 	private static final String PREFS = "parfocal.convolve.";
 
 	/** Everything the dialog decides. */
-	public record Options(String image, String psf, Acquisition.Options acquisition) {
+	public record Options(String image, String psf, Acquisition.Options acquisition, boolean recentre) {
+
+		/** Without re-centring the PSF. */
+		public Options(final String image, final String psf, final Acquisition.Options acquisition) {
+			this(image, psf, acquisition, false);
+		}
 
 		/** The options string a macro passes to {@code run("Convolve with PSF...", ...)}. */
 		public String macroOptions() {
 			final Acquisition.Options a = acquisition;
 			return "image=" + MacroOptions.quote(image) + " psf=" + MacroOptions.quote(psf) + " boundary=" + a.boundary().key()
 					+ (a.normalizePsf() ? " normalize" : "") + " background=" + MacroOptions.number(a.background()) + " photons="
-					+ MacroOptions.number(a.photons()) + " seed=" + a.seed() + " offset=" + MacroOptions.number(a.offset());
+					+ MacroOptions.number(a.photons()) + " seed=" + a.seed() + " offset=" + MacroOptions.number(a.offset()) + (recentre ? " recentre" : "");
 		}
 	}
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.CONVOLVE, () -> {
 			final Options o = showDialog();
-			if (o != null) WindowManagerShow.show(run(o));
+			if (o == null) throw Commands.cancelled();
+			WindowManagerShow.show(run(o));
 		});
 	}
 
@@ -55,14 +63,14 @@ public class ConvolveWithPsf implements PlugIn {
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, guessObject(titles));
 		gd.addChoice("PSF:", titles, guessPsf(titles));
-		gd.addChoice("Boundary:", Boundary.keys(), Prefs.get(PREFS + "boundary", Boundary.MIRROR.key()));
-		gd.addCheckbox("Normalize PSF to unit sum", Prefs.get(PREFS + "normalize", true));
+		gd.addChoice("Boundary:", Boundary.keys(), Commands.remembered(PREFS + "boundary", Boundary.MIRROR.key()));
+		gd.addCheckbox("Normalize PSF to unit sum", Commands.remembered(PREFS + "normalize", true));
 		gd.addNumericField("Background:", 0, 3, 8, "added after blurring");
 		gd.addNumericField("Photons per unit:", 0, 3, 8, "0 = no noise");
 		gd.addNumericField("Seed:", 1, 0);
 		gd.addNumericField("Offset:", 0, 3, 8, "camera offset, added without noise");
-		gd.addHelp("Blurs the image with the PSF (PSF centre voxel at (k-1)/2), adds the background, then Poisson noise with "
-				+ "that many photons per intensity unit, then the camera offset. Boundary: how the image continues beyond its edges.");
+		gd.addCheckbox("Recentre the PSF (shift its centre of mass to the centre voxel)", false);
+		gd.addHelp(DialogHelp.convolve().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
@@ -73,12 +81,13 @@ public class ConvolveWithPsf implements PlugIn {
 		final double photons = Commands.number(gd, "photons");
 		final double seed = Commands.number(gd, "seed");
 		final double offset = Commands.number(gd, "offset");
+		final boolean recentre = gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		if (!Commands.isMacro()) {
 			Prefs.set(PREFS + "boundary", boundary);
 			Prefs.set(PREFS + "normalize", normalize);
 		}
-		return new Options(image, psf, new Acquisition.Options(Boundary.parse(boundary), normalize, background, photons, (long) seed, offset));
+		return new Options(image, psf, new Acquisition.Options(Boundary.parse(boundary), normalize, background, photons, (long) seed, offset), recentre);
 	}
 
 	/** Runs the command on open images; returns the new image (not shown). */
@@ -86,7 +95,10 @@ public class ConvolveWithPsf implements PlugIn {
 		final ImagePlus object = Commands.image(o.image(), "image");
 		final ImagePlus psfImp = Commands.image(o.psf(), "PSF");
 		final Hyperstack in = ImageBridge.toCore(object);
-		final Volume psf = ImageBridge.toVolume(psfImp, "The PSF");
+		final Volume given = ImageBridge.toVolume(psfImp, "The PSF");
+		final String offCentre = Psfs.centroidWarning(given);
+		final Volume psf = o.recentre() ? Psfs.recentred(given) : given;
+		if (offCentre != null && !o.recentre()) IJ.log(COMMAND + ": Warning: " + offCentre);
 		final long start = System.nanoTime();
 		final IjMonitor monitor = new IjMonitor(COMMAND);
 		final Hyperstack out = Commands.withImageJThreads(() -> {
@@ -100,8 +112,11 @@ public class ConvolveWithPsf implements PlugIn {
 		});
 		final ImagePlus result = ImageBridge.toImagePlus(out, WindowManager.makeUniqueName(stripExtension(object.getTitle()) + "-blurred.tif"),
 				object.getCalibration());
-		Provenance.attach(result, Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", object))
-				.input(Provenance.input("psf", psfImp)).run("volumes", in.volumes().size()), start);
+		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", object)).input(Provenance.input("psf", psfImp))
+				.run("volumes", in.volumes().size());
+		if (o.recentre()) prov.run("psf_centre_of_mass_offset", Arrays.toString(Psfs.centroidOffset(given)));
+		else if (offCentre != null) prov.run("warning", offCentre);
+		Provenance.attach(result, prov, start);
 		monitor.done("done");
 		return result;
 	}

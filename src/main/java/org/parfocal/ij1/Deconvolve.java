@@ -35,6 +35,7 @@ import org.parfocal.quality.QualityWatch;
 import org.parfocal.quality.ReferenceComparison;
 import org.parfocal.quality.StoppingRule;
 import org.parfocal.quality.WatchedRun;
+import org.parfocal.psf.PsfExtent;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
 
@@ -50,7 +51,7 @@ import org.parfocal.psf.PsfModels;
  * {@code show_profiles}). {@code offset} and {@code background} take a number or {@code auto}.
  * <p>
  * <b>Watch mode</b> ({@code watch}, off by default; iterative methods only): a second dialog (keys {@code every
- * references open_references photons read_noise stop_at_suggestion ignore_calibration}) sets up a
+ * reference_folder reference_images photons read_noise stop_at_suggestion ignore_calibration}) sets up a
  * {@link QualityWatch} per channel and frame: every {@code every} iterations the iterate's patch distance to
  * sharp references (a folder of TIFFs and/or open images matching a title pattern; optional) and its re-blur
  * χ² against the data (noise model: {@code photons} per intensity unit, {@code read_noise}) are computed; a
@@ -69,7 +70,14 @@ public class Deconvolve implements PlugIn {
 	/**
 	 * What the dialogs decide. {@code optics} is set when {@code psf} is {@link #FROM_OPTICS}.
 	 */
-	public record Options(String image, String psf, PsfFromOptics.Options optics, DeconvolutionOptions deconvolution, boolean plot, Watch watch) {
+	public record Options(String image, String psf, PsfFromOptics.Options optics, DeconvolutionOptions deconvolution, boolean plot, Watch watch,
+			boolean recentre) {
+
+		/** Without re-centring the PSF ({@code recentre}: shift an open PSF's centre of mass to its centre voxel). */
+		public Options(final String image, final String psf, final PsfFromOptics.Options optics, final DeconvolutionOptions deconvolution, final boolean plot,
+				final Watch watch) {
+			this(image, psf, optics, deconvolution, plot, watch, false);
+		}
 
 		/** Without watch mode. */
 		public Options(final String image, final String psf, final PsfFromOptics.Options optics, final DeconvolutionOptions deconvolution, final boolean plot) {
@@ -86,7 +94,7 @@ public class Deconvolve implements PlugIn {
 			final String s = "image=" + MacroOptions.quote(image) + " psf=" + MacroOptions.quote(psf) + " method=" + d.method().key() + " iterations="
 					+ d.iterations() + " regularization=" + MacroOptions.number(d.regularization()) + " stop=" + d.stopping().key() + " threshold="
 					+ MacroOptions.number(d.changeThreshold()) + " edges=" + d.edges().key() + " offset=" + level(d.offset()) + " background="
-					+ level(d.background()) + (plot ? " plot" : "") + (watch != null ? " watch" : "");
+					+ level(d.background()) + (plot ? " plot" : "") + (watch != null ? " watch" : "") + (recentre ? " recentre" : "");
 			final String withOptics = optics == null ? s : s + " " + optics.macroOptions();
 			return watch == null ? withOptics : withOptics + " " + watch.macroOptions();
 		}
@@ -122,7 +130,7 @@ public class Deconvolve implements PlugIn {
 		}
 
 		public String macroOptions() {
-			return "every=" + every + " references=" + MacroOptions.quote(referenceFolder) + " open_references=" + MacroOptions.quote(openReferences)
+			return "every=" + every + " reference_folder=" + MacroOptions.quote(referenceFolder) + " reference_images=" + MacroOptions.quote(openReferences)
 					+ " photons=" + MacroOptions.number(photons) + " read_noise=" + MacroOptions.number(readNoise) + (stopAtSuggestion ? " stop_at_suggestion" : "")
 					+ (ignoreCalibration ? " ignore_calibration" : "");
 		}
@@ -134,16 +142,16 @@ public class Deconvolve implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.DECONVOLVE, () -> {
 			Options o = showDialog();
-			if (o == null) return;
+			if (o == null) throw Commands.cancelled();
 			if (o.watch() != null && !o.watch().ignoreCalibration()) {
 				final ImagePlus imp = Commands.image(o.image(), "image");
 				final String problem = CompareWithReferences.calibrationProblem(imp,
 						CompareWithReferences.references(o.watch().referenceFolder(), o.watch().openReferences(), List.of(o.image(), o.psf())), null);
 				if (problem != null) {
-					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) return;
-					o = new Options(o.image(), o.psf(), o.optics(), o.deconvolution(), o.plot(), o.watch().withIgnoreCalibration());
+					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) throw Commands.cancelled();
+					o = new Options(o.image(), o.psf(), o.optics(), o.deconvolution(), o.plot(), o.watch().withIgnoreCalibration(), o.recentre());
 				}
 			}
 			final Output out = run(o);
@@ -170,21 +178,22 @@ public class Deconvolve implements PlugIn {
 		final String[] psfChoices = new String[titles.length + 1];
 		System.arraycopy(titles, 0, psfChoices, 0, titles.length);
 		psfChoices[titles.length] = FROM_OPTICS;
+		Commands.acceptOldValue("edges", EdgeMode.OLD_NON_CIRCULANT_KEY, EdgeMode.NON_CIRCULANT.key());
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", psfChoices, guessPsf(titles));
-		gd.addChoice("Method:", DeconvolutionMethod.keys(), Prefs.get(PREFS + "method", DeconvolutionMethod.RL_TV.key()));
-		gd.addNumericField("Iterations:", Prefs.get(PREFS + "iterations", 30), 0, 6, "at most, with relative-change stop");
-		gd.addNumericField("Regularization:", Prefs.get(PREFS + "regularization", 0.002), 4, 8, "TV weight (RL-TV) or Wiener weight");
-		gd.addChoice("Stop:", new String[] { Stopping.FIXED.key(), Stopping.RELATIVE_CHANGE.key() }, Prefs.get(PREFS + "stop", Stopping.FIXED.key()));
-		gd.addNumericField("Threshold:", Prefs.get(PREFS + "threshold", 0.001), 5, 8, "relative change that stops");
-		gd.addChoice("Edges:", EdgeMode.keys(), Prefs.get(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
-		gd.addStringField("Offset:", Prefs.get(PREFS + "offset", "auto"), 8);
-		gd.addStringField("Background:", Prefs.get(PREFS + "background", "auto"), 8);
+		gd.addChoice("Method:", DeconvolutionMethod.keys(), Commands.remembered(PREFS + "method", DeconvolutionMethod.RL_TV.key()));
+		gd.addNumericField("Iterations:", Commands.remembered(PREFS + "iterations", 30), 0, 6, "at most, with relative-change stop");
+		gd.addNumericField("Regularization:", Commands.remembered(PREFS + "regularization", 0.002), 4, 8, "TV weight (RL-TV) or Wiener weight");
+		gd.addChoice("Stop:", new String[] { Stopping.FIXED.key(), Stopping.RELATIVE_CHANGE.key() }, Commands.remembered(PREFS + "stop", Stopping.FIXED.key()));
+		gd.addNumericField("Threshold:", Commands.remembered(PREFS + "threshold", 0.001), 5, 8, "relative change that stops");
+		gd.addChoice("Edges:", EdgeMode.keys(), Commands.remembered(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
+		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
+		gd.addStringField("Background:", Commands.remembered(PREFS + "background", "auto"), 8);
 		gd.addCheckbox("Plot convergence", true);
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
-		gd.addHelp("Offset: camera offset subtracted first (a number, or auto = 0.1 % quantile). Background: constant in the model "
-				+ "H x + b (a number, or auto = sigma-clipped median). PSF: an open image, or from_optics to compute it in the next dialog.");
+		gd.addCheckbox("Recentre the PSF (shift its centre of mass to the centre voxel)", false);
+		gd.addHelp(DialogHelp.deconvolve().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
@@ -197,6 +206,7 @@ public class Deconvolve implements PlugIn {
 		final String offset = gd.getNextString().trim(), background = gd.getNextString().trim();
 		final boolean plot = gd.getNextBoolean();
 		final boolean watch = gd.getNextBoolean();
+		final boolean recentre = gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		if (iterations != Math.rint(iterations)) throw new IllegalArgumentException("Iterations must be a whole number, got " + iterations);
 		final DeconvolutionOptions d = new DeconvolutionOptions(method, (int) iterations, regularization, stop,
@@ -222,24 +232,21 @@ public class Deconvolve implements PlugIn {
 			Prefs.set(PREFS + "offset", offset);
 			Prefs.set(PREFS + "background", background);
 		}
-		return new Options(image, psf, optics, d, plot, w);
+		return new Options(image, psf, optics, d, plot, w, recentre);
 	}
 
 	/** The watch-mode dialog; in a macro, values not given take the defaults (never remembered ones). */
 	static Watch showWatchDialog() {
 		final boolean macro = Commands.isMacro();
 		final GenericDialog gd = new GenericDialog(COMMAND + ": watch quality");
-		gd.addNumericField("Every:", macro ? 5 : Prefs.get(PREFS + "every", 5), 0, 6, "iterations");
-		gd.addStringField("References:", macro ? "" : Prefs.get(PREFS + "references", ""), 30);
-		gd.addStringField("Open_references:", macro ? "" : Prefs.get(PREFS + "open_references", ""), 20);
-		gd.addNumericField("Photons:", macro ? 1 : Prefs.get(PREFS + "photons", 1), 4, 8, "per intensity unit (1 = photon counts)");
-		gd.addNumericField("Read_noise:", macro ? 0 : Prefs.get(PREFS + "read_noise", 0), 3, 8, "sigma, intensity units");
+		gd.addNumericField("Every:", macro ? 5 : Commands.remembered(PREFS + "every", 5), 0, 6, "iterations");
+		gd.addStringField("Reference_folder:", macro ? "" : Commands.remembered(PREFS + "references", ""), 30);
+		gd.addStringField("Reference_images:", macro ? "" : Commands.remembered(PREFS + "open_references", ""), 20);
+		gd.addNumericField("Photons:", macro ? 1 : Commands.remembered(PREFS + "photons", 1), 4, 8, "per intensity unit (1 = photon counts)");
+		gd.addNumericField("Read_noise:", macro ? 0 : Commands.remembered(PREFS + "read_noise", 0), 3, 8, "sigma, intensity units");
 		gd.addCheckbox("Stop_at_suggestion (return the suggested iterate)", false);
 		gd.addCheckbox("Ignore_calibration of the references", false);
-		gd.addHelp("Every k iterations the iterate is compared with sharp reference images of the same kind of structure (every .tif in the "
-				+ "folder and/or open images whose title matches the pattern, * and ? wildcards; both may be empty) and re-blurred against the data "
-				+ "(chi-square, noise model: photons per unit and read noise). The suggested iteration is the one closest to the references "
-				+ "(without references: the last with chi-square >= 1).");
+		gd.addHelp(DialogHelp.watch().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final double every = Commands.number(gd, "every");
@@ -277,7 +284,7 @@ public class Deconvolve implements PlugIn {
 		final Hyperstack in = ImageBridge.toCore(imp);
 		final ImagePlus psfImp = o.optics() == null ? Commands.image(o.psf(), "PSF") : null;
 		final List<String> notes = new ArrayList<>();
-		final List<Volume> psfs = psfsFor(in, psfImp, o.optics(), notes);
+		final List<Volume> psfs = psfsFor(in, psfImp, o.optics(), notes, o.recentre());
 		final long budget = Long.getLong(BUDGET_PROPERTY, BlockPlan.heapBudget());
 		if (o.watch() == null && BlockPlan.needed(in.first().shape(), psfs.get(0).shape(), o.deconvolution(), budget))
 			return runInBlocks(o, imp, in, psfImp, psfs, notes, budget, start);
@@ -297,6 +304,7 @@ public class Deconvolve implements PlugIn {
 			final ReferenceComparison.References prepared = o.watch() == null || refs.isEmpty() ? null
 					: CompareWithReferences.named(refs, () -> ReferenceComparison.prepare(refs.stream().map(CompareWithReferences.Reference::volume).toList(), in.first(),
 							ReferenceComparison.Options.defaults().withIgnoreCalibration(o.watch().ignoreCalibration()), monitor));
+			if (prepared != null) for (final String note : prepared.notes()) if (!notes.contains(note)) notes.add(note);
 			for (int t = 0; t < in.frames(); t++)
 				for (int c = 0; c < in.channels(); c++) {
 					final int index = rs.size();
@@ -332,6 +340,12 @@ public class Deconvolve implements PlugIn {
 			vols.add(best ? watches.get(i).best() : r.estimate());
 			for (final String note : r.notes()) if (!notes.contains(note)) notes.add(note);
 		}
+		for (int i = 0; i < watches.size(); i++) {
+			final StoppingRule.Suggestion sg = watches.get(i).suggestion();
+			final String note = "watch" + (watches.size() > 1 ? " (volume " + (i + 1) + ")" : "") + ": " + sg.reason();
+			if (!sg.interior()) notes.add(note);
+			else IJ.log(COMMAND + ": suggested iteration " + sg.iteration() + " (" + sg.reason() + ")");
+		}
 		final String title = WindowManager.makeUniqueName(ConvolveWithPsf.stripExtension(imp.getTitle()) + "-deconvolved.tif");
 		final ImagePlus out = ImageBridge.toImagePlus(new Hyperstack(in.channels(), in.frames(), vols), title, imp.getCalibration());
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);
@@ -341,7 +355,9 @@ public class Deconvolve implements PlugIn {
 		prov.run("iterations", first.iterations()).run("stop_reason", stopReason(o.deconvolution(), first) + (o.watch() != null && o.watch().stopAtSuggestion() && !watches.isEmpty()
 				&& watches.get(0).best() != null ? "; the suggested iterate " + watches.get(0).suggestion().iteration() + " was returned (watch mode)" : "")).run("offset", first.offset())
 				.run("background", first.background());
-		if (n > 1) prov.run("volumes", n);
+		if (n > 1) prov.run("volumes", n).run("offset_per_volume", results.stream().map(r -> (Object) r.offset()).toList())
+				.run("background_per_volume", results.stream().map(r -> (Object) r.background()).toList());
+		if (!first.history().isEmpty()) prov.run("relative_change", first.history().stream().map(h -> (Object) h.relativeChange()).toList());
 		if (o.watch() != null) watchProvenance(prov, o.watch(), watches, refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		Provenance.attach(out, prov, start);
@@ -418,7 +434,7 @@ public class Deconvolve implements PlugIn {
 			final WatchedRun q = watches.get(i);
 			final String suffix = n > 1 ? "_" + (i + 1) : "";
 			final StoppingRule.Suggestion s = q.suggestion();
-			prov.run("suggested_iteration" + suffix, s.iteration()).run("suggestion" + suffix, s.reason());
+			prov.run("suggested_iteration" + suffix, s.iteration()).run("suggestion" + suffix, s.reason()).run("suggestion_interior" + suffix, s.interior());
 			if (w.stopAtSuggestion()) prov.run("returned_iteration" + suffix, q.best() != null ? s.iteration() : q.points().isEmpty() ? 0 : q.points().get(q.points().size() - 1).iteration());
 			if (!Double.isNaN(q.floor())) prov.run("watch_floor" + suffix, q.floor());
 			final StringBuilder sb = new StringBuilder();
@@ -472,9 +488,10 @@ public class Deconvolve implements PlugIn {
 		plot.setColor(Color.GRAY);
 		plot.drawDottedLine(0, 1, xmax * 1.02, 1, 2);
 		if (!watches.isEmpty() && watches.get(0).suggestion().iteration() > 0) {
-			final int s = watches.get(0).suggestion().iteration();
+			final StoppingRule.Suggestion sg = watches.get(0).suggestion();
+			final int s = sg.iteration();
 			plot.drawDottedLine(s, ymin / 1.2, s, ymax * 1.2, 4);
-			plot.addLabel(0.02, 0.08, "suggested: iteration " + s);
+			plot.addLabel(0.02, 0.08, sg.interior() ? "suggested: iteration " + s : "no interior minimum: iteration " + s + " is the edge of the evaluated range");
 		}
 		plot.setColor(Color.BLACK);
 		plot.addLegend(legend.toString().strip());
@@ -492,12 +509,23 @@ public class Deconvolve implements PlugIn {
 
 	/** One PSF per channel: resampled to the image's voxel size if needed, with a note. */
 	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes) {
+		return psfsFor(in, psfImp, optics, notes, false);
+	}
+
+	/**
+	 * The PSF per channel; an open PSF whose centre of mass is more than half a voxel off its centre voxel is
+	 * re-centred (whole voxels, {@link Psfs#recentred}) when {@code recentre}, else a warning note is added.
+	 */
+	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes,
+			final boolean recentre) {
 		final List<Volume> out = new ArrayList<>();
 		if (optics != null) {
-			final PsfGrid grid = optics.grid();
+			final PsfGrid grid = gridFor(optics, in);
 			final Volume v = Commands.withImageJThreads(() -> PsfModels.get(optics.model()).compute(optics.optics(), grid));
 			final Volume fitted = in.nz() == 1 && v.nz() > 1 ? centralPlane(v) : v;
 			for (int c = 0; c < in.channels(); c++) out.add(fitted);
+			if (in.channels() > 1) notes.add("one PSF from the optics used for all " + in.channels() + " channels");
+			notes.addAll(PsfExtent.warnings(fitted, in.first().shape(), microns(in.voxelSize()), optics.optics()));
 			return out;
 		}
 		final Hyperstack p = ImageBridge.toCore(psfImp);
@@ -505,12 +533,45 @@ public class Deconvolve implements PlugIn {
 		if (p.channels() != 1 && p.channels() != in.channels())
 			throw new IllegalArgumentException("The PSF has " + p.channels() + " channels but the image has " + in.channels()
 					+ ": give one PSF, or one channel per image channel");
+		if (p.channels() == 1 && in.channels() > 1)
+			notes.add("one PSF ('" + psfImp.getTitle() + "') used for all " + in.channels() + " channels; give one channel per image channel for their own PSFs");
 		for (int c = 0; c < in.channels(); c++) {
 			Volume v = p.get(p.channels() == 1 ? 0 : c, 0);
 			v = matchVoxelSize(v, in.voxelSize(), notes);
+			final String offCentre = Psfs.centroidWarning(v);
+			if (offCentre != null && recentre) {
+				final double[] off = Psfs.centroidOffset(v);
+				v = Psfs.recentred(v);
+				notes.add("PSF re-centred: its centre of mass was off its centre voxel by " + fmt(off[0]) + ", " + fmt(off[1]) + ", " + fmt(off[2]) + " voxels");
+			} else if (offCentre != null) notes.add("Warning: " + offCentre);
 			out.add(v);
+			for (final String w : PsfExtent.warnings(v, in.first().shape(), microns(in.voxelSize()), null))
+				if (!notes.contains(w)) notes.add(w);
 		}
 		return out;
+	}
+
+	/**
+	 * The grid of a PSF from optics for this stack: sizes given in the options are kept; a size of 0 ("from the
+	 * optics") is chosen for the stack ({@link PsfExtent#forStack}: a widefield box spans the stack's depth and
+	 * holds the defocus cone over it).
+	 */
+	static PsfGrid gridFor(final PsfFromOptics.Options optics, final Hyperstack in) {
+		if (optics.sizeXY() != 0 && optics.sizeZ() != 0) return optics.grid();
+		final PsfGrid auto = PsfExtent.forStack(optics.optics(), optics.voxelXY(), optics.voxelXY(), optics.voxelZ(), in.nx(), in.ny(), in.nz());
+		return new PsfGrid(optics.sizeXY() == 0 ? auto.nx() : optics.sizeXY(), optics.sizeXY() == 0 ? auto.ny() : optics.sizeXY(),
+				optics.sizeZ() == 0 ? auto.nz() : optics.sizeZ(), optics.voxelXY(), optics.voxelXY(), optics.voxelZ());
+	}
+
+	/** {dx, dy, dz} in µm, or null for an uncalibrated stack or an unknown unit. */
+	private static double[] microns(final VoxelSize v) {
+		if (!v.isCalibrated()) return null;
+		try {
+			final double f = PsfGrid.micronsPer(v);
+			return new double[] { v.dx() * f, v.dy() * f, v.dz() * f };
+		} catch (final IllegalArgumentException e) {
+			return null;
+		}
 	}
 
 	private static Volume matchVoxelSize(final Volume psf, final VoxelSize image, final List<String> notes) {

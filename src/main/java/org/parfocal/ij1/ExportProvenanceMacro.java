@@ -36,19 +36,24 @@ public class ExportProvenanceMacro implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.EXPORT_MACRO, () -> {
 			final ImagePlus imp = WindowManager.getCurrentImage();
 			if (imp == null) throw new IllegalArgumentException("No image is open");
-			final var p = Provenance.of(imp);
-			if (p.isEmpty())
-				throw new IllegalArgumentException("'" + imp.getTitle() + "' has no Parfocal provenance (it was not made by a Parfocal command, "
-						+ "or was saved in a format that drops the Info); Image > Show Info shows what ImageJ knows of it");
+			macroText(imp); // checks the record before asking for a file
 			final Options o = showDialog(imp);
-			if (o == null) return;
+			if (o == null) throw Commands.cancelled();
 			final File f = write(imp, o);
 			IJ.log(COMMAND + ": wrote " + f.getPath());
 			IJ.showStatus(COMMAND + ": wrote " + f.getName());
 		});
+	}
+
+	/** The rebuild macro of {@code imp}. @throws IllegalArgumentException one line, if there is no usable record */
+	static String macroText(final ImagePlus imp) {
+		final var p = Provenance.ofChecked(imp).orElseThrow(() -> new IllegalArgumentException("'" + imp.getTitle()
+				+ "' has no Parfocal provenance (it was not made by a Parfocal command, or was saved in a format that drops the Info); "
+				+ "Image > Show Info shows what ImageJ knows of it"));
+		return MacroExport.toMacro(p, imp.getTitle());
 	}
 
 	Options showDialog(final ImagePlus imp) {
@@ -57,11 +62,13 @@ public class ExportProvenanceMacro implements PlugIn {
 			final GenericDialog gd = new GenericDialog(COMMAND);
 			gd.addStringField("Macro:", base, 40);
 			gd.addCheckbox("Replace an existing file", false);
+			gd.addHelp(DialogHelp.export().html());
 			gd.showDialog();
 			if (gd.wasCanceled()) return null;
 			return new Options(gd.getNextString().trim(), gd.getNextBoolean());
 		}
-		// Interactively the system save dialog picks the file and asks before replacing one.
+		// Interactively ImageJ's save dialog picks the file (the system's or Java's chooser, as set in Edit > Options)
+		// and asks before replacing one.
 		final SaveDialog sd = new SaveDialog(COMMAND, base, ".ijm");
 		if (sd.getFileName() == null) return null;
 		final Options o = new Options(new File(sd.getDirectory(), sd.getFileName()).getPath(), true);
@@ -72,7 +79,7 @@ public class ExportProvenanceMacro implements PlugIn {
 
 	/** Writes the macro for {@code imp}; returns the file. */
 	public static File write(final ImagePlus imp, final Options o) {
-		final var p = Provenance.of(imp).orElseThrow(() -> new IllegalArgumentException("'" + imp.getTitle() + "' has no Parfocal provenance"));
+		final String text = macroText(imp);
 		if (o.macroPath().isEmpty()) throw new IllegalArgumentException("No macro file given (macro=)");
 		final File f = new File(o.macroPath());
 		if (f.exists() && !o.replace())
@@ -80,7 +87,6 @@ public class ExportProvenanceMacro implements PlugIn {
 		final File dir = f.getAbsoluteFile().getParentFile();
 		if (dir == null || !dir.isDirectory()) throw new IllegalArgumentException("The folder of '" + f.getPath() + "' does not exist");
 		if (!dir.canWrite()) throw new IllegalArgumentException("The folder '" + dir.getPath() + "' is not writable");
-		final String text = MacroExport.toMacro(p, imp.getTitle());
 		try {
 			Files.writeString(f.toPath(), text, StandardCharsets.UTF_8, StandardOpenOption.CREATE, StandardOpenOption.TRUNCATE_EXISTING,
 					StandardOpenOption.WRITE);

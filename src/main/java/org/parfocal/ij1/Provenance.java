@@ -40,7 +40,15 @@ final class Provenance {
 			path = fi.getFilePath();
 		final String shape = imp.getWidth() + "x" + imp.getHeight() + " c" + imp.getNChannels() + " z" + imp.getNSlices() + " t"
 				+ imp.getNFrames() + " " + imp.getBitDepth() + "-bit";
-		return new Input(role, imp.getTitle(), path, sha256(imp), shape, of(imp).orElse(null));
+		return new Input(role, imp.getTitle(), path, sha256(imp), shape, of(imp).orElse(null), calibration(imp));
+	}
+
+	/** Voxel size as text, "uncalibrated" when the image has no spatial unit. */
+	static String calibration(final ImagePlus imp) {
+		final ij.measure.Calibration c = imp.getCalibration();
+		if (c == null || !c.scaled()) return "uncalibrated";
+		return org.parfocal.provenance.MacroOptions.number(c.pixelWidth) + " x " + org.parfocal.provenance.MacroOptions.number(c.pixelHeight) + " x "
+				+ org.parfocal.provenance.MacroOptions.number(c.pixelDepth) + " " + c.getUnit();
 	}
 
 	/** The record an image carries in its Info, if Parfocal made it. */
@@ -50,6 +58,19 @@ final class Provenance {
 			return org.parfocal.provenance.Provenance.findIn(info instanceof String s ? s : null);
 		} catch (final IllegalArgumentException e) {
 			return Optional.empty(); // damaged text in someone's Info is not our record
+		}
+	}
+
+	/**
+	 * The record of an image for commands that work on the record itself (export, report): a damaged record is an
+	 * error naming the damage, not "no record". @throws IllegalArgumentException one line
+	 */
+	static Optional<org.parfocal.provenance.Provenance> ofChecked(final ImagePlus imp) {
+		final Object info = imp.getProperty("Info");
+		try {
+			return org.parfocal.provenance.Provenance.findIn(info instanceof String s ? s : null);
+		} catch (final IllegalArgumentException e) {
+			throw new IllegalArgumentException("The Parfocal record in the Info of '" + imp.getTitle() + "' is damaged: " + e.getMessage());
 		}
 	}
 

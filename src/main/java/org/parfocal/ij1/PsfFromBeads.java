@@ -96,9 +96,9 @@ public class PsfFromBeads implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.PSF_FROM_BEADS, () -> {
 			final Options o = showDialog();
-			if (o == null) return;
+			if (o == null) throw Commands.cancelled();
 			final Result r = run(o);
 			r.beads().show("Beads");
 			r.fwhm().show("Bead PSF FWHM");
@@ -115,32 +115,30 @@ public class PsfFromBeads implements PlugIn {
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, Commands.currentTitle(titles));
 		gd.addMessage("PSF box and beads (µm)");
-		gd.addNumericField("Box_xy:", Prefs.get(PREFS + "boxxy", 0), 3, 8, "µm; 0 = from the optics");
-		gd.addNumericField("Box_z:", Prefs.get(PREFS + "boxz", 0), 3, 8, "µm; 0 = 2D image, or from the optics");
-		gd.addNumericField("Bead_diameter:", Prefs.get(PREFS + "diameter", 0.1), 3, 8, "µm; 0 = unknown");
+		gd.addNumericField("Box_xy:", Commands.remembered(PREFS + "boxxy", 0), 3, 8, "µm; 0 = from the optics");
+		gd.addNumericField("Box_z:", Commands.remembered(PREFS + "boxz", 0), 3, 8, "µm; 0 = 2D image, or from the optics");
+		gd.addNumericField("Bead_diameter:", Commands.remembered(PREFS + "diameter", 0.1), 3, 8, "µm; 0 = unknown");
 		gd.addMessage("Detection and rejection");
-		gd.addNumericField("Threshold:", Prefs.get(PREFS + "threshold", 6), 2, 8, "× noise above the background");
-		gd.addCheckbox("Reject_saturated beads (peak at the bit-depth maximum)", Prefs.get(PREFS + "saturated", true));
-		gd.addNumericField("Outlier_z:", Prefs.get(PREFS + "outlier", 3.5), 2, 8, "robust z-score limit; 0 = off");
-		gd.addChoice("Background:", BackgroundMode.keys(), Prefs.get(PREFS + "background", BackgroundMode.STACK.key()));
-		gd.addChoice("Averaging:", Averaging.keys(), Prefs.get(PREFS + "averaging", Averaging.MEAN.key()));
+		gd.addNumericField("Threshold:", Commands.remembered(PREFS + "threshold", 6), 2, 8, "× noise above the background");
+		gd.addCheckbox("Reject_saturated beads (peak at the bit-depth maximum)", Commands.remembered(PREFS + "saturated", true));
+		gd.addNumericField("Outlier_z:", Commands.remembered(PREFS + "outlier", 3.5), 2, 8, "robust z-score limit; 0 = off");
+		gd.addChoice("Background:", BackgroundMode.keys(), Commands.remembered(PREFS + "background", BackgroundMode.STACK.key()));
+		gd.addChoice("Averaging:", Averaging.keys(), Commands.remembered(PREFS + "averaging", Averaging.MEAN.key()));
 		gd.addCheckbox("Symmetrize radially", false);
 		gd.addNumericField("Voxel_xy:", 0, 4, 8, "µm; 0 = from the image");
 		gd.addNumericField("Voxel_z:", 0, 4, 8, "µm; 0 = from the image");
 		gd.addMessage("Optics for comparison (optional)");
-		gd.addChoice("Optics:", models, Prefs.get(PREFS + "model", NONE));
-		gd.addChoice("Modality:", Modality.keys(), Prefs.get(PREFS + "modality", "widefield"));
-		gd.addNumericField("NA:", Prefs.get(PREFS + "na", 1.4), 3);
-		gd.addNumericField("Immersion_index:", Prefs.get(PREFS + "ni", 1.518), 4);
-		gd.addNumericField("Sample_index:", Prefs.get(PREFS + "ns", 1.518), 4);
+		gd.addChoice("Optics:", models, Commands.remembered(PREFS + "model", NONE));
+		gd.addChoice("Modality:", Modality.keys(), Commands.remembered(PREFS + "modality", "widefield"));
+		gd.addNumericField("NA:", Commands.remembered(PREFS + "na", 1.4), 3);
+		gd.addNumericField("Immersion_index:", Commands.remembered(PREFS + "ni", 1.518), 4);
+		gd.addNumericField("Sample_index:", Commands.remembered(PREFS + "ns", 1.518), 4);
 		gd.addNumericField("Depth:", 0, 2, 6, "µm below the coverslip");
-		gd.addNumericField("Emission:", Prefs.get(PREFS + "emission", 0.52), 3, 6, "µm");
-		gd.addNumericField("Excitation:", Prefs.get(PREFS + "excitation", 0.488), 3, 6, "µm (confocal, two-photon)");
+		gd.addNumericField("Emission:", Commands.remembered(PREFS + "emission", 0.52), 3, 6, "µm");
+		gd.addNumericField("Excitation:", Commands.remembered(PREFS + "excitation", 0.488), 3, 6, "µm (confocal, two-photon)");
 		gd.addNumericField("Pinhole:", 1, 2, 6, "Airy units (confocal)");
 		gd.addNumericField("Sheet_thickness:", 2, 2, 6, "µm FWHM (light-sheet)");
-		gd.addHelp("Finds beads (local maxima of the lightly smoothed stack above threshold × robust noise), fits each with a Gaussian, "
-				+ "rejects beads whose box leaves the image, saturated beads, beads with a neighbour in the box and intensity or width outliers, "
-				+ "then aligns the rest to sub-voxel precision (Fourier shift), subtracts their background and averages them.");
+		gd.addHelp(DialogHelp.beads().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
@@ -178,8 +176,8 @@ public class PsfFromBeads implements PlugIn {
 		final Optics optics = NONE.equals(model) ? null
 				: Optics.builder().modality(modality).na(na).immersionIndex(ni).sampleIndex(ns).depth(depth)
 						.emissionWavelength(modality.usesEmission() || emission > 0 ? emission : Double.NaN)
-						.excitationWavelength(modality.usesExcitation() ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
-						.sheetThickness(modality == Modality.LIGHT_SHEET ? sheet : Double.NaN).build();
+						.excitationWavelength(modality.usesExcitation() || excitation > 0 ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
+						.sheetThickness(modality == Modality.LIGHT_SHEET || sheet > 0 ? sheet : Double.NaN).build();
 		return new Options(image, boxXY, boxZ, diameter, threshold, saturated, outlier, background, averaging, symmetrize, vxy, vz, model, optics);
 	}
 
@@ -229,7 +227,7 @@ public class PsfFromBeads implements PlugIn {
 			builder.run("model_fwhm_x_um", model[0]).run("model_fwhm_y_um", model[1]);
 			if (is3D) builder.run("model_fwhm_z_um", model[2]);
 		}
-		for (int i = 0; i < warnings.size(); i++) builder.run("warning" + (i + 1), warnings.get(i));
+		for (final String w : warnings) builder.warning(w);
 		Provenance.attach(psf, builder, start);
 
 		final Overlay overlay = overlay(imp, m.beads(), m.fwhm()[0] / (stack.voxelSize().dx() * um));

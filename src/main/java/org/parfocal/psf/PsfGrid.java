@@ -69,7 +69,8 @@ public record PsfGrid(int nx, int ny, int nz, double dx, double dy, double dz) {
 
 	/**
 	 * Sizes chosen from the optics for the given voxel sizes (µm): laterally at least 8 Airy rings (radius
-	 * 4.5·λ/NA; the k-th dark ring of the Airy pattern lies near (k + 0.22)·0.5·λ/NA, Born &amp; Wolf §8.5,
+	 * 4.5·λ/NA, and for widefield and light-sheet detection at least the defocus cone over the axial extent,
+	 * z<sub>max</sub>·tan α + 2·λ/NA, {@link PsfExtent}; the k-th dark ring of the Airy pattern lies near (k + 0.22)·0.5·λ/NA, Born &amp; Wolf §8.5,
 	 * from memory); axially ±6 zeros of the on-axis intensity (spacing λ/(n·(1 − cos α)), stretched by
 	 * n<sub>i</sub>/n<sub>s</sub> for a sample of lower index) plus the paraxial focal shift
 	 * depth·(n<sub>i</sub>/n<sub>s</sub> − 1), at least ±3 sheet FWHMs for a light sheet when the sheet is
@@ -77,10 +78,12 @@ public record PsfGrid(int nx, int ny, int nz, double dx, double dy, double dz) {
 	 */
 	public static PsfGrid forOptics(final Optics o, final double dx, final double dy, final double dz) {
 		final double lambda = o.longestWavelength();
-		final double rxy = 4.5 * lambda / o.na();
 		final double ni = o.immersionIndex(), ns = o.sampleIndex();
 		double hz = 6 * lambda / (ni * (1 - Math.cos(o.apertureAngle()))) * Math.max(1, ni / ns) + Math.abs(o.depth() * (ni / ns - 1));
 		if (o.modality() == Modality.LIGHT_SHEET) hz = Math.min(hz, Math.max(3 * o.sheetThickness(), 3 * lambda / (ni * (1 - Math.cos(o.apertureAngle())))));
+		// widefield-type detection: the box holds the defocus cone over its axial extent (PsfExtent)
+		final double cone = o.modality() == Modality.WIDEFIELD || o.modality() == Modality.LIGHT_SHEET ? hz * PsfExtent.coneSlope(o) + 2 * lambda / o.na() : 0;
+		final double rxy = Math.max(4.5 * lambda / o.na(), cone);
 		// validate the voxel sizes before dividing by them
 		new PsfGrid(1, 1, 1, dx, dy, dz);
 		return new PsfGrid(size(rxy, dx, 1025), size(rxy, dy, 1025), size(hz, dz, 513), dx, dy, dz);

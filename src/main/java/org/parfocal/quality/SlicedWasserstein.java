@@ -149,14 +149,29 @@ public final class SlicedWasserstein {
 		 * for all ones).
 		 */
 		double distance(final Projected o, final int[] counts, final int[] otherCounts, final double p) {
+			return distance(o, counts, otherCounts, null, p);
+		}
+
+		/**
+		 * As {@link #distance(Projected, int[], int[], double)}, the directions too weighted by multiplicities
+		 * {@code directionCounts} ({@code null} for all ones): a bootstrap resample of the Monte Carlo slicing.
+		 */
+		double distance(final Projected o, final int[] counts, final int[] otherCounts, final int[] directionCounts, final double p) {
 			if (o.sorted.length != sorted.length) throw new IllegalArgumentException("The two projections use different directions");
+			if (directionCounts != null && directionCounts.length != sorted.length)
+				throw new IllegalArgumentException("Direction multiplicities for " + directionCounts.length + " directions, the projections have " + sorted.length);
 			final double[] c = new double[sorted.length];
 			Parallel.forRange(sorted.length, l -> c[l] = counts == null && otherCounts == null ? Wasserstein1D.costSorted(sorted[l], o.sorted[l], p)
 					: Wasserstein1D.costSortedCounts(sorted[l], perm[l], counts == null ? ones(count) : counts, o.sorted[l], o.perm[l],
 							otherCounts == null ? ones(o.count) : otherCounts, p));
-			double s = 0;
-			for (final double x : c) s += x;
-			return Wasserstein1D.root(s / c.length, p);
+			double s = 0, w = 0;
+			for (int l = 0; l < c.length; l++) {
+				final int m = directionCounts == null ? 1 : directionCounts[l];
+				if (m == 0) continue; // 0 · (a possibly infinite cost) stays out of the sum
+				s += m * c[l];
+				w += m;
+			}
+			return Wasserstein1D.root(s / w, p);
 		}
 
 		private static int[] ones(final int n) {

@@ -21,6 +21,11 @@ import java.util.Locale;
  * <b>Without references</b> (χ² only): the last iterate with χ²_k ≥ 1, the discrepancy principle (Morozov,
  * Soviet Math. Dokl. 7, 1966), which errs on the early side; the first evaluated iterate when none has χ² ≥ 1.
  * <p>
+ * <b>Edges.</b> A minimum at the first or last evaluated iterate, or a χ² that is below 1 from the start or
+ * never falls to 1, is no answer of the rule: the suggestion is then flagged not {@link Suggestion#interior},
+ * its reason says so, and commands log it and mark it in the plot, instead of presenting the edge of the
+ * evaluated range as a choice.
+ * <p>
  * The rule is a running update ({@link Tracker}): the suggestion after the last point is the choice made point
  * by point, so a caller can keep a copy of the current best iterate while the run goes forward and return it
  * at the end without running again.
@@ -50,8 +55,11 @@ public final class StoppingRule {
 	 * @param iteration the suggested iteration, 0 when there were no points
 	 * @param point the evaluated point of that iteration (null when there were none)
 	 * @param reason one line: the rule that chose it and the numbers
+	 * @param interior whether the rule found its stop inside the evaluated range (a distance minimum with evaluated
+	 *        iterates on both sides; a χ² crossing of 1 between two evaluated iterates). False means the curve gave
+	 *        no answer in the range: the iteration is then only the edge of the range, and the reason says so
 	 */
-	public record Suggestion(int iteration, Point point, String reason) {}
+	public record Suggestion(int iteration, Point point, String reason, boolean interior) {}
 
 	/** The suggestion for points in increasing iteration order. */
 	public static Suggestion suggest(final List<Point> points) {
@@ -92,17 +100,33 @@ public final class StoppingRule {
 		}
 
 		public Suggestion suggestion() {
-			if (best == null) return new Suggestion(0, null, "no iterate was evaluated");
-			final String reason;
-			if (!Double.isNaN(best.distance()))
-				reason = String.format(Locale.ROOT, "minimum patch distance %.4g over %d evaluated iterates (chi-square there %.3g)", best.distance(), count,
-						best.chiSquare());
-			else if (best.chiSquare() >= CHI_SQUARE_LIMIT)
-				reason = String.format(Locale.ROOT, "last evaluated iterate with chi-square >= 1 (%.3g; discrepancy principle, no references)", best.chiSquare());
-			else
-				reason = String.format(Locale.ROOT, "chi-square was already %.3g (< 1: noise being fitted) at the first evaluated iteration %d; evaluate earlier",
-						first.chiSquare(), first.iteration());
-			return new Suggestion(best.iteration(), best, reason);
+			if (best == null) return new Suggestion(0, null, "no iterate was evaluated", false);
+			if (!Double.isNaN(best.distance())) {
+				if (count < 3 || best == last)
+					return new Suggestion(best.iteration(), best, String.format(Locale.ROOT,
+							"no interior minimum: the patch distance was still falling at the last evaluated iteration %d (%.4g, %d evaluated iterates);"
+									+ " the last iterate is the edge of the range, not a chosen stop: allow more iterations",
+							best.iteration(), best.distance(), count), false);
+				if (best == first)
+					return new Suggestion(best.iteration(), best, String.format(Locale.ROOT,
+							"no interior minimum: the patch distance rose from the first evaluated iteration %d (%.4g) on; the first iterate is the edge of the range,"
+									+ " not a chosen stop: evaluate earlier, or check that the references show the same kind of structure at a comparable resolution",
+							best.iteration(), best.distance()), false);
+				return new Suggestion(best.iteration(), best, String.format(Locale.ROOT, "minimum patch distance %.4g over %d evaluated iterates (chi-square there %.3g)",
+						best.distance(), count, best.chiSquare()), true);
+			}
+			if (best.chiSquare() >= CHI_SQUARE_LIMIT) {
+				if (best == last)
+					return new Suggestion(best.iteration(), best, String.format(Locale.ROOT,
+							"no interior crossing: chi-square was still %.3g (>= 1) at the last evaluated iteration %d; the last iterate is the edge of the range, not a"
+									+ " chosen stop: allow more iterations, or check the noise model (camera gain, read noise, background)",
+							best.chiSquare(), best.iteration()), false);
+				return new Suggestion(best.iteration(), best,
+						String.format(Locale.ROOT, "last evaluated iterate with chi-square >= 1 (%.3g; discrepancy principle, no references)", best.chiSquare()), true);
+			}
+			return new Suggestion(best.iteration(), best, String.format(Locale.ROOT,
+					"no interior crossing: chi-square was already %.3g (< 1: noise being fitted) at the first evaluated iteration %d; evaluate earlier",
+					first.chiSquare(), first.iteration()), false);
 		}
 	}
 }

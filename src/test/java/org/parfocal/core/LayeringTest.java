@@ -13,7 +13,8 @@ import org.junit.jupiter.api.Test;
 
 /**
  * The layering rules of DEVELOPERS.md, checked on the sources: the numerical core imports neither ImageJ
- * nor AWT/Swing, and only {@code org.parfocal.fft} imports JTransforms.
+ * nor AWT/Swing, and only {@code org.parfocal.fft} imports a transform library (JTransforms, and FFTW through
+ * JavaCPP: {@code org.bytedeco}).
  */
 class LayeringTest {
 
@@ -30,12 +31,16 @@ class LayeringTest {
 				final String rel = root.relativize(f).toString().replace('\\', '/');
 				final boolean ui = UI_PACKAGES.stream().anyMatch(rel::startsWith);
 				final boolean fft = rel.startsWith("org/parfocal/fft/");
+				final String text = Files.readString(f);
+				// fully qualified uses, which no import line shows
+				if (!fft && (text.contains("org.bytedeco.") || text.contains("org.jtransforms."))) violations.add(rel + ": names a transform library");
 				for (final String line : Files.readAllLines(f)) {
 					final String l = line.trim();
 					if (!l.startsWith("import ")) continue;
 					if (!ui && (l.matches("import (static )?ij\\..*") || l.matches("import (static )?java\\.awt\\..*") || l.matches("import (static )?javax\\.swing\\..*")))
 						violations.add(rel + ": " + l);
 					if (!fft && l.matches("import (static )?org\\.jtransforms\\..*")) violations.add(rel + ": " + l);
+					if (!fft && l.matches("import (static )?org\\.bytedeco\\..*")) violations.add(rel + ": " + l);
 				}
 				checked++;
 			}

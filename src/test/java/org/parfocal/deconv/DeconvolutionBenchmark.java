@@ -17,6 +17,8 @@ import org.parfocal.core.Boundary;
 import org.parfocal.core.Monitor;
 import org.parfocal.core.Volume;
 import org.parfocal.fft.FastSizes;
+import org.parfocal.fft.FftBackend;
+import org.parfocal.fft.FftwBound;
 import org.parfocal.fft.RealFft;
 
 /**
@@ -24,12 +26,15 @@ import org.parfocal.fft.RealFft;
  * <ol>
  * <li>seconds per Richardson–Lucy iteration (non-circulant edges) on 64×256×256 and 64×512×512 stacks with
  * a 33×65×65 PSF, with 1 and 2 threads, and the speed-up;</li>
+ * <li>for each FFT backend that runs here (FFTW, JTransforms): the first run's cost with its FFT planning, and
+ * the figures below; and FFTW's own floor, 4 whole-volume FFTW transforms of the padded grid on a native array
+ * ({@link FftwBound}, FFTW_MEASURE, FFTW's threads), with the ratio of an iteration to it;</li>
  * <li>the bare FFT lower bound: 2 forward + 2 inverse real FFTs ({@link RealFft}) of the padded size, full
  * (not pruned), the faster of the out-of-place ({@code forward}/{@code inverse}) and in-place paths, and the
  * ratio of an iteration to it (below 1 is possible: an iteration prunes transforms of rows known to be zero
  * or not needed);</li>
  * <li>peak heap during the run against the padded volume in float (JMX pool peaks, an upper bound that
- * includes uncollected garbage) and the solver's own accounting;</li>
+ * includes uncollected garbage), the native bytes of the FFTW backend's buffers, and the solver's own accounting;</li>
  * <li>time-to-quality on 64×256×256: wall time of plain RL for 50 iterations and of accelerated RL until its
  * log-likelihood reaches plain RL's after 50.</li>
  * </ol>
@@ -72,6 +77,47 @@ public final class DeconvolutionBenchmark {
 		final long padded = (long) p[0] * p[1] * p[2];
 		System.out.printf(Locale.ROOT, "%nimage %d x %d x %d (z y x), PSF %d x %d x %d, padded %d x %d x %d = %.1f M voxels%n", n[2], n[1], n[0], PSF[2],
 				PSF[1], PSF[0], p[2], p[1], p[0], padded / 1e6);
+		// FFTW's own whole-volume plans on a native grid (FFTW_MEASURE, FFTW's threads): the floor of an iteration
+		final double[] bound = new double[3];
+		for (final int threads : new int[] { 1, 2 }) {
+			final double[] b = FftwBound.fourTransforms(p[0], p[1], p[2], threads, true);
+			if (b == null) break;
+			bound[threads] = b[1];
+			System.out.printf(Locale.ROOT, "  FFTW bound, %d thread(s): 4 whole-volume transforms %.3f s%s (FFTW_MEASURE planning %.1f s)%n", threads, b[1],
+					threads == 1 ? String.format(Locale.ROOT, ", CPU time %.3f s", b[2]) : "", b[0]);
+			System.out.printf(Locale.ROOT, "RESULT %d fftw_bound_%d %.5f%n", n[0], threads, b[1]);
+		}
+		final String old = System.getProperty(FftBackend.PROPERTY);
+		for (final FftBackend backend : FftBackend.values()) {
+			if (!backend.available()) continue;
+			System.setProperty(FftBackend.PROPERTY, backend.key());
+			System.out.printf(Locale.ROOT, "  backend %s%n", backend.description());
+			final double planning0 = FftBackend.planningSeconds();
+			final long s0 = System.nanoTime();
+			Parallelization.runWithNumThreads(2, () -> Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, 1), Monitor.NONE));
+			System.out.printf(Locale.ROOT, "    first run (1 iteration, 2 threads): %.2f s, of which FFT planning %.2f s%n", (System.nanoTime() - s0) / 1e9,
+					FftBackend.planningSeconds() - planning0);
+			perIteration(image, psf, p, backend, bound);
+		}
+		if (old == null) System.clearProperty(FftBackend.PROPERTY);
+		else System.setProperty(FftBackend.PROPERTY, old);
+		// memory: the live heap measured by a full GC inside an iteration (all solver arrays live), minus the heap
+		// before the run (the input image); JMX pool peaks are also printed, an upper bound with garbage
+		final long base = usedAfterGc();
+		resetPeaks();
+		final long[] live = new long[2];
+		Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, 2), null, Monitor.NONE, (r, v) -> {
+			if (r.iteration() == 1) {
+				live[0] = usedAfterGc();
+				live[1] = FftBackend.nativeBytes();
+			}
+		});
+		System.out.printf(Locale.ROOT, "  heap during RL (%s): live %.2f x padded volume in float + native buffers %.2f x (solver accounting %.2f), JMX pool peaks %.2f x%n",
+				FftBackend.selected().key(), (live[0] - base) / (4.0 * padded), live[1] / (4.0 * padded), Deconvolution.bytesNeeded(n, PSF, options(DeconvolutionMethod.RL, 1)) / (4.0 * padded),
+				(peakHeap() - base) / (4.0 * padded));
+	}
+
+	private static void perIteration(final Volume image, final Volume psf, final int[] p, final FftBackend backend, final double[] bound) {
 		// rounds interleave 1 and 2 threads, so that a drift of a shared machine hits both alike; medians of rounds
 		final int rounds = 3;
 		final double[][] iter = new double[3][rounds], fft = new double[3][rounds];
@@ -85,27 +131,19 @@ public final class DeconvolutionBenchmark {
 		for (final int threads : new int[] { 1, 2 }) {
 			it[threads] = median(iter[threads]);
 			ff[threads] = median(fft[threads]);
-			System.out.printf(Locale.ROOT, "  %d thread(s): RL iteration %.3f s | bare FFT bound %.3f s | ratio %.3f (medians of %d rounds)%n", threads,
+			System.out.printf(Locale.ROOT, "    %d thread(s): RL iteration %.3f s | bare FFT bound %.3f s | ratio %.3f (medians of %d rounds)%n", threads,
 					it[threads], ff[threads], it[threads] / ff[threads], rounds);
+			if (bound[threads] > 0)
+				System.out.printf(Locale.ROOT, "      iteration / FFTW bound of the padded grid: %.2f%n", it[threads] / bound[threads]);
+			System.out.printf(Locale.ROOT, "RESULT %d %s_iteration_%d %.5f%n", image.shape()[0], backend.key(), threads, it[threads]);
 		}
 		final double[] speedUps = new double[rounds];
 		for (int r = 0; r < rounds; r++) speedUps[r] = iter[1][r] / iter[2][r];
 		Arrays.sort(speedUps);
-		System.out.printf(Locale.ROOT, "  speed-up 2 threads vs 1: %.2f (rounds %.2f to %.2f; FFT bound alone: %.2f)%n", it[1] / it[2], speedUps[0],
+		System.out.printf(Locale.ROOT, "    speed-up 2 threads vs 1: %.2f (rounds %.2f to %.2f; FFT bound alone: %.2f)%n", it[1] / it[2], speedUps[0],
 				speedUps[rounds - 1], ff[1] / ff[2]);
 		final double acc = Parallelization.runWithNumThreads(2, () -> secondsPerIteration(image, psf, DeconvolutionMethod.RL_ACCELERATED, 6));
-		System.out.printf(Locale.ROOT, "  accelerated RL iteration (2 threads) %.3f s = %.2f x a plain one%n", acc, acc / it[2]);
-		// memory: the live heap measured by a full GC inside an iteration (all solver arrays live), minus the heap
-		// before the run (the input image); JMX pool peaks are also printed, an upper bound with garbage
-		final long base = usedAfterGc();
-		resetPeaks();
-		final long[] live = new long[1];
-		Deconvolution.run(image, psf, options(DeconvolutionMethod.RL, 2), null, Monitor.NONE, (r, v) -> {
-			if (r.iteration() == 1) live[0] = usedAfterGc();
-		});
-		System.out.printf(Locale.ROOT, "  heap during RL: live %.2f x padded volume in float (solver accounting %.2f), JMX pool peaks %.2f x%n",
-				(live[0] - base) / (4.0 * padded), Deconvolution.bytesNeeded(n, PSF, options(DeconvolutionMethod.RL, 1)) / (4.0 * padded),
-				(peakHeap() - base) / (4.0 * padded));
+		System.out.printf(Locale.ROOT, "    accelerated RL iteration (2 threads) %.3f s = %.2f x a plain one%n", acc, acc / it[2]);
 	}
 
 	/**
@@ -208,6 +246,7 @@ public final class DeconvolutionBenchmark {
 					"  time-to-quality (2 threads, medians of %d rounds): plain RL 50 iterations %.2f s (log-likelihood %.7g); accelerated RL %d iterations %.2f s (%.7g, %s); ratio %.2f%n",
 					rounds, median(plainSeconds), target, k, median(accSeconds), acc.logLikelihood(), acc.logLikelihood() >= target ? "reached" : "NOT reached",
 					median(plainSeconds) / median(accSeconds));
+			System.out.printf(Locale.ROOT, "RESULT %d %s_time_to_quality %.5f%n", image.shape()[0], FftBackend.selected().key(), median(accSeconds));
 			return null;
 		});
 	}

@@ -303,10 +303,12 @@ class BlindDeconvolveCommandTest {
 		System.out.println("Blind watch: suggested " + k + " (" + w.suggestion().reason() + "); floor " + w.floor() + "; curve " + curve);
 		final List<String> keys = new ArrayList<>(KEYS);
 		keys.addAll(BAND_KEYS);
-		keys.addAll(List.of("watch", "every", "references", "open_references", "photons", "read_noise", "stop_at_suggestion"));
+		keys.addAll(List.of("watch", "every", "reference_folder", "reference_images", "photons", "read_noise", "stop_at_suggestion"));
 		keys.remove("symmetric"); // unchecked
 		keys.add(keys.indexOf("na"), keys.remove(keys.indexOf("watch"))); // "watch" follows background, as in Deconvolve
-		assertEquals(List.copyOf(MacroOptions.parse(WATCH + " stop_at_suggestion").keySet()), List.copyOf(p.options().keySet()));
+		// WATCH gives the reference keys by their old names (still accepted); the record holds the new ones
+		assertEquals(List.copyOf(MacroOptions.parse(WATCH.replace(" references=", " reference_folder=").replace(" open_references=", " reference_images=")
+				+ " stop_at_suggestion").keySet()), List.copyOf(p.options().keySet()));
 		assertEquals(keys, List.copyOf(p.options().keySet()));
 		assertEquals((long) k, Provenance.of(psf).orElseThrow().run().get("returned_iteration"), "the PSF's record too");
 

@@ -259,7 +259,7 @@ class DeconvolveCommandTest {
 		assertEquals(20, p.run().get("watch_curve").toString().split(";").length);
 		assertEquals(org.parfocal.quality.StoppingRule.DESCRIPTION, p.run().get("watch_rule"));
 		assertEquals(List.of("image", "psf", "method", "iterations", "regularization", "stop", "threshold", "edges", "offset", "background", "watch", "every",
-				"references", "open_references", "photons", "read_noise", "stop_at_suggestion"), List.copyOf(p.options().keySet()));
+				"reference_folder", "reference_images", "photons", "read_noise", "stop_at_suggestion"), List.copyOf(p.options().keySet()));
 		final Volume stopped = Deconvolution.run(y, gaussianPsf(), d.withIterations(k), Monitor.NONE).estimate();
 		assertArrayEquals(stopped.data(), ImageBridge.toCore(out).first().data(), 1e-6f * max(stopped.data()), "output = the iterate at the suggestion");
 		// χ² only (no references): the last iterate with χ² ≥ 1, here well before the end

@@ -25,7 +25,10 @@ class PreparationTest {
 		}
 	}
 
-	/** Source: scipy.ndimage.map_coordinates(order=1, mode="nearest") at the centre-aligned coordinates, golden file. */
+	/**
+	 * Source: scipy.ndimage.map_coordinates(order=1, mode="nearest") at the centre-aligned coordinates, after
+	 * scipy.ndimage.gaussian_filter1d anti-aliasing along shrinking axes (one case shrinks 4×), golden file.
+	 */
 	@Test
 	void resamplingEqualsScipyLinearInterpolation() {
 		for (final GoldenCases.Case c : GoldenCases.read("resample.txt")) {

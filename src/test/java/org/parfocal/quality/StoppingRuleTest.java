@@ -32,6 +32,28 @@ class StoppingRuleTest {
 		assertTrue(early.reason().contains("evaluate earlier"), early.reason());
 	}
 
+	/**
+	 * A curve without an interior minimum gives no answer: the edge iterate is returned but flagged, and the reason
+	 * says so (the three cases of the issue: distance still falling at the end, distance rising from the start,
+	 * χ² never reaching 1). Before this flag the last iterate was reported as "minimum patch distance".
+	 */
+	@Test
+	void edgesOfTheEvaluatedRangeAreNotPresentedAsAChoice() {
+		assertTrue(StoppingRule.suggest(List.of(p(5, 0.30, 3), p(10, 0.12, 1), p(15, 0.2, 0.9))).interior());
+		final StoppingRule.Suggestion falling = StoppingRule.suggest(List.of(p(5, 0.30, 3), p(10, 0.20, 1.2), p(15, 0.12, 0.9)));
+		assertEquals(15, falling.iteration());
+		assertTrue(!falling.interior() && falling.reason().contains("no interior minimum") && falling.reason().contains("still falling"), falling.reason());
+		final StoppingRule.Suggestion rising = StoppingRule.suggest(List.of(p(5, 0.10, 3), p(10, 0.20, 1.2), p(15, 0.32, 0.9)));
+		assertEquals(5, rising.iteration());
+		assertTrue(!rising.interior() && rising.reason().contains("rose from the first"), rising.reason());
+		final StoppingRule.Suggestion neverOne = StoppingRule.suggest(List.of(p(5, Double.NaN, 4), p(10, Double.NaN, 2.5), p(15, Double.NaN, 2.0)));
+		assertEquals(15, neverOne.iteration());
+		assertTrue(!neverOne.interior() && neverOne.reason().contains("still 2.00") && neverOne.reason().contains("noise model"), neverOne.reason());
+		assertTrue(StoppingRule.suggest(List.of(p(5, Double.NaN, 4), p(10, Double.NaN, 1.5), p(15, Double.NaN, 0.9))).interior());
+		assertTrue(!StoppingRule.suggest(List.of(p(5, Double.NaN, 0.9), p(10, Double.NaN, 0.8))).interior());
+		assertTrue(!StoppingRule.suggest(List.of()).interior());
+	}
+
 	@Test
 	void runningUpdateSaysWhenANewPointBecomesTheSuggestion() {
 		final StoppingRule.Tracker t = new StoppingRule.Tracker();

@@ -303,6 +303,55 @@ public final class ImageJHarness {
 		}
 	}
 
+	/**
+	 * Runs a command as a menu click does with the Recorder open, and returns everything the Recorder wrote for
+	 * it (may be empty). {@code cancel}: press the dialog's Cancel instead of OK; {@code duringRun} runs on a
+	 * helper thread while the command works after OK (e.g. pressing Escape). Needs a display.
+	 */
+	public static String recorderTextOf(final ImagePlus imp, final String command, final DialogInput input, final boolean cancel,
+		final Runnable duringRun)
+	{
+		if (!hasDisplay()) throw new IllegalStateException("needs a display; call assumeDisplay() first");
+		synchronized (LOCK) {
+			final Set<Integer> before = imageIds();
+			Recorder recorder = Recorder.getInstance();
+			final boolean ownRecorder = recorder == null;
+			if (ownRecorder) recorder = new Recorder(false);
+			final int start = recorder.getText().length();
+			final Thread menuThread = new Thread(() -> {
+				Interpreter.batchMode = true;
+				new Executer(command).run();
+			}, command);
+			if (imp != null) WindowManager.setTempCurrentImage(menuThread, imp);
+			menuThread.start();
+			try {
+				final GenericDialog dialog = awaitDialog(menuThread);
+				if (dialog != null) {
+					onEventThread(() -> input.fill(dialog));
+					onEventThread(() -> dialog.actionPerformed(new java.awt.event.ActionEvent(dialog.getButtons()[cancel ? 1 : 0],
+						java.awt.event.ActionEvent.ACTION_PERFORMED, cancel ? "Cancel" : "OK")));
+				}
+				Thread helper = null;
+				if (duringRun != null) {
+					helper = new Thread(() -> {
+						while (menuThread.isAlive()) {
+							duringRun.run();
+							sleep(20);
+						}
+					});
+					helper.start();
+				}
+				join(menuThread);
+				if (helper != null) join(helper);
+				return recorder.getText().substring(start);
+			}
+			finally {
+				takeNewImages(before);
+				if (ownRecorder) onEventThread(recorder::close);
+			}
+		}
+	}
+
 	private static String recordedLine(final String recorded, final String command) {
 		final String prefix = "run(\"" + command.replace("\"", "\\\"") + "\"";
 		String found = null;

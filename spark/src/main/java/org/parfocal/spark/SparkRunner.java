@@ -42,6 +42,9 @@ import org.parfocal.core.Monitor;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 import org.parfocal.provenance.Provenance;
+import org.parfocal.cli.ZarrBlockRunner;
+import org.parfocal.zarr.OmeZarr;
+import org.parfocal.zarr.ZarrBlockSink;
 
 /**
  * One deconvolution recipe run on Apache Spark, in two ways.
@@ -49,13 +52,14 @@ import org.parfocal.provenance.Provenance;
  * <pre>
  * SparkRunner stacks RECIPE INPUT_FOLDER OUTPUT_FOLDER [--psf FILE] [--budget MB] [--block X,Y,Z] [--threads N]
  * SparkRunner blocks RECIPE INPUT.tif OUTPUT.tif       [--psf FILE] [--budget MB] [--block X,Y,Z] [--threads N]
+ * SparkRunner blocks RECIPE INPUT.zarr OUTPUT.zarr     [--psf FILE[,FILE per channel]] [--budget MB] [--block X,Y,Z] [--threads N]
  * </pre>
  *
  * RECIPE is what {@link BlockRunner} takes: a file with the {@code Deconvolve...} macro options or a provenance
  * JSON record of a recorded run, or the options text itself ({@link Recipe#read}). Every path must be on a file
  * system that the driver and all executors see under the same name.
  * <ul>
- * <li><b>stacks</b>: every {@code .tif}/{@code .tiff} of the input folder is one Spark task, which runs the
+ * <li><b>stacks</b>: every {@code .tif}/{@code .tiff} (and {@code .zarr} image, written as {@code .zarr}) of the input folder is one Spark task, which runs the
  * engine as {@link BlockRunner} does (block-wise only when the stack does not fit the task's share of the
  * executor heap, or with {@code --block}). Output {@code <stack>-deconvolved.tif} in the output folder (with -2,
  * -3, … when taken: an existing file is never replaced), written under a hidden name and renamed when complete.
@@ -65,7 +69,8 @@ import org.parfocal.provenance.Provenance;
  * ({@link BlockDeconvolution#levels}) and makes the {@link BlockPlan}; each task deconvolves one block and
  * writes it as a part file into a hidden folder beside the output; the driver adds the parts in block order into
  * a {@link TiffBlockSink} and commits. On any failure the sink is aborted and the parts deleted: nothing is left
- * under the output name.</li>
+ * under the output name. With a {@code .zarr} output (input {@code .zarr} or TIFF) the tasks write the output's
+ * chunks themselves, see {@link #runZarrBlocks}.</li>
  * </ul>
  * Threads per task: {@code --threads}, else {@code spark.task.cpus} (default 1). The master comes from
  * {@code spark-submit --master}; run with plain {@code java} it is {@code local[*]}. Exit code 0 when
@@ -78,6 +83,18 @@ public final class SparkRunner {
 	/** The table of a {@code stacks} run, in the output folder. */
 	public static final String SUMMARY = "spark-summary.csv";
 	private static final String PART_MAGIC = "PFBLK1";
+	/**
+	 * Test hook (a Spark setting): a marker file path. The first attempt of the middle block task of a Zarr
+	 * {@code blocks} run creates it and stops with an I/O error after writing two of its files, as a killed task
+	 * would; Spark retries the task (with {@code local[N,2]} or {@code spark.task.maxFailures} ≥ 2).
+	 */
+	public static final String FAIL_ONCE = "spark.parfocal.test.failOnceMarker";
+	/**
+	 * Nanoseconds spent by the Zarr block tasks of this JVM: [0] in all, [1] reading the input, [2] writing chunks
+	 * and fragments, [3] finishing seam chunks (read, add, write); [4] the driver's levels pass. For the benchmark
+	 * (local mode: one JVM).
+	 */
+	static final java.util.concurrent.atomic.AtomicLongArray TASK_NANOS = new java.util.concurrent.atomic.AtomicLongArray(5);
 
 	private SparkRunner() {}
 
@@ -149,11 +166,13 @@ public final class SparkRunner {
 	public static List<Path> stacksIn(final Path folder) {
 		if (!Files.isDirectory(folder)) throw new IllegalArgumentException("The input folder " + folder + " does not exist");
 		try (Stream<Path> s = Files.list(folder)) {
-			final List<Path> l = s.filter(Files::isRegularFile).filter(p -> {
+			final List<Path> l = s.filter(p -> {
 				final String n = p.getFileName().toString().toLowerCase(Locale.ROOT);
-				return !n.startsWith(".") && (n.endsWith(".tif") || n.endsWith(".tiff"));
+				if (n.startsWith(".")) return false;
+				if (Files.isDirectory(p)) return n.endsWith(".zarr");
+				return Files.isRegularFile(p) && (n.endsWith(".tif") || n.endsWith(".tiff"));
 			}).sorted(Comparator.comparing(p -> p.getFileName().toString())).toList();
-			if (l.isEmpty()) throw new IllegalArgumentException("No .tif stacks in " + folder);
+			if (l.isEmpty()) throw new IllegalArgumentException("No .tif stacks or .zarr images in " + folder);
 			return l;
 		} catch (final IOException e) {
 			throw new IllegalArgumentException("Cannot list " + folder + ": " + oneLine(e));
@@ -185,7 +204,8 @@ public final class SparkRunner {
 		final List<String[]> jobs = new ArrayList<>();
 		final List<Path> taken = new ArrayList<>();
 		for (final Path in : inputs) {
-			final Path o = freeName(out, stem(in.getFileName().toString()) + SUFFIX + ".tif", taken);
+			final boolean zarr = OmeZarr.isZarr(in);
+			final Path o = freeName(out, stem(in.getFileName().toString()) + SUFFIX + (zarr ? ".zarr" : ".tif"), taken);
 			taken.add(o);
 			jobs.add(new String[] { in.toAbsolutePath().toString(), o.toString() });
 		}
@@ -204,6 +224,17 @@ public final class SparkRunner {
 		try {
 			if (Files.exists(out)) throw new IllegalArgumentException("Output " + out.getFileName() + " exists (outputs are never replaced)");
 			final Recipe recipe = rt.recipe();
+			if (OmeZarr.isZarr(in)) {
+				// every frame and channel, written under a hidden name and renamed when complete (ZarrBlockRunner)
+				final BlockRunner.Outcome o = Parallelization.runWithNumThreads(s.threads(), () -> {
+					try {
+						return ZarrBlockRunner.run(recipe, null, in, out, taskBudget(s), s.tile(), Monitor.NONE);
+					} catch (final IOException e) {
+						throw new UncheckedIOException(e);
+					}
+				});
+				return new StackStatus(input, output, true, "", o.plan().toString(), o.result().maxIterations(), seconds(t0));
+			}
 			final String[] plan = new String[1];
 			final int[] it = new int[1];
 			Parallelization.runWithNumThreads(s.threads(), () -> {
@@ -393,6 +424,160 @@ public final class SparkRunner {
 			if (c instanceof IllegalArgumentException || c instanceof IllegalStateException) return new BlockStatus(index, false, message(c), 0);
 			if (c instanceof IOException io) throw io;
 			throw e;
+		}
+	}
+
+	// ---------------------------------------------------------------------------------------------------------
+	// blocks of a Zarr (or TIFF) input into an OME-Zarr output: tasks write the chunks themselves
+
+	/**
+	 * {@code blocks} into an OME-Zarr output: no driver-side assembly. The driver plans (one plan per channel,
+	 * aligned to the output's chunks), reads the shared levels of every frame and channel, and makes the output
+	 * under a hidden name. Stage 1, one task per block of each frame and channel: deconvolve it and write the chunks
+	 * only it reaches, plus a fragment for each seam chunk ({@link ZarrBlockSink#writeBlock}). Stage 2, tasks over
+	 * the seam chunks: add each chunk's fragments in block order and write it ({@link ZarrBlockSink#finishChunk}).
+	 * So every chunk is written by exactly one task; chunks and fragments are written to temporary files and
+	 * renamed, and a retried task writes the same files with the same values, never a neighbour's. The driver then
+	 * checks that every chunk exists, writes {@code .zattrs} (provenance, {@code complete: true}) and renames the
+	 * output to its name. On any failure everything written is removed.
+	 *
+	 * @param psfFiles one PSF per channel, one for all, or empty (the recipe's)
+	 * @param failOnce the test hook's marker file ({@link #FAIL_ONCE}), or null
+	 */
+	public static BlocksOutcome runZarrBlocks(final JavaSparkContext sc, final Recipe recipe, final List<String> psfFiles, final Path input,
+			final Path output, final Settings settings, final String failOnce) throws IOException {
+		final long t0 = System.nanoTime();
+		final Path in = input.toAbsolutePath().normalize(), out = output.toAbsolutePath().normalize();
+		if (in.equals(out)) throw new IllegalArgumentException("The output must differ from the input (inputs are never written)");
+		if (!OmeZarr.isZarr(out))
+			throw new IllegalArgumentException("A Zarr input is written to a .zarr output in Spark blocks mode: name the output *.zarr");
+		if (Files.exists(out)) throw new IllegalArgumentException("Output " + output + " exists: choose a new name (outputs are never replaced)");
+		final TaskSettings s = resolved(sc, settings);
+		final ZarrBlockRunner.Layout li = ZarrBlockRunner.layout(in);
+		final List<Volume> psfs = ZarrBlockRunner.psfs(recipe, psfFiles, li);
+		final ZarrBlockRunner.Plans pl = ZarrBlockRunner.plans(li, psfs, recipe, s.tile() != null ? 0 : driverBudget(sc, s), s.tile());
+		final ZarrBlockRunner.Layout l = pl.output();
+		final List<BlockPlan> plans = pl.plans();
+		final List<BlockDeconvolution.Levels> levels = new ArrayList<>();
+		final long lv = System.nanoTime();
+		for (int t = 0; t < l.frames(); t++)
+			for (int c = 0; c < l.channels(); c++)
+				try (var src = ZarrBlockRunner.openSource(in, t, c)) {
+					levels.add(BlockDeconvolution.levels(src, recipe.options(), Monitor.NONE));
+				}
+		TASK_NANOS.addAndGet(4, System.nanoTime() - lv);
+		final String prov = ZarrBlockRunner.provenance(recipe, psfFiles, in, l, plans, "SparkRunner blocks", s.threads()).toJson();
+		final OmeZarr.Writer w = OmeZarr.create(out, l.frames(), l.channels(), l.shape(), l.chunk(), l.voxelSize());
+		final Path fragments = w.hidden().resolveSibling(w.hidden().getFileName() + ".fragments");
+		final List<PsfData> psfData = new ArrayList<>();
+		for (final Volume h : psfs) psfData.add(PsfData.of(h));
+		final Broadcast<List<PsfData>> bpsf = sc.broadcast(psfData);
+		try {
+			final RecipeText rt = RecipeText.of(recipe);
+			final String inS = in.toString(), outS = w.output().toString(), hid = w.hidden().toString(), frag = fragments.toString();
+			final int threads = s.threads(), nc = l.channels();
+			final List<int[]> tasks = new ArrayList<>();
+			for (int t = 0; t < l.frames(); t++)
+				for (int c = 0; c < nc; c++)
+					for (int b = 0; b < plans.get(c).count(); b++) tasks.add(new int[] { t, c, b });
+			final int victim = plans.get(0).count() / 2;
+			final List<BlockStatus> done = new ArrayList<>(sc.parallelize(tasks, Math.max(1, tasks.size())).map(k -> zarrBlockTask(rt,
+					bpsf.value().get(k[1]), plans.get(k[1]), levels.get(k[0] * nc + k[1]), inS, outS, hid, frag, k[0], k[1], k[2], threads,
+					k[0] == 0 && k[1] == 0 && k[2] == victim ? failOnce : null)).collect());
+			for (final BlockStatus b : done)
+				if (!b.ok()) throw new IllegalStateException("Block " + (b.index() + 1) + " failed: " + b.message());
+			int min = Integer.MAX_VALUE, max = 0, empty = 0;
+			for (final BlockStatus b : done) {
+				if (b.iterations() == 0) empty++;
+				else {
+					min = Math.min(min, b.iterations());
+					max = Math.max(max, b.iterations());
+				}
+			}
+			final List<int[]> seams = new ArrayList<>();
+			for (int t = 0; t < l.frames(); t++)
+				for (int c = 0; c < nc; c++)
+					for (final int[] g : new ZarrBlockSink(w, t, c, plans.get(c), fragments).seamChunks()) seams.add(new int[] { t, c, g[0], g[1], g[2] });
+			if (!seams.isEmpty()) {
+				final int slices = Math.min(seams.size(), Math.max(1, 4 * sc.defaultParallelism()));
+				sc.parallelize(seams, slices).foreach(g -> {
+					final long a = System.nanoTime();
+					new ZarrBlockSink(OmeZarr.Writer.of(outS, hid), g[0], g[1], plans.get(g[1]), Path.of(frag)).finishChunk(new int[] { g[2], g[3], g[4] });
+					TASK_NANOS.addAndGet(3, System.nanoTime() - a);
+				});
+			}
+			w.complete(l.voxelSize(), prov);
+			return new BlocksOutcome(out, plans.get(0), levels.get(0), min == Integer.MAX_VALUE ? 0 : min, max, empty, seconds(t0));
+		} catch (final IOException | RuntimeException | Error e) {
+			w.abort();
+			throw e;
+		} finally {
+			bpsf.destroy();
+			deleteTree(fragments);
+		}
+	}
+
+	/** One block of a Zarr {@code blocks} run, on an executor: writes its own chunks and seam fragments. */
+	static BlockStatus zarrBlockTask(final RecipeText rt, final PsfData psfData, final BlockPlan plan, final BlockDeconvolution.Levels levels,
+			final String input, final String output, final String hidden, final String fragments, final int t, final int c, final int index,
+			final int threads, final String failOnce) throws IOException {
+		final Block block = plan.blocks().get(index);
+		final long start = System.nanoTime();
+		try {
+			final Recipe recipe = rt.recipe();
+			final Volume psf = psfData.volume();
+			final int[] it = new int[1];
+			final Volume part = Parallelization.runWithNumThreads(threads, () -> {
+				try (var source = ZarrBlockRunner.openSource(Path.of(input), t, c, false)) {
+					final var timed = new org.parfocal.blocks.BlockSource() {
+						@Override
+						public int[] shape() { return source.shape(); }
+
+						@Override
+						public org.parfocal.core.VoxelSize voxelSize() { return source.voxelSize(); }
+
+						@Override
+						public Volume read(final int[] o, final int[] sz) throws IOException {
+							final long a = System.nanoTime();
+							try {
+								return source.read(o, sz);
+							} finally {
+								TASK_NANOS.addAndGet(1, System.nanoTime() - a);
+							}
+						}
+					};
+					return BlockDeconvolution.deconvolve(timed, psf, recipe.options(), plan, levels, block, Monitor.NONE, it);
+				} catch (final IOException e) {
+					throw new UncheckedIOException(e);
+				}
+			});
+			final ZarrBlockSink sink = new ZarrBlockSink(OmeZarr.Writer.of(output, hidden), t, c, plan, Path.of(fragments));
+			final int[] written = new int[1];
+			final long w0 = System.nanoTime();
+			sink.writeBlock(block, part, failOnce == null ? null : () -> {
+				if (++written[0] == 2 && firstAttempt(Path.of(failOnce)))
+					throw new UncheckedIOException(new IOException("test hook: task attempt stopped after writing 2 of its files"));
+			});
+			TASK_NANOS.addAndGet(2, System.nanoTime() - w0);
+			TASK_NANOS.addAndGet(0, System.nanoTime() - start);
+			return new BlockStatus(index, true, "", it[0]);
+		} catch (final IllegalArgumentException | IllegalStateException | OutOfMemoryError e) {
+			return new BlockStatus(index, false, message(e), 0);
+		} catch (final RuntimeException e) {
+			final Throwable x = unwrap(e);
+			if (x instanceof IllegalArgumentException || x instanceof IllegalStateException) return new BlockStatus(index, false, message(x), 0);
+			if (x instanceof IOException io) throw io;
+			throw e;
+		}
+	}
+
+	/** True the first time (creates the marker). */
+	private static boolean firstAttempt(final Path marker) {
+		try {
+			Files.createFile(marker);
+			return true;
+		} catch (final IOException e) {
+			return false;
 		}
 	}
 
@@ -643,11 +828,13 @@ public final class SparkRunner {
 		}
 		if (pos.size() != 4 || !(pos.get(0).equals("stacks") || pos.get(0).equals("blocks"))) return usage(null);
 		final Recipe recipe;
+		final List<String> psfs;
 		final Settings settings;
 		final List<Path> inputs;
 		try {
 			final Recipe base = BlockRunner.readRecipe(pos.get(1));
-			recipe = psf != null ? base.withPsfFile(psf) : base;
+			psfs = psf == null ? List.of() : List.of(psf.split(","));
+			recipe = psf != null ? base.withPsfFile(psfs.get(0)) : base;
 			recipe.requirePsf();
 			settings = new Settings(budget == null ? 0 : (long) (positive(budget, "--budget") * 1024 * 1024), block == null ? null : tiles(block),
 					threads == null ? 0 : (int) positive(threads, "--threads"));
@@ -679,7 +866,10 @@ public final class SparkRunner {
 						+ Path.of(pos.get(3)).resolve(SUMMARY));
 				return failed == 0 ? 0 : 1;
 			}
-			final BlocksOutcome o = runBlocks(sc, recipe, inputs.get(0), Path.of(pos.get(3)), settings);
+			final Path in = inputs.get(0), out = Path.of(pos.get(3));
+			final BlocksOutcome o = ZarrBlockRunner.handles(in, out)
+					? runZarrBlocks(sc, recipe, psfs, in, out, settings, sc.getConf().get(FAIL_ONCE, null))
+					: runBlocks(sc, recipe, in, out, settings);
 			System.out.println(String.format(Locale.ROOT, "Done: %s -> %s, %s, %.1f s", pos.get(2), pos.get(3), o.plan(), o.seconds()));
 			return 0;
 		} catch (final IllegalArgumentException | IllegalStateException e) {
@@ -728,7 +918,7 @@ public final class SparkRunner {
 	private static int usage(final String problem) {
 		if (problem != null) System.err.println("Error: " + problem);
 		System.err.println("Usage: SparkRunner stacks <recipe> <input folder> <output folder> [--psf FILE] [--budget MB] [--block X,Y,Z] [--threads N]");
-		System.err.println("       SparkRunner blocks <recipe> <input.tif> <output.tif> [--psf FILE] [--budget MB] [--block X,Y,Z] [--threads N]");
+		System.err.println("       SparkRunner blocks <recipe> <input.tif|.zarr> <output.tif|.zarr> [--psf FILE[,FILE per channel]] [--budget MB] [--block X,Y,Z] [--threads N]");
 		return 2;
 	}
 }

@@ -1,19 +1,17 @@
-package org.parfocal.beads;
-
-import org.parfocal.core.Parallel;
-import org.parfocal.core.Volume;
+package org.parfocal.core;
 
 /**
- * Separable Gaussian smoothing with a mirrored (half-sample symmetric) border, for bead detection only. Written by
- * hand because the core's dependencies (ImgLib2 core) carry no Gaussian filter, and detection needs just three short
+ * Separable Gaussian smoothing with a mirrored (half-sample symmetric) border (the border of SciPy's
+ * {@code ndimage.gaussian_filter} with {@code mode="reflect"}; kernel radius ⌈3σ⌉, normalised), for bead detection and the anti-aliasing of resampled references. Written
+ * by hand because the core's dependencies (ImgLib2 core) carry no Gaussian filter, and both need just three short
  * line passes.
  */
-final class Smoothing {
+public final class Smoothing {
 
 	private Smoothing() {}
 
 	/** New volume: {@code v} (not changed) convolved with a Gaussian of standard deviations {@code sigma} voxels per axis (0 = none). */
-	static Volume gaussian(final Volume v, final double sx, final double sy, final double sz) {
+	public static Volume gaussian(final Volume v, final double sx, final double sy, final double sz) {
 		Volume out = v.copy();
 		out = pass(out, 0, sx);
 		out = pass(out, 1, sy);
