@@ -489,7 +489,7 @@ final class BlindSolver {
 				model += hx;
 				ll -= den;
 				if (yy > 0) ll += yy * FastLog.ln(den);
-				if (v != null) held += v[yo + i] > 0 ? v[yo + i] * Math.log(den) - den : -den;
+				if (v != null) held += v[yo + i] > 0 ? v[yo + i] * FastLog.ln(den) - den : -den;
 				tt[q + i] = yy / den;
 			}
 			Arrays.fill(tt, o, q, 0f);

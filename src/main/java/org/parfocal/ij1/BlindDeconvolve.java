@@ -19,6 +19,8 @@ import ij.plugin.PlugIn;
 import org.parfocal.blind.BlindDeconvolution;
 import org.parfocal.blind.BlindOptions;
 import org.parfocal.blind.BlindResult;
+import org.parfocal.blind.FitPlan;
+import org.parfocal.blind.RefineStep;
 import org.parfocal.blind.PsfSnapshot;
 import org.parfocal.blind.PsfStart;
 import org.parfocal.blind.SupportBox;
@@ -72,6 +74,8 @@ public class BlindDeconvolve implements PlugIn {
 	static final String COMMAND = "Blind Deconvolve";
 	/** Starting-PSF choices besides the open images. */
 	public static final String FROM_OPTICS = Deconvolve.FROM_OPTICS, GAUSSIAN = "gaussian";
+	/** Values of {@code estimate=}: free-form updates (the behaviour of macros recorded before the key), a model fit, a model fit then a trust-region refinement. */
+	public static final String FREE_FORM = "free-form", MODEL_FIT = "model-fit", MODEL_FIT_REFINED = "model-fit-refined";
 	/** Units of the support box. */
 	public static final String VOXELS = "voxels", MICRONS = "microns";
 	private static final String PREFS = "parfocal.blind.";
@@ -97,7 +101,29 @@ public class BlindDeconvolve implements PlugIn {
 	 */
 	public record Options(String image, String psf, double fwhmXY, double fwhmZ, int iterations, int objectUpdates, int psfUpdates, double objectTv,
 			double psfTv, boolean bandLimit, boolean symmetric, boolean centring, double supportXY, double supportZ, String supportUnits,
-			int snapshotInterval, EdgeMode edges, Level offset, Level background, PsfFromOptics.Options optics, BandOptics band, Deconvolve.Watch watch) {
+			int snapshotInterval, EdgeMode edges, Level offset, Level background, PsfFromOptics.Options optics, BandOptics band, Deconvolve.Watch watch,
+			String estimate, double trustRadius) {
+
+		/** Free-form estimation (the PSF updated voxel by voxel from the start, as before the model fit existed). */
+		public Options(final String image, final String psf, final double fwhmXY, final double fwhmZ, final int iterations, final int objectUpdates,
+				final int psfUpdates, final double objectTv, final double psfTv, final boolean bandLimit, final boolean symmetric, final boolean centring,
+				final double supportXY, final double supportZ, final String supportUnits, final int snapshotInterval, final EdgeMode edges, final Level offset,
+				final Level background, final PsfFromOptics.Options optics, final BandOptics band, final Deconvolve.Watch watch) {
+			this(image, psf, fwhmXY, fwhmZ, iterations, objectUpdates, psfUpdates, objectTv, psfTv, bandLimit, symmetric, centring, supportXY, supportZ,
+					supportUnits, snapshotInterval, edges, offset, background, optics, band, watch, FREE_FORM, FitPlan.DEFAULT_TRUST_RADIUS);
+		}
+
+		/** The same with this estimate (free-form, model-fit, model-fit-refined) and trust radius. */
+		public Options withEstimate(final String e, final double radius) {
+			return new Options(image, psf, fwhmXY, fwhmZ, iterations, objectUpdates, psfUpdates, objectTv, psfTv, bandLimit, symmetric, centring, supportXY,
+					supportZ, supportUnits, snapshotInterval, edges, offset, background, optics, band, watch, e, radius);
+		}
+
+		/** The model-fit plan, or null for free-form. */
+		public FitPlan plan() {
+			if (FREE_FORM.equals(estimate)) return null;
+			return (MODEL_FIT_REFINED.equals(estimate) ? FitPlan.refined() : FitPlan.model()).withTrustRadius(trustRadius);
+		}
 
 		/** Without watch mode. */
 		public Options(final String image, final String psf, final double fwhmXY, final double fwhmZ, final int iterations, final int objectUpdates,
@@ -111,10 +137,17 @@ public class BlindDeconvolve implements PlugIn {
 		/** The same with these watch settings (null: off). */
 		public Options withWatch(final Deconvolve.Watch w) {
 			return new Options(image, psf, fwhmXY, fwhmZ, iterations, objectUpdates, psfUpdates, objectTv, psfTv, bandLimit, symmetric, centring, supportXY,
-					supportZ, supportUnits, snapshotInterval, edges, offset, background, optics, band, w);
+					supportZ, supportUnits, snapshotInterval, edges, offset, background, optics, band, w, estimate, trustRadius);
 		}
 
 		public Options {
+			if (estimate == null) estimate = FREE_FORM;
+			if (!FREE_FORM.equals(estimate) && !MODEL_FIT.equals(estimate) && !MODEL_FIT_REFINED.equals(estimate))
+				throw new IllegalArgumentException("'" + estimate + "' is not a PSF estimate (" + FREE_FORM + ", " + MODEL_FIT + " or " + MODEL_FIT_REFINED + ") (estimate=)");
+			if (!(trustRadius > 0 && trustRadius <= 1))
+				throw new IllegalArgumentException("The trust radius must be above 0 and at most 1, got " + trustRadius + " (trust_radius=)");
+			if (!FREE_FORM.equals(estimate) && !FROM_OPTICS.equals(psf) && !GAUSSIAN.equals(psf))
+				throw new IllegalArgumentException("A model fit starts from " + FROM_OPTICS + " or " + GAUSSIAN + ", not from an open PSF: choose one, or estimate=" + FREE_FORM);
 			if (image == null || image.isEmpty()) throw new IllegalArgumentException("No image given");
 			if (psf == null || psf.isEmpty()) throw new IllegalArgumentException("No starting PSF given");
 			if (!VOXELS.equals(supportUnits) && !MICRONS.equals(supportUnits))
@@ -136,7 +169,7 @@ public class BlindDeconvolve implements PlugIn {
 					+ (bandLimit ? " band_limit" : "") + (symmetric ? " symmetric" : "") + (centring ? " centring" : "") + " support_xy="
 					+ MacroOptions.number(supportXY) + " support_z=" + MacroOptions.number(supportZ) + " support_units=" + supportUnits
 					+ " snapshot_interval=" + snapshotInterval + " edges=" + edges.key() + " offset=" + level(offset) + " background="
-					+ level(background) + (watch != null ? " watch" : "");
+					+ level(background) + " estimate=" + estimate + " trust_radius=" + MacroOptions.number(trustRadius) + (watch != null ? " watch" : "");
 			return s + (optics != null ? " " + optics.macroOptions() : "") + (band != null ? " " + band.macroOptions() : "")
 					+ (watch != null ? " " + watch.macroOptions() : "");
 		}
@@ -207,6 +240,8 @@ public class BlindDeconvolve implements PlugIn {
 		gd.addNumericField("PSF_updates:", Commands.remembered(PREFS + "psf_updates", 1), 0, 6, "per iteration (0: PSF kept)");
 		gd.addNumericField("Object_TV:", Commands.remembered(PREFS + "object_tv", BlindOptions.DEFAULT_OBJECT_TV), 4, 8, "total-variation weight");
 		gd.addNumericField("PSF_TV:", Commands.remembered(PREFS + "psf_tv", 0), 4, 8, "total-variation weight");
+		gd.addChoice("Estimate:", new String[] { FREE_FORM, MODEL_FIT, MODEL_FIT_REFINED }, Commands.remembered(PREFS + "estimate", FREE_FORM));
+		gd.addNumericField("Trust_radius:", Commands.remembered(PREFS + "trust_radius", FitPlan.DEFAULT_TRUST_RADIUS), 3, 6, "largest distance of a refined PSF to the fitted model");
 		gd.addMessage("PSF constraints");
 		gd.addCheckbox("Band_limit (optical cutoff 2 NA / wavelength; widefield)", Commands.remembered(PREFS + "band_limit", true));
 		gd.addCheckbox("Symmetric (cylindrical about the optical axis)", Commands.remembered(PREFS + "symmetric", false));
@@ -229,6 +264,8 @@ public class BlindDeconvolve implements PlugIn {
 		final double fwhmXY = Commands.number(gd, "fwhm_xy"), fwhmZ = Commands.number(gd, "fwhm_z");
 		final double iterations = Commands.number(gd, "iterations"), k = Commands.number(gd, "object_updates"), m = Commands.number(gd, "psf_updates");
 		final double objectTv = Commands.number(gd, "object_tv"), psfTv = Commands.number(gd, "psf_tv");
+		final String estimate = Commands.checkChoice("estimate", gd.getNextChoice(), "PSF estimate (" + FREE_FORM + ", " + MODEL_FIT + " or " + MODEL_FIT_REFINED + ")");
+		final double trust = Commands.number(gd, "trust_radius");
 		final boolean band = gd.getNextBoolean(), symmetric = gd.getNextBoolean(), centring = gd.getNextBoolean();
 		final double sxy = Commands.number(gd, "support_xy"), sz = Commands.number(gd, "support_z");
 		final String units = Commands.checkChoice("support_units", gd.getNextChoice(), "support unit (" + VOXELS + " or " + MICRONS + ")");
@@ -260,6 +297,8 @@ public class BlindDeconvolve implements PlugIn {
 			Prefs.set(PREFS + "psf_updates", m);
 			Prefs.set(PREFS + "object_tv", objectTv);
 			Prefs.set(PREFS + "psf_tv", psfTv);
+			Prefs.set(PREFS + "estimate", estimate);
+			Prefs.set(PREFS + "trust_radius", trust);
 			Prefs.set(PREFS + "band_limit", band);
 			Prefs.set(PREFS + "symmetric", symmetric);
 			Prefs.set(PREFS + "centring", centring);
@@ -275,7 +314,7 @@ public class BlindDeconvolve implements PlugIn {
 		}
 		return new Options(image, psf, fwhmXY, fwhmZ, whole("Iterations", iterations), whole("Object updates per iteration", k),
 				whole("PSF updates per iteration", m), objectTv, psfTv, band, symmetric, centring, sxy, sz, units, whole("The snapshot interval", snapshot),
-				edges, off, bg, optics, bandOptics, w);
+				edges, off, bg, optics, bandOptics, w, estimate, trust);
 	}
 
 	/** The optics the band limit needs, asked for when the start is not computed from them; null if cancelled. */
@@ -326,7 +365,8 @@ public class BlindDeconvolve implements PlugIn {
 			if (problem != null) throw new IllegalArgumentException(problem + ": calibrate it, or add ignore_calibration to compare voxel for voxel");
 		}
 		final BlindQualityWatch watch = w == null ? null : Commands.withImageJThreads(() -> watch(w, image, options, refs, monitor));
-		final BlindResult r = Commands.withImageJThreads(() -> BlindDeconvolution.run(image, options, monitor, watch));
+		final FitPlan plan = o.plan();
+		final BlindResult r = Commands.withImageJThreads(() -> BlindDeconvolution.run(image, options, plan, monitor, watch));
 		for (final String note : r.notes()) if (!notes.contains(note)) notes.add(note);
 		final boolean best = watch != null && w.stopAtSuggestion() && watch.best() != null;
 		final Volume estimate = best ? watch.best() : r.estimate(), finalPsf = best ? watch.bestPsf() : r.psf();
@@ -337,7 +377,7 @@ public class BlindDeconvolve implements PlugIn {
 		final ImagePlus psf = ImageBridge.toImagePlus(Hyperstack.of(finalPsf), WindowManager.makeUniqueName(base + "-blind-psf.tif"), cal);
 		final ImagePlus history = history(r.snapshots(), WindowManager.makeUniqueName(base + "-blind-psf-history.tif"), cal);
 		final String unit = cal != null && cal.scaled() ? cal.getUnits() : "voxels";
-		final ResultsTable table = table(r.snapshots(), unit);
+		final ResultsTable table = table(r, unit);
 		final Plot plot = plot(r.snapshots(), "PSF convergence of " + base);
 
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);
@@ -348,6 +388,11 @@ public class BlindDeconvolve implements PlugIn {
 				.run("snapshots", r.snapshots().size()).run("fwhm_lateral", last.fwhmLateral());
 		if (image.nz() > 1) prov.run("fwhm_axial", last.fwhmAxial());
 		prov.run("distance_to_start", last.distanceToStart()).run("offset", r.offset()).run("background", r.background());
+		if (r.fit() != null) {
+			prov.run("model_fit", r.fit().summary()).run("model_fit_candidates", r.fit().evaluations());
+			if (!r.refinement().isEmpty())
+				prov.run("refinement_steps_kept", r.refinement().stream().filter(RefineStep::accepted).count() + " of " + r.refinement().size());
+		}
 		if (watch != null) Deconvolve.watchProvenance(prov, w, List.of(watch), refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		Provenance.attach(out, prov.run("output", "deblurred image"), t0);
@@ -484,15 +529,31 @@ public class BlindDeconvolve implements PlugIn {
 
 	/** One row per snapshot. */
 	static ResultsTable table(final List<PsfSnapshot> snaps, final String unit) {
+		return table(snaps, null, List.of(), unit);
+	}
+
+	/**
+	 * One row per snapshot; after a model fit also the stage (start, model fit, refinement) and, for the
+	 * refinement's snapshots, why its PSF step was kept or undone.
+	 */
+	static ResultsTable table(final BlindResult r, final String unit) {
+		return table(r.snapshots(), r.fit(), r.refinement(), unit);
+	}
+
+	private static ResultsTable table(final List<PsfSnapshot> snaps, final org.parfocal.blind.ModelFit.Fit fit, final List<RefineStep> steps,
+			final String unit) {
 		final ResultsTable rt = new ResultsTable();
 		rt.setPrecision(5);
-		for (final PsfSnapshot s : snaps) {
+		for (int i = 0; i < snaps.size(); i++) {
+			final PsfSnapshot s = snaps.get(i);
 			rt.incrementCounter();
 			rt.addValue("Iteration", s.iteration());
+			if (fit != null) rt.addValue("Stage", i == 0 ? "start" : i == 1 ? "model fit" : "refinement");
 			rt.addValue("FWHM lateral (" + unit + ")", s.fwhmLateral());
 			rt.addValue("FWHM axial (" + unit + ")", s.fwhmAxial());
 			rt.addValue("Distance to start", s.distanceToStart());
 			rt.addValue("Sum", s.sum());
+			if (fit != null) rt.addValue("PSF step", i == 1 ? fit.summary() : i >= 2 && i - 2 < steps.size() ? steps.get(i - 2).reason() : "");
 		}
 		return rt;
 	}

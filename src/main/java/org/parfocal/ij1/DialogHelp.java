@@ -216,6 +216,9 @@ final class DialogHelp {
 				.field("PSF_updates", "psf_updates", "", "PSF updates per outer iteration; 0 keeps the PSF fixed")
 				.field("Object_TV", "object_tv", "", "total-variation weight of the object (against noise)")
 				.field("PSF_TV", "psf_tv", "", "total-variation weight of the PSF (0 = none)")
+				.field("Estimate", "estimate", "", "<code>free-form</code> (voxel by voxel), <code>model-fit</code> (fit the PSF model's parameters, "
+						+ "scored on held-out data) or <code>model-fit-refined</code> (then free-form within the trust radius)")
+				.field("Trust_radius", "trust_radius", "", "largest relative distance of a refined PSF to the fitted model")
 				.group("PSF constraints")
 				.field("Band_limit", "band_limit", "", "remove PSF frequencies above the widefield cutoff 2&middot;NA/&lambda; (asks for NA, "
 						+ "immersion index and emission unless the start is from_optics)")

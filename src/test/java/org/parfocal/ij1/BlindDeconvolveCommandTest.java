@@ -54,13 +54,13 @@ class BlindDeconvolveCommandTest {
 
 	private static final String CMD = "Blind Deconvolve...";
 	static final List<String> KEYS = List.of("image", "psf", "fwhm_xy", "fwhm_z", "iterations", "object_updates", "psf_updates", "object_tv", "psf_tv",
-			"band_limit", "symmetric", "centring", "support_xy", "support_z", "support_units", "snapshot_interval", "edges", "offset", "background");
+			"band_limit", "symmetric", "centring", "support_xy", "support_z", "support_units", "snapshot_interval", "edges", "offset", "background", "estimate", "trust_radius");
 	private static final List<String> BAND_KEYS = List.of("na", "immersion_index", "emission");
 
 	/** Gaussian start, band limit (optics from the second dialog), a 9 x 9 x 5 box, a snapshot every 2 of 4 iterations. */
 	static final String OPTIONS = "image=cell.tif psf=gaussian fwhm_xy=0.3 fwhm_z=0.8 iterations=4 object_updates=1 psf_updates=1 object_tv=0.002 "
 			+ "psf_tv=0.001 band_limit centring support_xy=9 support_z=5 support_units=voxels snapshot_interval=2 edges=non-circulant offset=100 "
-			+ "background=auto na=1.2 immersion_index=1.333 emission=0.52";
+			+ "background=auto estimate=free-form trust_radius=0.2 na=1.2 immersion_index=1.333 emission=0.52";
 
 	private static final Optics BAND = Optics.builder().na(1.2).immersionIndex(1.333).emissionWavelength(0.52).build();
 
@@ -182,7 +182,8 @@ class BlindDeconvolveCommandTest {
 		System.arraycopy(plane.data(), 5 * plane.nx() * plane.ny(), v.data(), 0, plane.nx() * plane.ny());
 		final ImagePlus img = ImageBridge.toImagePlus(v, "plane.tif");
 		DeconvolveCommandTest.open(img);
-		final String opt = OPTIONS.replace("image=cell.tif", "image=plane.tif").replace("band_limit centring", "centring")
+		// a line recorded before estimate= and trust_radius= existed: still runs, free-form
+		final String opt = OPTIONS.replace("image=cell.tif", "image=plane.tif").replace("band_limit centring", "centring").replace(" estimate=free-form trust_radius=0.2", "")
 				.replace(" na=1.2 immersion_index=1.333 emission=0.52", "").replace("support_z=5", "support_z=0");
 		final ImageJHarness.Result r = ImageJHarness.run(img, CMD, opt);
 		final BlindOptions o = new BlindOptions(4, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 1), false, false, true, null, 2,
@@ -194,6 +195,34 @@ class BlindDeconvolveCommandTest {
 		assertEquals(3, hist.getNFrames());
 		assertEquals("iteration 4", hist.getStack().getSliceLabel(3));
 		assertFalse(Provenance.of(hist).orElseThrow().run().containsKey("fwhm_axial"), "no axial width in 2D");
+	}
+
+	/**
+	 * estimate=model-fit-refined by menu name: the core's result (same plan), the fitted parameters in the
+	 * provenance, and the table's stages with the reason for every refinement step.
+	 */
+	@Test
+	void modelFitByMenuNameEqualsTheCoreAndTheTableSaysWhyEachStepWasKept() {
+		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
+		DeconvolveCommandTest.open(img);
+		final String opt = OPTIONS.replace("estimate=free-form trust_radius=0.2", "estimate=model-fit-refined trust_radius=0.15");
+		final ImageJHarness.Result run = ImageJHarness.run(img, CMD, opt);
+		final BlindOptions o = new BlindOptions(4, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5), true, false, true, BAND, 2,
+				EdgeMode.NON_CIRCULANT, Level.of(100), Level.ESTIMATED);
+		final BlindResult core = BlindDeconvolution.run(ImageBridge.toCore(img).first(), o, org.parfocal.blind.FitPlan.refined().withTrustRadius(0.15),
+				Monitor.NONE, null);
+		assertClose(core.estimate().data(), ImageBridge.toCore(created(run, "cell-blind.tif")).first().data(), "command = core");
+		final var prov = Provenance.of(created(run, "cell-blind.tif")).orElseThrow();
+		assertTrue(String.valueOf(prov.run().get("model_fit")).startsWith("gaussian: fwhm_xy = "), "fitted parameters recorded");
+		assertEquals("model-fit-refined", prov.options().get("estimate"));
+		final ResultsTable rt = BlindDeconvolve.table(core, "µm");
+		assertEquals("start", rt.getStringValue("Stage", 0));
+		assertEquals("model fit", rt.getStringValue("Stage", 1));
+		assertEquals(core.refinement().size(), rt.size() - 2);
+		for (int i = 2; i < rt.size(); i++) {
+			final String why = rt.getStringValue("PSF step", i);
+			assertTrue(why.startsWith("kept: held-out") || why.startsWith("undone: held-out"), why);
+		}
 	}
 
 	@Test
@@ -220,12 +249,15 @@ class BlindDeconvolveCommandTest {
 		assertFails("NA 1.5 must be below the immersion index 1.333", img, OPTIONS.replace("na=1.2", "na=1.5"));
 		assertFails("'dark' is not a number or auto (offset=)", img, OPTIONS.replace("offset=100", "offset=dark"));
 		assertFails("'two.tif' has 2 channels and 1 frames; blind deconvolution takes one of each", two, OPTIONS.replace("image=cell.tif", "image=two.tif"));
+		assertFails("A model fit starts from from_optics or gaussian, not from an open PSF", img, OPTIONS.replace("psf=gaussian", "psf=psf.tif").replace("estimate=free-form", "estimate=model-fit"));
+		assertFails("'guess' is not a valid PSF estimate", img, OPTIONS.replace("estimate=free-form", "estimate=guess"));
+		assertFails("trust radius must be above 0 and at most 1", img, OPTIONS.replace("estimate=free-form trust_radius=0.2", "estimate=model-fit-refined trust_radius=2"));
 		assertArrayEquals(before, (float[]) img.getStack().getPixels(4), "input unchanged");
 	}
 
 	/** The dim cell of {@link DeconvolveCommandTest#dimRecorded} (0.02 photons per unit), 15 outer iterations, watched every 3. */
 	static final String WATCH = OPTIONS.replace("iterations=4", "iterations=15").replace("snapshot_interval=2", "snapshot_interval=5")
-			.replace("background=auto", "background=2 watch") + " every=3 references=[] open_references=sharp-* photons=0.02 read_noise=0";
+			.replace("background=auto", "background=2").replace("trust_radius=0.2", "trust_radius=0.2 watch") + " every=3 references=[] open_references=sharp-* photons=0.02 read_noise=0";
 
 	private static final BlindOptions WATCH_CORE = new BlindOptions(15, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5), true, false,
 			true, BAND, 5, EdgeMode.NON_CIRCULANT, Level.of(100), Level.of(2));
