@@ -3,4 +3,4 @@
 // The runner opens the stack (inputTitle) and the PSF the map gives it (psfTitle), runs these lines, and saves
 // the image left current. Failures are logged in summary.csv and the batch goes on.
 if (psfTitle == "") exit("Error: no PSF for " + inputTitle + " in the PSF map");
-run("Deconvolve...", "image=[" + inputTitle + "] psf=[" + psfTitle + "] method=richardson-lucy-tv iterations=30 regularization=0.002 stop=fixed threshold=0.001 edges=non-circulant offset=100 background=auto");
+run("Deconvolve...", "image=[" + inputTitle + "] psf=[" + psfTitle + "] method=richardson-lucy-tv iterations=30 regularization=0.002 stop=fixed threshold=0.001 edges=extended offset=100 background=auto");

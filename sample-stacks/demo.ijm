@@ -16,14 +16,9 @@ File.makeDirectory(out);
 if (!File.isDirectory(out)) exit("Cannot create the output folder " + out);
 
 function newPath(folder, name) {
-    // name.ext, or name-2.ext, name-3.ext ... if taken
-    dot = lastIndexOf(name, ".");
-    base = substring(name, 0, dot);
-    ext = substring(name, dot);
-    path = folder + name;
-    i = 2;
-    while (File.exists(path)) { path = folder + base + "-" + i + ext; i++; }
-    return path;
+    // name.ext, or name-2.ext, name-3.ext ... if taken: created empty at once (atomically), so two demos
+    // writing into one folder at the same time never get the same name; this demo then fills it
+    return call("org.parfocal.core.OutputFiles.reserve", folder, name);
 }
 
 setBatchMode(true);
@@ -66,7 +61,7 @@ print("simulated vs bundled recording: max |difference| on a 7-voxel grid = " + 
 if (maxDiff > 0.5) exit("The simulation does not reproduce the bundled recording");
 // 3. Deconvolve the bundled recording: Richardson-Lucy with total variation, camera offset 100 (known for
 //    this camera), background estimated, non-circulant edges.
-run("Deconvolve...", "image=quillwort-widefield.tif psf=" + psf + " method=richardson-lucy-tv iterations=40 regularization=0.002 stop=fixed threshold=0.001 edges=non-circulant offset=100 background=auto");
+run("Deconvolve...", "image=quillwort-widefield.tif psf=" + psf + " method=richardson-lucy-tv iterations=40 regularization=0.002 stop=fixed threshold=0.001 edges=extended offset=100 background=auto");
 path = newPath(out, "quillwort-deconvolved.tif");
 saveAs("Tiff", path);
 print("wrote " + path);
@@ -75,10 +70,10 @@ print("deconvolved: mean " + d2s(mean, 3) + ", max " + d2s(max, 1) + " (estimate
 
 // 4. The record of how it was made: an HTML report, and a macro that rebuilds it from the files.
 path = newPath(out, "quillwort-deconvolved-report.html");
-run("Write Report...", "file=[" + path + "]");
+run("Write Report...", "file=[" + path + "] replace"); // replaces only the empty file reserved above
 print("wrote " + path);
 path = newPath(out, "quillwort-deconvolved-rebuild.ijm");
-run("Export Provenance as Macro...", "macro=[" + path + "]");
+run("Export Provenance as Macro...", "macro=[" + path + "] replace"); // likewise
 print("wrote " + path);
 
 // 5. Where to stop: the same deconvolution watched every 5 iterations against the recording alone (re-blur

@@ -114,6 +114,147 @@ public final class BlindDeconvolution {
 		return new BlindResult(Volume.wrap(out, n[0], n[1], n[2], vs), psf, snaps, history, d.offset(), d.background(), notes);
 	}
 
+	/**
+	 * Blind deconvolution with a model fit ({@link ModelFit}): the PSF model's parameters are fitted first
+	 * (Gaussian widths from a Gaussian start; depth, sample index and NA of the start's model from a model
+	 * start), optionally refined free-form inside a trust region around the fitted model with every step
+	 * checked on held-out voxels ({@link RefineStep}); then the object is deconvolved on all the data with the
+	 * final PSF ({@code iterations × objectUpdates} updates, as non-blind RL or RL-TV). Without a plan
+	 * ({@code null}) this is {@link #run(Volume, BlindOptions, Monitor, BlindListener)}.
+	 * <p>
+	 * The box: the given support, else for a model start the smallest holding {@link LightBox#FRACTION} of the
+	 * model's light within the image ({@link LightBox}), for a Gaussian start ±3 FWHM of the start (±2 FWHM of a
+	 * Gaussian 1.5× as wide).
+	 */
+	public static BlindResult run(final Volume image, final BlindOptions options, final FitPlan plan, final Monitor monitor, final BlindListener listener) {
+		if (plan == null) return run(image, options, monitor, listener);
+		if (image == null || options == null) throw new IllegalArgumentException("No image or options given");
+		options.checkFor(image);
+		if (options.start() instanceof PsfStart.Given)
+			throw new IllegalArgumentException("A model fit starts from a Gaussian or from a PSF model with optics, not from a given PSF");
+		final Monitor mon = monitor == null ? Monitor.NONE : monitor;
+		final BlindListener lis = listener == null ? BlindListener.NONE : listener;
+		final int[] n = image.shape();
+		final VoxelSize vs = image.voxelSize();
+		final double[] um = micronSizes(vs);
+		final List<String> notes = new ArrayList<>();
+		final ModelFit.Space space;
+		int[] k;
+		if (options.start() instanceof PsfStart.Gaussian g) {
+			space = ModelFit.gaussian(g.fwhmLateral(), g.fwhmAxial(), n[2] > 1);
+			k = options.support() != null ? options.support().shape()
+					: new int[] { size(3 * g.fwhmLateral() / um[0], n[0]), size(3 * g.fwhmLateral() / um[1], n[1]), n[2] == 1 ? 1 : size(3 * g.fwhmAxial() / um[2], n[2]) };
+		} else {
+			final PsfStart.Model m = (PsfStart.Model) options.start();
+			space = ModelFit.optics(m.key(), options.optics());
+			if (options.support() != null) k = options.support().shape();
+			else {
+				final int[] big = LightBox.largest(n);
+				k = LightBox.holding(space.psf(space.start(), new PsfGrid(big[0], big[1], big[2], um[0], um[1], um[2])), notes);
+				notes.add("PSF box " + k[0] + " x " + k[1] + " x " + k[2] + ": the smallest holding 95 % of the starting model's light within the image");
+			}
+		}
+		MemoryBudget.require(3 * BlindSolver.bytesNeeded(n, k, options.edges()), "blind deconvolution with a model fit of a " + n[0] + " x " + n[1] + " x " + n[2] + " image");
+		final Preprocessing.Data d = Preprocessing.data(image, options.offset(), options.background());
+		notes.addAll(d.notes());
+		mon.checkCancelled();
+		final float[] y = d.y();
+		final ModelFit.Fit fit = ModelFit.fit(y, n, um, image, d.background(), options.edges(), k, space, plan.settings().withObjectTv(options.objectTv()), mon);
+		notes.add(fit.summary());
+		notes.addAll(fit.notes());
+		if (fit.optics() != null && options.support() == null) {
+			final int[] big = LightBox.largest(n);
+			final double f = LightBox.fraction(space.psf(fit.parameters().stream().mapToDouble(ModelFit.Parameter::value).toArray(),
+					new PsfGrid(big[0], big[1], big[2], um[0], um[1], um[2])), k);
+			if (f < LightBox.FRACTION)
+				notes.add(String.format(Locale.ROOT, "The PSF box holds only %.0f %% of the fitted model's light within the image: give a larger support box", 100 * f));
+		}
+		final float[] h0 = space.psf(space.start(), new PsfGrid(k[0], k[1], k[2], um[0], um[1], um[2])).data();
+		final List<PsfSnapshot> snaps = new ArrayList<>();
+		snaps.add(snapshot(0, h0, h0, k, vs));
+		snaps.add(snapshot(0, fit.psf().data(), h0, k, vs));
+		float[] hFinal = fit.psf().data().clone();
+		final List<RefineStep> steps = new ArrayList<>();
+		final int max = options.iterations();
+		if (plan.refine()) {
+			final PsfConstraints constraints = new PsfConstraints(k[0], k[1], k[2], um[0], um[1], um[2],
+					options.bandLimit() ? OtfSupport.widefield(options.optics()) : null, options.symmetric(), options.centring(), hFinal);
+			constraints.trustRegion(hFinal, plan.trustRadius());
+			final float[][] halves = ModelFit.split(y, plan.settings().photonsPerUnit());
+			final BlindSolver r = new BlindSolver(fit.psf(), n, options.edges(), halves[0], d.background() / 2, options.objectTv(), options.psfTv(), constraints);
+			r.validateWith(halves[1]);
+			for (int i = 0; i < plan.settings().candidateIterations(); i++) {
+				mon.checkCancelled();
+				r.objectUpdate(mon::checkCancelled);
+			}
+			// PSF steps in blocks of snapshotInterval iterations; at each block's end the block's PSF is checked
+			// against the last kept one, each with its own object re-fitted from the flat start (candidateIterations
+			// RL iterations on the training voxels) and scored on the held-out voxels: at a fixed object, a narrower
+			// PSF looks better while the object is blurrier than the truth, and an object warm-started from the
+			// refinement's favours the PSF it was fitted with
+			final BlindSolver check = ModelFit.solver(fit.psf(), n, options.edges(), halves, d.background(), options.objectTv());
+			float[] kept = hFinal.clone();
+			final float[] flat = check.objectCopy();
+			double keptScore = fit.heldOutLogLikelihood();
+			final int block = options.snapshotInterval(), w = plan.settings().candidateIterations();
+			for (int it = 1; it <= max; it++) {
+				mon.checkCancelled();
+				mon.progress(it - 1, 2 * max, "Refining the PSF: iteration " + it + " of " + max);
+				for (int u = 0; u < options.objectUpdates(); u++) r.objectUpdate(mon::checkCancelled);
+				for (int u = 0; u < Math.max(1, options.psfUpdates()); u++) r.psfUpdate(mon::checkCancelled);
+				if (it % block == 0 || it == max) {
+					final float[] cand = r.psf().clone();
+					final double dist = constraints.distanceToAnchor(cand);
+					final double before = keptScore, after = score(check, cand, flat, w, mon);
+					final boolean keep = after >= before;
+					final String why = keep
+							? String.format(Locale.ROOT, "kept: held-out log-likelihood (object re-fitted) %+.4g; distance to the model %.3f (trust radius %.3g)", after - before, dist,
+									plan.trustRadius())
+							: String.format(Locale.ROOT, "undone: held-out log-likelihood (object re-fitted) would fall by %.4g; distance to the model %.3f", before - after, dist);
+					steps.add(new RefineStep(it, before, after, dist, keep, why));
+					if (keep) {
+						kept = cand;
+						keptScore = after;
+					} else r.replacePsf(kept);
+					if (it < max) snaps.add(snapshot(it, r.psf(), h0, k, vs));
+				}
+			}
+			r.replacePsf(kept);
+			hFinal = r.psf().clone();
+			snaps.add(snapshot(max, hFinal, h0, k, vs));
+			final long nk = steps.stream().filter(RefineStep::accepted).count();
+			notes.add("Free-form refinement: " + nk + " of " + steps.size() + " PSF steps kept (held-out likelihood), trust radius " + plan.trustRadius());
+		}
+		// the object on all the data with the final PSF
+		final Volume psf = Volume.wrap(hFinal, k[0], k[1], k[2], vs);
+		final PsfConstraints none = new PsfConstraints(k[0], k[1], k[2], 1, 1, 1, null, false, false, hFinal);
+		final BlindSolver s = new BlindSolver(psf, n, options.edges(), y, d.background(), options.objectTv(), 0, none);
+		final List<BlindReport> history = new ArrayList<>();
+		final EstimateView objectView = objectView(s, n), psfView = psfView(s, k, vs);
+		for (int it = 1; it <= max; it++) {
+			mon.checkCancelled();
+			mon.progress(plan.refine() ? max + it - 1 : it - 1, plan.refine() ? 2 * max : max, "Deconvolving with the fitted PSF: iteration " + it + " of " + max);
+			BlindSolver.Step obj = null;
+			for (int u = 0; u < options.objectUpdates(); u++) obj = s.objectUpdate(mon::checkCancelled);
+			final BlindReport rep = new BlindReport(it, max, obj.logLikelihood(), obj.relativeChange(), 0, obj.estimateSum(), obj.modelSum());
+			history.add(rep);
+			lis.iterationDone(rep, objectView, psfView);
+		}
+		mon.checkCancelled();
+		final float[] out = new float[y.length];
+		s.crop(out);
+		mon.progress(1, 1, "Blind deconvolution done");
+		return new BlindResult(Volume.wrap(out, n[0], n[1], n[2], vs), Volume.wrap(hFinal.clone(), k[0], k[1], k[2], vs), snaps, history, d.offset(),
+				d.background(), notes, fit, steps);
+	}
+
+	/** Held-out log-likelihood of PSF h with its own object: w RL iterations from x (the flat start) on the training voxels. */
+	private static double score(final BlindSolver check, final float[] h, final float[] x, final int w, final Monitor mon) {
+		check.replacePsf(h);
+		check.setObject(x);
+		return ModelFit.peakHeldOut(check, w, mon::checkCancelled);
+	}
+
 	/** µm per voxel, or 1 per voxel for an uncalibrated image (used only by constraints that then are off). */
 	private static double[] micronSizes(final VoxelSize v) {
 		if (!v.isCalibrated()) return new double[] { 1, 1, 1 };

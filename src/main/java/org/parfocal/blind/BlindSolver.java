@@ -62,7 +62,9 @@ final class BlindSolver {
 	private float[] invW;
 	private final float b, floor, lambda, eps, lambdaH, epsH, seed;
 	/** Per-row partials: of window rows (ratio) and of object rows (update). */
-	private final double[] w1, w2, r1, r2, r3;
+	private final double[] w1, w2, w3, r1, r2, r3;
+	/** Independent validation data on the image (same model Hx + b), or null. */
+	private float[] validation;
 	/** Phase ramps exp(−2πi k·s/p) of the shift s per axis, (re, im) per frequency; null without shift. */
 	private final double[] phaseX, phaseY, phaseZ;
 	private final PsfConstraints constraints;
@@ -115,6 +117,7 @@ final class BlindSolver {
 		this.spec = fft.newGrid();
 		w1 = new double[ny * nz];
 		w2 = new double[ny * nz];
+		w3 = new double[ny * nz];
 		final int rows = my * mz;
 		r1 = new double[rows];
 		r2 = new double[rows];
@@ -213,7 +216,11 @@ final class BlindSolver {
 	// -- updates --
 
 	/** Statistics of one update: of the iterate it started from (log-likelihood, Σ Hx) and of the change. */
-	record Step(double logLikelihood, double modelSum, double relativeChange, double estimateSum) {}
+	record Step(double logLikelihood, double modelSum, double relativeChange, double estimateSum, double heldOutLogLikelihood) {
+		Step(final double logLikelihood, final double modelSum, final double relativeChange, final double estimateSum) {
+			this(logLikelihood, modelSum, relativeChange, estimateSum, Double.NaN);
+		}
+	}
 
 	/** One object update; {@code cancelCheck} runs between the two transforms. */
 	Step objectUpdate(final Runnable cancelCheck) {
@@ -229,7 +236,7 @@ final class BlindSolver {
 		final double ll = ordered(w1), model = ordered(w2);
 		specValid = false;
 		tHoldsX = true;
-		return new Step(ll, model, cs[0], cs[1]);
+		return new Step(ll, model, cs[0], cs[1], validation == null ? Double.NaN : ordered(w3));
 	}
 
 	/** One PSF update followed by the constraints; relative change is Σ|h_new − h| (both unit sum). */
@@ -269,7 +276,48 @@ final class BlindSolver {
 		cancelCheck.run();
 		newTransfer();
 		if (mode == EdgeMode.NON_CIRCULANT) updateSensitivity();
-		return new Step(ll, model, change, org.parfocal.core.Sums.sum(h));
+		return new Step(ll, model, change, org.parfocal.core.Sums.sum(h), validation == null ? Double.NaN : ordered(w3));
+	}
+
+	/**
+	 * Sets independent validation data of the image's shape (null: none), e.g. the other half of a Poisson
+	 * thinning of the recording: every step then also reports its log-likelihood under the same model Hx + b.
+	 */
+	void validateWith(final float[] v) {
+		if (v != null && v.length != nx * ny * nz) throw new IllegalArgumentException("The validation data do not match the image");
+		validation = v;
+	}
+
+	/**
+	 * Replaces the PSF (same box; non-negative, unit sum) without touching the object: new transfer function
+	 * and, for non-circulant edges, new Hᵀ1.
+	 */
+	void replacePsf(final float[] next) {
+		if (next.length != h.length) throw new IllegalArgumentException("The PSF box does not match");
+		System.arraycopy(next, 0, h, 0, h.length);
+		tHoldsX = false;
+		newTransfer();
+		if (mode == EdgeMode.NON_CIRCULANT) updateSensitivity();
+	}
+
+	/**
+	 * Log-likelihood of the current object and PSF without an update: {data, validation data (NaN without)}.
+	 * One convolution.
+	 */
+	double[] evaluate() {
+		if (specValid) productInverse(false);
+		else {
+			if (!tHoldsX) copyObjectToGrid();
+			fft.convolveInPlace(t, transfer, false, objectRows, windowRows, null);
+		}
+		tHoldsX = false;
+		final RealFft.RowAction r = ratio(0, 0, 0);
+		for (int iz = 0; iz < nz; iz++)
+			for (int iy = 0; iy < ny; iy++) {
+				final int row = (iy + wy) + py * (iz + wz);
+				r.row(row, row * rs);
+			}
+		return new double[] { ordered(w1), validation == null ? Double.NaN : ordered(w3) };
 	}
 
 	/**
@@ -431,7 +479,8 @@ final class BlindSolver {
 		return (r, o) -> {
 			final int wr = (r % py - wy - dy) + ny * (r / py - wz - dz);
 			final int q = o + wx + dx, yo = wr * nx;
-			double ll = 0, model = 0;
+			double ll = 0, model = 0, held = 0;
+			final float[] v = validation;
 			for (int i = 0; i < nx; i++) {
 				final float hx = tt[q + i];
 				float den = hx + b;
@@ -440,12 +489,14 @@ final class BlindSolver {
 				model += hx;
 				ll -= den;
 				if (yy > 0) ll += yy * FastLog.ln(den);
+				if (v != null) held += v[yo + i] > 0 ? v[yo + i] * Math.log(den) - den : -den;
 				tt[q + i] = yy / den;
 			}
 			Arrays.fill(tt, o, q, 0f);
 			Arrays.fill(tt, q + nx, o + px, 0f);
 			w1[wr] = ll;
 			w2[wr] = model;
+			w3[wr] = held;
 		};
 	}
 
@@ -550,6 +601,17 @@ final class BlindSolver {
 	}
 
 	// -- output --
+
+	/** A copy of the object on its domain (for a warm start of another solver on the same geometry). */
+	float[] objectCopy() { return x.clone(); }
+
+	/** Sets the object on its domain (from {@link #objectCopy} of a solver of the same geometry). */
+	void setObject(final float[] src) {
+		if (src.length != x.length) throw new IllegalArgumentException("The object does not match the solver's domain");
+		System.arraycopy(src, 0, x, 0, x.length);
+		specValid = false;
+		tHoldsX = false;
+	}
 
 	/** The current PSF (box array, live). */
 	float[] psf() { return h; }

@@ -22,6 +22,12 @@ final class PsfConstraints {
 	private final boolean symmetric, centring;
 	/** Centroid to keep (voxels), set from the starting PSF. */
 	private final double[] target;
+	/** Trust region: the model PSF and the largest relative L2 distance from it, or null / 0. */
+	private float[] anchor;
+	private double radius;
+	private double anchorNorm;
+	/** Relative distance to the anchor before the last {@link #apply}'s trust-region step (NaN without one). */
+	private double lastDistance = Double.NaN;
 
 	/**
 	 * @param support the band limit, or null for none
@@ -74,6 +80,46 @@ final class PsfConstraints {
 		if (symmetric) symmetrize(h);
 		if (centring) centre(h);
 		normalize(h);
+		if (anchor != null) trust(h);
+	}
+
+	/**
+	 * Keeps every later estimate within relative L2 distance {@code r} of {@code model} (a unit-sum,
+	 * non-negative PSF on the box): a step that leaves the ball is pulled back along the segment to the model,
+	 * h ← m + (r/d)(h − m). A convex combination of two unit-sum, non-negative PSFs, so those constraints still
+	 * hold (symmetry and band limit too, when both PSFs have them).
+	 */
+	void trustRegion(final float[] model, final double r) {
+		if (model.length != kx * ky * kz) throw new IllegalArgumentException("The model PSF does not match the box");
+		if (!(r > 0)) throw new IllegalArgumentException("The trust radius must be above 0, got " + r);
+		anchor = model.clone();
+		radius = r;
+		double s = 0;
+		for (final float v : anchor) s += (double) v * v;
+		anchorNorm = Math.sqrt(s);
+	}
+
+	/** Relative distance ‖h − m‖/‖m‖ to the trust region's model before its last pull-back (NaN without one). */
+	double lastDistance() { return lastDistance; }
+
+	double distanceToAnchor(final float[] h) {
+		double s = 0;
+		for (int i = 0; i < h.length; i++) {
+			final double e = h[i] - anchor[i];
+			s += e * e;
+		}
+		return Math.sqrt(s) / anchorNorm;
+	}
+
+	private void trust(final float[] h) {
+		final double d = distanceToAnchor(h);
+		lastDistance = d;
+		if (d <= radius) return;
+		final double f = radius / d;
+		for (int i = 0; i < h.length; i++) {
+			final float v = (float) (anchor[i] + f * (h[i] - anchor[i]));
+			h[i] = v > 0 ? v : 0f;
+		}
 	}
 
 	/** Zeroes the transfer function outside the support (zero-padded DFT), crops back to the box. */

@@ -103,7 +103,9 @@ public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf opt
 		final String psf = get(o, "psf", "");
 		final String text = MacroOptions.format(o);
 		if (FROM_OPTICS.equalsIgnoreCase(psf)) return new Recipe(d, null, optics(o), text);
-		if (!psf.isEmpty() && java.nio.file.Files.isRegularFile(Path.of(psf))) return new Recipe(d, psf, null, text);
+		// a value with a folder in it is a file name even if missing: the PSF loader then says the file does not exist
+		if (!psf.isEmpty() && (psf.contains("/") || psf.contains(java.io.File.separator) || java.nio.file.Files.isRegularFile(Path.of(psf))))
+			return new Recipe(d, psf, null, text);
 		if (psfFromRecord != null) return new Recipe(d, psfFromRecord, null, text);
 		return new Recipe(d, null, null, text);
 	}

@@ -91,12 +91,12 @@ public final class BlockRunner {
 			final Recipe recipe = psf != null ? base.withPsfFile(psfs.get(0)) : base;
 			final long bytes = budget == null ? 0 : (long) (positive(budget, "--budget") * 1024 * 1024);
 			final int[] tile = block == null ? null : tiles(block);
-			final int n = threads == null ? Runtime.getRuntime().availableProcessors() : (int) positive(threads, "--threads");
+			final int n = threads == null ? Runtime.getRuntime().availableProcessors() : threads(threads);
 			final Path in = Path.of(pos.get(1)), outPath = Path.of(pos.get(2));
 			final Outcome out = Parallelization.runWithNumThreads(n, () -> ZarrBlockRunner.handles(in, outPath)
 					? ZarrBlockRunner.run(recipe, psfs, in, outPath, bytes, tile, Monitor.NONE)
 					: run(recipe, in, outPath, bytes, tile, Monitor.NONE));
-			System.out.println(String.format(Locale.ROOT, "Done: %s -> %s, %s, %.1f s", pos.get(1), pos.get(2), out.plan(),
+			System.out.println(String.format(Locale.ROOT, "Done: %s -> %s, %s, %.1f s", pos.get(1), out.output() != null ? out.output() : pos.get(2), out.plan(),
 					(System.nanoTime() - start) / 1e9));
 			return 0;
 		} catch (final IllegalArgumentException | IllegalStateException | Monitor.CancelledException e) {
@@ -141,7 +141,7 @@ public final class BlockRunner {
 					.timing(0, Parallelization.getTaskExecutor().getParallelism(), Instant.now().toString());
 			final TiffBlockSink sink = new TiffBlockSink(output, source.shape(), source.voxelSize(), prov.build().toInfoText());
 			final BlockDeconvolution.Result r = BlockDeconvolution.run(source, psf, recipe.options(), plan, sink, monitor);
-			return new Outcome(plan, r, output);
+			return new Outcome(plan, r, sink.output());
 		}
 	}
 
@@ -168,6 +168,7 @@ public final class BlockRunner {
 		}
 		final Path p = Path.of(recipe.psfPath());
 		if (!Files.isRegularFile(p)) throw new IllegalArgumentException("PSF file " + p + " does not exist");
+		if (TiffCheck.hasTiffName(p)) TiffCheck.requireComplete(p);
 		final ImagePlus imp = IJ.openImage(p.toString());
 		if (imp == null) throw new IllegalArgumentException("PSF file " + p + " cannot be opened as an image");
 		Volume psf = ImageBridge.toVolume(imp, "PSF");
@@ -180,6 +181,17 @@ public final class BlockRunner {
 			if (!same) psf = Psfs.resampleTo(psf.withVoxelSize(VoxelSize.microns(a[0], a[1], a[2])), VoxelSize.microns(b[0], b[1], b[2]));
 		}
 		return psf;
+	}
+
+	/** Most threads a run may ask for (ImageJ's and ImgLib2's pools take up to 32767; far more than any machine has cores). */
+	static final int MAX_THREADS = 1024;
+
+	private static int threads(final String s) {
+		final double v = positive(s, "--threads");
+		if (v != Math.rint(v) || v > MAX_THREADS)
+			throw new IllegalArgumentException("--threads takes a whole number from 1 to " + MAX_THREADS + " (this machine has "
+					+ Runtime.getRuntime().availableProcessors() + " cores), got " + s);
+		return (int) v;
 	}
 
 	private static int[] tiles(final String s) {

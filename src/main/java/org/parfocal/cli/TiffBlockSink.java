@@ -6,10 +6,8 @@ import java.io.OutputStream;
 import java.nio.ByteBuffer;
 import java.nio.ByteOrder;
 import java.nio.channels.FileChannel;
-import java.nio.file.AtomicMoveNotSupportedException;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.nio.file.StandardCopyOption;
 import java.nio.file.StandardOpenOption;
 
 import ij.VirtualStack;
@@ -19,20 +17,25 @@ import ij.process.FloatProcessor;
 import ij.process.ImageProcessor;
 
 import org.parfocal.blocks.BlockSink;
+import org.parfocal.core.OutputFiles;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 
 /**
  * A block-wise result written to a 32-bit TIFF stack on disk without holding it in memory.
  * <p>
- * Blocks are added into a scratch file of raw floats ({@code .NAME.accumulating}, beside the output). On
- * {@link #commit()} ImageJ's {@link TiffEncoder} writes the TIFF plane by plane from the scratch file into
- * {@code .NAME.partial}, which is then renamed to the output name; only a complete TIFF ever carries that name.
- * {@link #abort()} deletes both temporary files. An existing output is never replaced.
+ * Blocks are added into a scratch file of raw floats ({@code .NAME.PID-RANDOM.accumulating}, beside the output;
+ * PID is this process, so every run has its own). On {@link #commit()} ImageJ's {@link TiffEncoder} writes the
+ * TIFF plane by plane from the scratch file into {@code .NAME.PID-RANDOM.partial}, which is then published under
+ * the output name with {@link OutputFiles#publish} (atomic, never replacing: if another run took the name
+ * meanwhile, {@code NAME-2} …); only a complete TIFF ever carries the name. {@link #abort()} deletes this run's
+ * temporary files and no others: hidden files of another run are reported (left over from a stopped run, or
+ * in use by a live one), never deleted.
  */
 public final class TiffBlockSink implements BlockSink {
 
-	private final Path output, scratch, partial;
+	private Path output;
+	private final Path scratch, partial;
 	private final int nx, ny, nz;
 	private final VoxelSize voxelSize;
 	private final String info;
@@ -50,8 +53,10 @@ public final class TiffBlockSink implements BlockSink {
 		if (dir == null || !Files.isDirectory(dir)) throw new IllegalArgumentException("Cannot write " + output + ": the folder " + dir + " does not exist");
 		if (!Files.isWritable(dir)) throw new IllegalArgumentException("Cannot write " + output + ": the folder " + dir + " is not writable");
 		final String name = this.output.getFileName().toString();
-		scratch = dir.resolve("." + name + ".accumulating");
-		partial = dir.resolve("." + name + ".partial");
+		for (final String note : leftovers(dir, name)) System.err.println(note);
+		final String run = ProcessHandle.current().pid() + "-" + java.util.UUID.randomUUID().toString().substring(0, 8);
+		scratch = dir.resolve("." + name + "." + run + ".accumulating");
+		partial = dir.resolve("." + name + "." + run + ".partial");
 		nx = shape[0];
 		ny = shape[1];
 		nz = shape[2];
@@ -68,7 +73,37 @@ public final class TiffBlockSink implements BlockSink {
 		}
 	}
 
-	/** The output path (exists only after {@link #commit()}). */
+	/**
+	 * One line per hidden temporary file of another run beside {@code dir/name}: whether its process still runs
+	 * (then it may be writing) or is gone (a left-over of a stopped run, safe to delete). Nothing is deleted.
+	 */
+	static java.util.List<String> leftovers(final Path dir, final String name) {
+		final java.util.List<String> notes = new java.util.ArrayList<>();
+		final String prefix = "." + name + ".";
+		try (java.util.stream.Stream<Path> files = Files.list(dir)) {
+			for (final Path f : files.sorted().toList()) {
+				final String n = f.getFileName().toString();
+				if (!n.startsWith(prefix) || !(n.endsWith(".accumulating") || n.endsWith(".partial"))) continue;
+				final int end = n.lastIndexOf('.');
+				final String middle = end > prefix.length() ? n.substring(prefix.length(), end) : "";
+				long pid = -1;
+				if (middle.indexOf('-') > 0) try {
+					pid = Long.parseLong(middle.substring(0, middle.indexOf('-')));
+				} catch (final NumberFormatException e) {
+					pid = -1;
+				}
+				final boolean live = pid > 0 && ProcessHandle.of(pid).map(ProcessHandle::isAlive).orElse(false);
+				notes.add(live ? "Note: " + f + " belongs to a run that is still going (process " + pid + "); it is left alone"
+						: "Note: " + f + " is left over from a run that was stopped" + (pid > 0 ? " (process " + pid + " is gone)" : "")
+								+ "; it is not used and safe to delete");
+			}
+		} catch (final IOException e) {
+			// the folder was checked just before; an unlistable folder fails when the scratch file is made
+		}
+		return notes;
+	}
+
+	/** The output path (exists only after {@link #commit()}; after it, the name actually taken). */
 	public Path output() {
 		return output;
 	}
@@ -137,11 +172,9 @@ public final class TiffBlockSink implements BlockSink {
 			try (OutputStream out = new BufferedOutputStream(Files.newOutputStream(partial, StandardOpenOption.CREATE_NEW), 1 << 20)) {
 				new TiffEncoder(fi).write(out);
 			}
-			try {
-				Files.move(partial, output, StandardCopyOption.ATOMIC_MOVE);
-			} catch (final AtomicMoveNotSupportedException e) {
-				Files.move(partial, output);
-			}
+			final Path published = OutputFiles.publish(partial, output.getParent(), output.getFileName().toString());
+			if (!published.equals(output)) System.err.println("Note: " + output.getFileName() + " was taken meanwhile; the result is " + published);
+			output = published;
 			done = true;
 		} finally {
 			cleanUp();

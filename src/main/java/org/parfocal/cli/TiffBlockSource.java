@@ -110,6 +110,7 @@ public final class TiffBlockSource implements BlockSource {
 	 */
 	public static TiffBlockSource open(final Path path) {
 		if (!Files.isRegularFile(path)) throw new IllegalArgumentException("Input " + path + " does not exist or is not a file");
+		TiffCheck.requireComplete(path);
 		final FileInfo[] info;
 		try {
 			final Path abs = path.toAbsolutePath();

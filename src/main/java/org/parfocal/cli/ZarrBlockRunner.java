@@ -83,7 +83,34 @@ public final class ZarrBlockRunner {
 		return out;
 	}
 
-	/** The plan of one channel, aligned to the output chunks. */
+	/**
+	 * The output's layout and the plan of each channel. The output chunks are the input's, made smaller (halved,
+	 * not below 16) along an axis where a block's core would be less than two chunks long, so that most chunks are
+	 * reached by one block only (the others are seam chunks, assembled from fragments); the plans are then aligned
+	 * to that grid.
+	 */
+	public record Plans(Layout output, List<BlockPlan> plans) {}
+
+	/** See {@link Plans}. */
+	public static Plans plans(final Layout l, final List<Volume> psfs, final Recipe recipe, final long budget, final int[] tile) {
+		final List<BlockPlan> raw = new ArrayList<>();
+		for (final Volume h : psfs)
+			raw.add(tile != null ? BlockPlan.forTileSize(l.shape(), h.shape(), recipe.options(), tile)
+					: BlockPlan.forBudget(l.shape(), h.shape(), recipe.options(), budget > 0 ? budget : BlockPlan.heapBudget()));
+		final int[] chunk = l.chunk().clone();
+		for (int d = 0; d < 3; d++) {
+			int core = Integer.MAX_VALUE;
+			for (final BlockPlan p : raw)
+				if (p.tiles()[d] > 1) for (final var b : p.blocks()) core = Math.min(core, b.coreSize()[d]);
+			while (chunk[d] > 16 && 2 * chunk[d] > core) chunk[d] = (chunk[d] + 1) / 2;
+		}
+		final Layout out = new Layout(l.frames(), l.channels(), l.shape(), l.voxelSize(), chunk);
+		final List<BlockPlan> plans = new ArrayList<>();
+		for (final BlockPlan p : raw) plans.add(p.alignedTo(chunk, recipe.options()));
+		return new Plans(out, plans);
+	}
+
+	/** The plan of one channel, aligned to the input's chunks. */
 	public static BlockPlan plan(final Layout l, final Volume psf, final Recipe recipe, final long budget, final int[] tile) {
 		final BlockPlan p = tile != null ? BlockPlan.forTileSize(l.shape(), psf.shape(), recipe.options(), tile)
 				: BlockPlan.forBudget(l.shape(), psf.shape(), recipe.options(), budget > 0 ? budget : BlockPlan.heapBudget());
@@ -120,10 +147,11 @@ public final class ZarrBlockRunner {
 		if (psfFiles == null || psfFiles.isEmpty()) recipe.requirePsf();
 		if (input.toAbsolutePath().normalize().equals(output.toAbsolutePath().normalize()))
 			throw new IllegalArgumentException("The output must differ from the input (inputs are never written)");
-		final Layout l = layout(input);
-		final List<Volume> psf = psfs(recipe, psfFiles, l);
-		final List<BlockPlan> plans = new ArrayList<>();
-		for (final Volume h : psf) plans.add(plan(l, h, recipe, budget, tile));
+		final Layout in = layout(input);
+		final List<Volume> psf = psfs(recipe, psfFiles, in);
+		final Plans pl = plans(in, psf, recipe, budget, tile);
+		final Layout l = pl.output();
+		final List<BlockPlan> plans = pl.plans();
 		final int threads = Parallelization.getTaskExecutor().getParallelism();
 		final String prov = provenance(recipe, psfFiles, input, l, plans, "BlockRunner", threads).toJson();
 		if (!OmeZarr.isZarr(output)) {

@@ -64,6 +64,12 @@ public final class Deconvolution {
 			return new DeconvolutionResult(Volume.wrap(out, n[0], n[1], n[2], image.voxelSize()), 0, false, List.of(), Double.NaN, d.offset(),
 					d.background(), notes);
 		}
+		final Saturation sat = Saturation.detect(image);
+		if (sat != null) {
+			notes.add(sat.describe(d.y().length));
+			final float[] in = image.data(), yv = d.y();
+			for (int i = 0; i < in.length; i++) if (in[i] == sat.value()) yv[i] = Float.NaN;
+		}
 		final RichardsonLucySolver s = new RichardsonLucySolver(p.psf(), n, options.edges(), d.y(), d.background(), options.method(),
 				options.regularization(), initial == null ? null : initial.data());
 		final List<IterationReport> history = new ArrayList<>();

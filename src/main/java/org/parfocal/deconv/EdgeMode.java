@@ -6,7 +6,8 @@ import org.parfocal.fft.FastSizes;
  * What the deconvolution assumes about the object beyond the edges of the recorded stack. The keys are the
  * macro values of the {@code edges=} option: keep them.
  * <ul>
- * <li>{@link #NON_CIRCULANT} (default): the object lives on a domain larger than the image by the PSF size
+ * <li>{@link #NON_CIRCULANT} (default; macro value {@code extended}, formerly {@code non-circulant}, which is
+ * still accepted): the object lives on a domain larger than the image by the PSF size
  * minus one along each axis, and only the image window is compared with the data; the update is divided by
  * Hᵀ1, the sensitivity of the data to each object voxel (Bertero &amp; Boccacci, Astron. Astrophys. 2005).
  * Light from outside the field of view is accounted for, so there is no wrap-around ringing at the stack
@@ -21,7 +22,10 @@ import org.parfocal.fft.FastSizes;
  * </ul>
  */
 public enum EdgeMode {
-	NON_CIRCULANT("non-circulant"), PERIODIC("periodic"), ZERO("zero");
+	NON_CIRCULANT("extended"), PERIODIC("periodic"), ZERO("zero");
+
+	/** The first macro value of {@link #NON_CIRCULANT}, still accepted. */
+	public static final String OLD_NON_CIRCULANT_KEY = "non-circulant";
 
 	/** Fraction of the largest Hᵀ1 below which an extended-domain voxel is held at zero. */
 	public static final double MIN_SENSITIVITY = 1e-3;
@@ -62,9 +66,10 @@ public enum EdgeMode {
 	}
 
 	public static EdgeMode parse(final String s) {
+		if (s.trim().equalsIgnoreCase(OLD_NON_CIRCULANT_KEY)) return NON_CIRCULANT;
 		for (final EdgeMode m : values())
 			if (m.key.equalsIgnoreCase(s.trim())) return m;
-		throw new IllegalArgumentException("Unknown edge mode '" + s + "': use non-circulant, periodic or zero");
+		throw new IllegalArgumentException("Unknown edge mode '" + s + "': use extended, periodic or zero");
 	}
 
 	public static String[] keys() {

@@ -98,8 +98,10 @@ final class RichardsonLucySolver {
 		r4 = new double[rows];
 		norm3 = method == DeconvolutionMethod.RL_ACCELERATED ? new double[rows] : null;
 		double mean = 0;
-		for (final float v : y) mean += v;
-		mean /= y.length;
+		int used = 0;
+		for (final float v : y)
+			if (v == v) { mean += v; used++; }
+		mean /= Math.max(1, used);
 		this.b = (float) background;
 		this.floor = (float) Math.max(FLOOR * mean, Float.MIN_NORMAL);
 		this.lambda = method == DeconvolutionMethod.RL_TV ? (float) regularization : 0f;
@@ -219,6 +221,10 @@ final class RichardsonLucySolver {
 				if (!(den >= floor)) den = floor;
 				final float yy = y[yo + i];
 				model += hx;
+				if (yy != yy) { // a saturated voxel (NaN): left out, its ratio is 1 (see Saturation)
+					if (divide) t[q + i] = 1f;
+					continue;
+				}
 				ll -= den;
 				if (yy > 0) ll += yy * FastLog.ln(den);
 				if (divide) t[q + i] = yy / den;

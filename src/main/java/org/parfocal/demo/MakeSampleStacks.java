@@ -10,15 +10,23 @@ import ij.plugin.PlugIn;
 import org.parfocal.provenance.MacroExport;
 import org.parfocal.provenance.Provenance;
 
-/** {@code Plugins > Parfocal > Make Sample Stacks...}: opens the sample stacks, built in memory. No options. */
+/**
+ * {@code Plugins > Parfocal > Make Sample Stacks}: opens the sample stacks of the invented scene, built in memory
+ * (the widefield cell, its PSF and truth; a bead recording and its PSF; a two-channel stack and its two-channel
+ * PSF), each on the plane with the most signal and with a display range where its structure shows. No dialog,
+ * no options. Each carries a record saying this command made it, so Export Provenance as Macro can rebuild a
+ * sample workflow.
+ */
 public class MakeSampleStacks implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
+		IJ.showStatus("Making the sample stacks...");
 		for (final ImagePlus imp : SampleStacks.make().values()) {
 			attachRecord(imp);
 			imp.show();
 		}
+		IJ.showStatus("Sample stacks: quillwort cell, beads, two channels (invented scene, simulated)");
 	}
 
 	/**

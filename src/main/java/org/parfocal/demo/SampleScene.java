@@ -70,9 +70,68 @@ public final class SampleScene {
 	 * {@code PSF from Optics...} with these values.
 	 */
 	public static Volume psf() {
-		final Optics o = Optics.builder().na(NA).immersionIndex(IMMERSION_INDEX).sampleIndex(SAMPLE_INDEX).depth(DEPTH_UM)
-				.emissionWavelength(EMISSION_UM).build();
+		return psf(EMISSION_UM, DEPTH_UM);
+	}
+
+	/** The invented microscope's widefield PSF (as {@link #psf()}) for another emission wavelength and depth, µm. */
+	public static Volume psf(final double emission, final double depth) {
+		final Optics o = Optics.builder().na(NA).immersionIndex(IMMERSION_INDEX).sampleIndex(SAMPLE_INDEX).depth(depth)
+				.emissionWavelength(emission).build();
 		return PsfModels.get("gibson-lanni").compute(o, new PsfGrid(PSF_XY, PSF_XY, PSF_Z, VOXEL.dx(), VOXEL.dy(), VOXEL.dz()));
+	}
+
+	/** Emission of the second channel (the invented red "ambersome" label), µm. */
+	public static final double RED_EMISSION_UM = 0.61;
+	/** Depth of the bead layer of the bead recording below the coverslip, µm. */
+	public static final double BEAD_DEPTH_UM = 2;
+
+	/**
+	 * Sub-resolution beads (100 nm, invented calibration slide for the Halden W-60) in one layer near the middle
+	 * plane (±2 planes), at least 16 voxels from the lateral edges and 30 voxels (2.4 µm) from each other,
+	 * each of about {@code photons} integrated intensity (±20 %).
+	 */
+	public static Volume beads(final int nx, final int ny, final int nz, final int count, final double photons, final long seed) {
+		final Volume v = Volume.zeros(nx, ny, nz, VOXEL);
+		final Random r = new Random(seed);
+		final java.util.List<double[]> placed = new java.util.ArrayList<>();
+		for (int tries = 0; placed.size() < count && tries < 10000; tries++) {
+			final double x = 16 + r.nextDouble() * (nx - 32), y = 16 + r.nextDouble() * (ny - 32), z = nz / 2.0 - 2 + 4 * r.nextDouble();
+			boolean free = true;
+			for (final double[] q : placed) free &= sq(q[0] - x) + sq(q[1] - y) >= 30 * 30;
+			if (!free) continue;
+			placed.add(new double[] { x, y, z });
+			splat(v, x, y, z, 0.45, 0.25, photons * (0.8 + 0.4 * r.nextDouble()));
+		}
+		return v;
+	}
+
+	/**
+	 * The second channel of the two-channel sample: invented "ambersomes", a few bright soft-edged ellipsoidal
+	 * bodies (radius 2–4 voxels laterally) inside the same cell as {@link #cell} with the same seed, on a faint
+	 * cytoplasm.
+	 */
+	public static Volume ambersomes(final int nx, final int ny, final int nz, final long seed) {
+		final Volume v = Volume.zeros(nx, ny, nz, VOXEL);
+		final Random r = new Random(seed);
+		final double cx = nx * (0.45 + 0.1 * r.nextDouble()), cy = ny * (0.45 + 0.1 * r.nextDouble()), cz = nz / 2.0;
+		final double ax = nx * 0.38, ay = ny * 0.3, az = nz * 0.3;
+		final Random b = new Random(seed ^ 0x5eed);
+		final double[][] bodies = new double[9][];
+		for (int i = 0; i < bodies.length; i++)
+			bodies[i] = new double[] { cx + (b.nextDouble() - 0.5) * 1.2 * ax, cy + (b.nextDouble() - 0.5) * 1.2 * ay, cz + (b.nextDouble() - 0.5) * 1.0 * az,
+					2 + 2 * b.nextDouble(), 150 + 150 * b.nextDouble() };
+		for (int z = 0; z < nz; z++)
+			for (int y = 0; y < ny; y++)
+				for (int x = 0; x < nx; x++) {
+					final double q = sq((x - cx) / ax) + sq((y - cy) / ay) + sq((z - cz) / az);
+					double a = 5.0 / (1 + Math.exp((q - 1) * 8));
+					for (final double[] o : bodies) {
+						final double d = Math.sqrt(sq(x - o[0]) + sq(y - o[1]) + sq((z - o[2]) * VOXEL.dz() / VOXEL.dx())) / o[3];
+						a += o[4] / (1 + Math.exp((d - 1) * 6));
+					}
+					v.set(x, y, z, (float) a);
+				}
+		return v;
 	}
 
 	/**

@@ -11,6 +11,11 @@ import org.parfocal.core.Parallel;
 /**
  * Discrete Fourier transform of real 1D, 2D and 3D data of any size, X(k) = Σ_n x(n)·exp(−2πi k·n/N).
  * <p>
+ * <b>Backends.</b> Each instance computes on the {@link FftBackend} selected when it is made: FFTW
+ * ({@link FftwTransform}, natives, when installed) or JTransforms (pure Java, below). Both give the same layouts,
+ * normalisation, pruning and row hooks, and results that agree within float rounding; the paragraphs below
+ * describe the pure-Java path.
+ * <p>
  * <b>Why composed from 1D transforms.</b> JTransforms' 2D and 3D {@code realForward} accept only
  * power-of-two sizes, and {@code realForwardFull} costs twice the time and memory. This class composes the
  * real transform from JTransforms' 1D plans, which take any length: a real transform along x, then complex

@@ -180,7 +180,9 @@ public class BlindDeconvolve implements PlugIn {
 			out.plot().show();
 			if (out.quality() != null) out.quality().show();
 			out.history().show();
+			zoomSmall(out.history());
 			out.psf().show();
+			zoomSmall(out.psf());
 			out.image().show(); // last, so that it is the current image for the next macro line
 		});
 	}
@@ -192,6 +194,7 @@ public class BlindDeconvolve implements PlugIn {
 		System.arraycopy(titles, 0, starts, 0, titles.length);
 		starts[titles.length] = FROM_OPTICS;
 		starts[titles.length + 1] = GAUSSIAN;
+		Commands.acceptOldValue("edges", EdgeMode.OLD_NON_CIRCULANT_KEY, EdgeMode.NON_CIRCULANT.key());
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", starts, guessStart(titles));
@@ -217,10 +220,7 @@ public class BlindDeconvolve implements PlugIn {
 		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
 		gd.addStringField("Background:", Commands.remembered(PREFS + "background", "auto"), 8);
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
-		gd.addHelp("PSF: the starting estimate, an open image, from_optics (computed in the next dialog) or gaussian (FWHM_xy, FWHM_z). "
-				+ "Band limit: needs the optics; without from_optics the next dialog asks for NA, immersion index and emission. "
-				+ "Support: the box the PSF lives in, odd sizes in voxels (or µm); 0 = from the optics or the start. "
-				+ "Offset: camera offset subtracted first (a number, or auto). Background: constant in the model H x + b (a number, or auto).");
+		gd.addHelp(DialogHelp.blind().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
@@ -284,6 +284,7 @@ public class BlindDeconvolve implements PlugIn {
 		gd.addNumericField("NA:", Commands.remembered(PREFS + "na", 1.4), 3);
 		gd.addNumericField("Immersion_index:", Commands.remembered(PREFS + "immersion_index", 1.518), 4);
 		gd.addNumericField("Emission:", Commands.remembered(PREFS + "emission", 0.52), 3, 6, "µm");
+		gd.addHelp(DialogHelp.band().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final double na = Commands.number(gd, "na"), ni = Commands.number(gd, "immersion_index"), em = Commands.number(gd, "emission");
@@ -461,7 +462,19 @@ public class BlindDeconvolve implements PlugIn {
 		for (int t = 0; t < snaps.size(); t++)
 			for (int z = 0; z < nz; z++)
 				st.setSliceLabel(label(snaps.get(t).iteration(), z, nz), imp.getStackIndex(1, z + 1, t + 1));
+		// open on the last snapshot's brightest plane, displayed from 0 to that plane's peak, so the PSF shows
+		final Volume last = vols.get(vols.size() - 1);
+		final int[] pk = org.parfocal.psf.Fwhm.peak(last);
+		imp.setPosition(1, pk[2] + 1, vols.size());
+		imp.setDisplayRange(0, Math.max(Float.MIN_NORMAL, last.get(pk[0], pk[1], pk[2])));
 		return imp;
+	}
+
+	/** Enlarges a small image's window (PSFs are a few tens of voxels wide) to about 300 pixels. */
+	static void zoomSmall(final ImagePlus imp) {
+		if (imp.getWindow() == null || imp.getWidth() >= 150) return;
+		final int percent = 100 * Math.max(2, Math.min(16, 300 / imp.getWidth()));
+		IJ.run(imp, "Set... ", "zoom=" + percent);
 	}
 
 	static String label(final int iteration, final int z, final int nz) {
@@ -511,8 +524,11 @@ public class BlindDeconvolve implements PlugIn {
 		plot.setColor(new Color(90, 90, 90));
 		plot.addPoints(it, dist, Plot.CONNECTED_CIRCLES);
 		plot.setColor(Color.black);
-		plot.addLegend(axial ? "lateral FWHM / start\naxial FWHM / start\ndistance to start" : "lateral FWHM / start\ndistance to start");
-		plot.setLimitsToFit(false);
+		// headroom above the curves, so the legend in the top-right corner covers no data
+		double ymax = 1;
+		for (int i = 0; i < n; i++) for (final double v : new double[] { lat[i], ax[i], dist[i] }) if (Double.isFinite(v)) ymax = Math.max(ymax, v);
+		plot.setLimits(it[0], Math.max(it[n - 1], it[0] + 1), 0, ymax * (axial ? 1.45 : 1.35));
+		plot.addLegend(axial ? "lateral FWHM / start\naxial FWHM / start\ndistance to start" : "lateral FWHM / start\ndistance to start", "top-right");
 		return plot;
 	}
 

@@ -99,6 +99,19 @@ final class Commands {
 	}
 
 	/**
+	 * In a macro, an old value of a choice is replaced by its current one before the dialog reads the options
+	 * (a released macro value keeps working though the dialog lists the new one).
+	 */
+	static void acceptOldValue(final String key, final String oldValue, final String newValue) {
+		final String options = Macro.getOptions();
+		if (options == null) return;
+		final String given = Macro.getValue(options, key, null);
+		if (given == null || !given.trim().equalsIgnoreCase(oldValue)) return;
+		Macro.setOptions(options.replaceFirst("(^|\\s)" + java.util.regex.Pattern.quote(key) + "=\\[?" + java.util.regex.Pattern.quote(given) + "\\]?(?=\\s|$)",
+				"$1" + key + "=" + newValue));
+	}
+
+	/**
 	 * A dialog default: the value remembered from the last interactive run, but in a macro always the documented
 	 * default {@code d} (as ImageJ's own filters do), so a macro that omits a key gets the same result everywhere.
 	 */

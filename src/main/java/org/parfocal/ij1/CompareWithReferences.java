@@ -128,9 +128,7 @@ public class CompareWithReferences implements PlugIn {
 		gd.addNumericField("Bootstrap:", 50, 0, 6, "resamples (0 = no intervals)");
 		gd.addNumericField("Seed:", 1, 0);
 		gd.addCheckbox("Ignore_calibration (compare voxel for voxel)", false);
-		gd.addHelp("References: every .tif/.tiff in the folder, and/or every open image whose title matches the pattern (* and ? wildcards). "
-				+ "Input and PSF (optional) give the baseline distance, the gap closed and the re-blur chi-square; offset and background are those "
-				+ "of the input (a number, or auto), photons and read noise its noise model.");
+		gd.addHelp(DialogHelp.compare().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String result = Commands.checkChoice("result", gd.getNextChoice(), "image title");
@@ -169,6 +167,7 @@ public class CompareWithReferences implements PlugIn {
 			if (files == null || files.length == 0) throw new IllegalArgumentException("No TIFF files (.tif, .tiff) in the reference folder '" + folder + "'");
 			Arrays.sort(files);
 			for (final File f : files) {
+				org.parfocal.cli.TiffCheck.requireComplete(f.toPath()); // empty, truncated or not a TIFF: one line
 				final ImagePlus imp = IJ.openImage(f.getPath());
 				if (imp == null) throw new IllegalArgumentException("Could not read the reference '" + f.getName() + "' in '" + folder + "'");
 				out.add(new Reference(imp, ImageBridge.toVolume(imp, "The reference")));
@@ -308,11 +307,12 @@ public class CompareWithReferences implements PlugIn {
 			t.incrementCounter();
 			t.addValue("property", r.property());
 			t.addValue("value", r.distance());
-			t.addValue("low", r.low());
-			t.addValue("high", r.high());
-			t.addValue("floor", r.floor());
-			t.addValue("baseline", r.baseline());
-			t.addValue("gap_closed", r.gapClosed());
+			t.addValue(LOW, r.low());
+			t.addValue(HIGH, r.high());
+			t.addValue(FLOOR, r.floor());
+			t.addValue(BASELINE, r.baseline());
+			t.addValue(GAP, r.gapClosed());
+			t.addValue(WHY, whyNoGap(r.baseline(), r.floor(), r.gapClosed()));
 		}
 		if (chi != null) {
 			addScalar(t, "re-blur chi-square", chi.meanChiSquare());
@@ -326,22 +326,40 @@ public class CompareWithReferences implements PlugIn {
 		t.incrementCounter();
 		t.addValue("property", name);
 		t.addValue("value", v);
-		for (final String c : new String[] { "low", "high", "floor", "baseline", "gap_closed" }) t.addValue(c, Double.NaN);
+		for (final String c : new String[] { LOW, HIGH, FLOOR, BASELINE, GAP }) t.addValue(c, Double.NaN);
+		t.addValue(WHY, "");
 	}
 
-	/** Quantile curves of intensity and gradient magnitude, result (solid) vs references (dashed). */
+	/** Worded column headings of the table (explained in the dialog's Help). */
+	static final String LOW = "95% low", HIGH = "95% high", FLOOR = "noise floor", BASELINE = "blurred input", GAP = "gap closed", WHY = "why no gap";
+
+	/** Why "gap closed" is blank, or "" when it has a value. */
+	static String whyNoGap(final double baseline, final double floor, final double gap) {
+		if (Double.isFinite(gap)) return "";
+		if (Double.isNaN(baseline)) return "no input given";
+		if (!(baseline > floor)) return "input already within the noise floor";
+		return "undefined";
+	}
+
+	/** Quantile curves of intensity and gradient magnitude: references (wide, light) under the result (dark). */
 	static Plot plot(final MarginalQuantiles.Curves c, final String title, final int refCount) {
 		final Plot plot = new Plot("Marginals of " + title + " vs references", "Quantile level (%)", "Normalized value");
 		final Color[] colors = { new Color(0, 90, 170), new Color(200, 80, 0) };
+		final Color[] light = { new Color(140, 185, 230), new Color(240, 180, 130) };
 		for (int k = 0; k < 2; k++) {
+			// the references first, as a wide light band of the same hue, then the result as a dark line on top:
+			// both stay visible where they agree
+			plot.setColor(light[k]);
+			plot.setLineWidth(5);
+			plot.addPoints(c.levels(), c.references()[k], Plot.LINE);
 			plot.setColor(colors[k]);
 			plot.setLineWidth(2);
 			plot.addPoints(c.levels(), c.result()[k], Plot.LINE);
-			plot.setLineWidth(1);
-			plot.addPoints(c.levels(), c.references()[k], Plot.DOT);
 		}
+		plot.setLineWidth(1);
 		plot.setColor(Color.BLACK);
-		plot.addLegend("intensity, result\tintensity, " + refCount + " reference(s)\tgradient magnitude, result\tgradient magnitude, references");
+		plot.addLegend("intensity, " + refCount + " reference(s) (wide, light)\tintensity, result\tgradient magnitude, references (wide, light)\tgradient magnitude, result",
+				"top-left");
 		plot.setLimitsToFit(false);
 		return plot;
 	}

@@ -70,8 +70,7 @@ public class ConvolveWithPsf implements PlugIn {
 		gd.addNumericField("Seed:", 1, 0);
 		gd.addNumericField("Offset:", 0, 3, 8, "camera offset, added without noise");
 		gd.addCheckbox("Recentre the PSF (shift its centre of mass to the centre voxel)", false);
-		gd.addHelp("Blurs the image with the PSF (PSF centre voxel at (k-1)/2), adds the background, then Poisson noise with "
-				+ "that many photons per intensity unit, then the camera offset. Boundary: how the image continues beyond its edges.");
+		gd.addHelp(DialogHelp.convolve().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");

@@ -178,6 +178,7 @@ public class Deconvolve implements PlugIn {
 		final String[] psfChoices = new String[titles.length + 1];
 		System.arraycopy(titles, 0, psfChoices, 0, titles.length);
 		psfChoices[titles.length] = FROM_OPTICS;
+		Commands.acceptOldValue("edges", EdgeMode.OLD_NON_CIRCULANT_KEY, EdgeMode.NON_CIRCULANT.key());
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", psfChoices, guessPsf(titles));
@@ -192,8 +193,7 @@ public class Deconvolve implements PlugIn {
 		gd.addCheckbox("Plot convergence", true);
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
 		gd.addCheckbox("Recentre the PSF (shift its centre of mass to the centre voxel)", false);
-		gd.addHelp("Offset: camera offset subtracted first (a number, or auto = 0.1 % quantile). Background: constant in the model "
-				+ "H x + b (a number, or auto = sigma-clipped median). PSF: an open image, or from_optics to compute it in the next dialog.");
+		gd.addHelp(DialogHelp.deconvolve().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
@@ -246,10 +246,7 @@ public class Deconvolve implements PlugIn {
 		gd.addNumericField("Read_noise:", macro ? 0 : Commands.remembered(PREFS + "read_noise", 0), 3, 8, "sigma, intensity units");
 		gd.addCheckbox("Stop_at_suggestion (return the suggested iterate)", false);
 		gd.addCheckbox("Ignore_calibration of the references", false);
-		gd.addHelp("Every k iterations the iterate is compared with sharp reference images of the same kind of structure (every .tif in the "
-				+ "folder and/or open images whose title matches the pattern, * and ? wildcards; both may be empty) and re-blurred against the data "
-				+ "(chi-square, noise model: photons per unit and read noise). The suggested iteration is the one closest to the references "
-				+ "(without references: the last with chi-square >= 1).");
+		gd.addHelp(DialogHelp.watch().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final double every = Commands.number(gd, "every");
@@ -358,7 +355,9 @@ public class Deconvolve implements PlugIn {
 		prov.run("iterations", first.iterations()).run("stop_reason", stopReason(o.deconvolution(), first) + (o.watch() != null && o.watch().stopAtSuggestion() && !watches.isEmpty()
 				&& watches.get(0).best() != null ? "; the suggested iterate " + watches.get(0).suggestion().iteration() + " was returned (watch mode)" : "")).run("offset", first.offset())
 				.run("background", first.background());
-		if (n > 1) prov.run("volumes", n);
+		if (n > 1) prov.run("volumes", n).run("offset_per_volume", results.stream().map(r -> (Object) r.offset()).toList())
+				.run("background_per_volume", results.stream().map(r -> (Object) r.background()).toList());
+		if (!first.history().isEmpty()) prov.run("relative_change", first.history().stream().map(h -> (Object) h.relativeChange()).toList());
 		if (o.watch() != null) watchProvenance(prov, o.watch(), watches, refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		Provenance.attach(out, prov, start);
@@ -525,6 +524,7 @@ public class Deconvolve implements PlugIn {
 			final Volume v = Commands.withImageJThreads(() -> PsfModels.get(optics.model()).compute(optics.optics(), grid));
 			final Volume fitted = in.nz() == 1 && v.nz() > 1 ? centralPlane(v) : v;
 			for (int c = 0; c < in.channels(); c++) out.add(fitted);
+			if (in.channels() > 1) notes.add("one PSF from the optics used for all " + in.channels() + " channels");
 			notes.addAll(PsfExtent.warnings(fitted, in.first().shape(), microns(in.voxelSize()), optics.optics()));
 			return out;
 		}
@@ -533,6 +533,8 @@ public class Deconvolve implements PlugIn {
 		if (p.channels() != 1 && p.channels() != in.channels())
 			throw new IllegalArgumentException("The PSF has " + p.channels() + " channels but the image has " + in.channels()
 					+ ": give one PSF, or one channel per image channel");
+		if (p.channels() == 1 && in.channels() > 1)
+			notes.add("one PSF ('" + psfImp.getTitle() + "') used for all " + in.channels() + " channels; give one channel per image channel for their own PSFs");
 		for (int c = 0; c < in.channels(); c++) {
 			Volume v = p.get(p.channels() == 1 ? 0 : c, 0);
 			v = matchVoxelSize(v, in.voxelSize(), notes);

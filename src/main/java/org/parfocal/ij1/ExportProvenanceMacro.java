@@ -62,6 +62,7 @@ public class ExportProvenanceMacro implements PlugIn {
 			final GenericDialog gd = new GenericDialog(COMMAND);
 			gd.addStringField("Macro:", base, 40);
 			gd.addCheckbox("Replace an existing file", false);
+			gd.addHelp(DialogHelp.export().html());
 			gd.showDialog();
 			if (gd.wasCanceled()) return null;
 			return new Options(gd.getNextString().trim(), gd.getNextBoolean());

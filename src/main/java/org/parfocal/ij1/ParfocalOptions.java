@@ -25,13 +25,14 @@ public class ParfocalOptions implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, () -> {
+		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.PARFOCAL_OPTIONS, () -> {
 			applySaved();
 			final GenericDialog gd = new GenericDialog(COMMAND);
 			gd.addChoice("FFT_library:", CHOICES, System.getProperty(FftBackend.PROPERTY, "auto"));
 			gd.addMessage("FFTW here: " + (FftBackend.FFTW.available() ? FftBackend.FFTW.description() : "not installed (" + FftBackend.FFTW.unavailableReason() + ")"));
+			gd.addHelp(DialogHelp.options().html());
 			gd.showDialog();
-			if (gd.wasCanceled()) return;
+			if (gd.wasCanceled()) throw Commands.cancelled();
 			final String choice = Commands.checkChoice("fft_library", gd.getNextChoice(), "FFT library (auto, fftw or java)");
 			set(choice);
 			IJ.showStatus(COMMAND + ": FFT library " + FftBackend.selected().description());

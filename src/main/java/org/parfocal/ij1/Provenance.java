@@ -40,7 +40,15 @@ final class Provenance {
 			path = fi.getFilePath();
 		final String shape = imp.getWidth() + "x" + imp.getHeight() + " c" + imp.getNChannels() + " z" + imp.getNSlices() + " t"
 				+ imp.getNFrames() + " " + imp.getBitDepth() + "-bit";
-		return new Input(role, imp.getTitle(), path, sha256(imp), shape, of(imp).orElse(null));
+		return new Input(role, imp.getTitle(), path, sha256(imp), shape, of(imp).orElse(null), calibration(imp));
+	}
+
+	/** Voxel size as text, "uncalibrated" when the image has no spatial unit. */
+	static String calibration(final ImagePlus imp) {
+		final ij.measure.Calibration c = imp.getCalibration();
+		if (c == null || !c.scaled()) return "uncalibrated";
+		return org.parfocal.provenance.MacroOptions.number(c.pixelWidth) + " x " + org.parfocal.provenance.MacroOptions.number(c.pixelHeight) + " x "
+				+ org.parfocal.provenance.MacroOptions.number(c.pixelDepth) + " " + c.getUnit();
 	}
 
 	/** The record an image carries in its Info, if Parfocal made it. */

@@ -138,9 +138,7 @@ public class PsfFromBeads implements PlugIn {
 		gd.addNumericField("Excitation:", Commands.remembered(PREFS + "excitation", 0.488), 3, 6, "µm (confocal, two-photon)");
 		gd.addNumericField("Pinhole:", 1, 2, 6, "Airy units (confocal)");
 		gd.addNumericField("Sheet_thickness:", 2, 2, 6, "µm FWHM (light-sheet)");
-		gd.addHelp("Finds beads (local maxima of the lightly smoothed stack above threshold × robust noise), fits each with a Gaussian, "
-				+ "rejects beads whose box leaves the image, saturated beads, beads with a neighbour in the box and intensity or width outliers, "
-				+ "then aligns the rest to sub-voxel precision (Fourier shift), subtracts their background and averages them.");
+		gd.addHelp(DialogHelp.beads().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
@@ -178,8 +176,8 @@ public class PsfFromBeads implements PlugIn {
 		final Optics optics = NONE.equals(model) ? null
 				: Optics.builder().modality(modality).na(na).immersionIndex(ni).sampleIndex(ns).depth(depth)
 						.emissionWavelength(modality.usesEmission() || emission > 0 ? emission : Double.NaN)
-						.excitationWavelength(modality.usesExcitation() ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
-						.sheetThickness(modality == Modality.LIGHT_SHEET ? sheet : Double.NaN).build();
+						.excitationWavelength(modality.usesExcitation() || excitation > 0 ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
+						.sheetThickness(modality == Modality.LIGHT_SHEET || sheet > 0 ? sheet : Double.NaN).build();
 		return new Options(image, boxXY, boxZ, diameter, threshold, saturated, outlier, background, averaging, symmetrize, vxy, vz, model, optics);
 	}
 
@@ -229,7 +227,7 @@ public class PsfFromBeads implements PlugIn {
 			builder.run("model_fwhm_x_um", model[0]).run("model_fwhm_y_um", model[1]);
 			if (is3D) builder.run("model_fwhm_z_um", model[2]);
 		}
-		for (int i = 0; i < warnings.size(); i++) builder.run("warning" + (i + 1), warnings.get(i));
+		for (final String w : warnings) builder.warning(w);
 		Provenance.attach(psf, builder, start);
 
 		final Overlay overlay = overlay(imp, m.beads(), m.fwhm()[0] / (stack.voxelSize().dx() * um));

@@ -1,6 +1,7 @@
 package org.parfocal.ij1;
 
 import java.awt.Color;
+import java.util.List;
 import java.util.Locale;
 
 import ij.IJ;
@@ -110,15 +111,16 @@ public class PsfFromOptics implements PlugIn {
 		gd.addChoice("Modality:", Modality.keys(), Commands.remembered(PREFS + "modality", "widefield"));
 		gd.addMessage("Objective and sample (lengths in µm)");
 		gd.addNumericField("NA:", Commands.remembered(PREFS + "na", 1.4), 3);
-		gd.addNumericField("Immersion_index:", Commands.remembered(PREFS + "ni", 1.518), 4);
-		gd.addNumericField("Immersion_index_design:", Commands.remembered(PREFS + "nid", 1.518), 4);
+		gd.addNumericField("Immersion_index:", Commands.remembered(PREFS + "ni", 1.518), 4, 8, "medium in use");
 		gd.addNumericField("Sample_index:", Commands.remembered(PREFS + "ns", 1.518), 4);
-		gd.addNumericField("Coverslip_index:", 1.522, 4);
+		gd.addNumericField("Coverslip_index:", 1.522, 4, 8, "glass in use");
+		gd.addNumericField("Coverslip_thickness:", 170, 1, 8, "µm, glass in use");
+		gd.addNumericField("Depth:", Commands.remembered(PREFS + "depth", 0), 2, 8, "µm below the coverslip");
+		gd.addMessage("What the objective is corrected for (Gibson & Lanni only)");
+		gd.addNumericField("Immersion_index_design:", Commands.remembered(PREFS + "nid", 1.518), 4, 8, "on the objective");
 		gd.addNumericField("Coverslip_index_design:", 1.522, 4);
-		gd.addNumericField("Coverslip_thickness:", 170, 1, 6, "µm");
-		gd.addNumericField("Coverslip_thickness_design:", 170, 1, 6, "µm");
-		gd.addNumericField("Working_distance:", 150, 1, 6, "µm");
-		gd.addNumericField("Depth:", Commands.remembered(PREFS + "depth", 0), 2, 6, "µm below the coverslip");
+		gd.addNumericField("Coverslip_thickness_design:", 170, 1, 8, "µm, on the barrel");
+		gd.addNumericField("Working_distance:", 150, 1, 8, "µm");
 		gd.addMessage("Light");
 		gd.addNumericField("Emission:", Commands.remembered(PREFS + "emission", 0.52), 3, 6, "µm");
 		gd.addNumericField("Excitation:", Commands.remembered(PREFS + "excitation", 0.488), 3, 6, "µm (confocal, two-photon)");
@@ -130,14 +132,16 @@ public class PsfFromOptics implements PlugIn {
 		gd.addNumericField("Size_xy:", 0, 0, 6, "voxels, odd; 0 = from the optics");
 		gd.addNumericField("Size_z:", 0, 0, 6, "voxels, odd; 0 = from the optics");
 		if (withProfiles) gd.addCheckbox("Show_profiles and FWHM table", true);
+		gd.addHelp(DialogHelp.psfFromOptics(withProfiles).html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String model = Commands.checkChoice("model", gd.getNextChoice(), "PSF model (" + String.join(", ", PsfModels.keys()) + ")");
 		final Modality modality = Modality.parse(Commands.checkChoice("modality", gd.getNextChoice(), "modality"));
-		final double na = Commands.number(gd, "na"), ni = Commands.number(gd, "immersion_index"), nid = Commands.number(gd, "immersion_index_design");
-		final double ns = Commands.number(gd, "sample_index"), ng = Commands.number(gd, "coverslip_index"), ngd = Commands.number(gd, "coverslip_index_design");
-		final double tg = Commands.number(gd, "coverslip_thickness"), tgd = Commands.number(gd, "coverslip_thickness_design");
-		final double wd = Commands.number(gd, "working_distance"), depth = Commands.number(gd, "depth");
+		final double na = Commands.number(gd, "na"), ni = Commands.number(gd, "immersion_index");
+		final double ns = Commands.number(gd, "sample_index"), ng = Commands.number(gd, "coverslip_index");
+		final double tg = Commands.number(gd, "coverslip_thickness"), depth = Commands.number(gd, "depth");
+		final double nid = Commands.number(gd, "immersion_index_design"), ngd = Commands.number(gd, "coverslip_index_design");
+		final double tgd = Commands.number(gd, "coverslip_thickness_design"), wd = Commands.number(gd, "working_distance");
 		final double emission = Commands.number(gd, "emission"), excitation = Commands.number(gd, "excitation");
 		final double pinhole = Commands.number(gd, "pinhole"), sheet = Commands.number(gd, "sheet_thickness");
 		final double vxy = Commands.number(gd, "voxel_xy"), vz = Commands.number(gd, "voxel_z");
@@ -158,8 +162,8 @@ public class PsfFromOptics implements PlugIn {
 		final Optics optics = Optics.builder().modality(modality).na(na).immersionIndex(ni).immersionIndexDesign(nid).sampleIndex(ns)
 				.coverslipIndex(ng).coverslipIndexDesign(ngd).coverslipThickness(tg).coverslipThicknessDesign(tgd).workingDistance(wd)
 				.depth(depth).emissionWavelength(modality.usesEmission() || emission > 0 ? emission : Double.NaN)
-				.excitationWavelength(modality.usesExcitation() ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
-				.sheetThickness(modality == Modality.LIGHT_SHEET ? sheet : Double.NaN).build();
+				.excitationWavelength(modality.usesExcitation() || excitation > 0 ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
+				.sheetThickness(modality == Modality.LIGHT_SHEET || sheet > 0 ? sheet : Double.NaN).build();
 		return new Options(model, optics, vxy, vz, (int) sxy, (int) sz, show);
 	}
 
@@ -176,10 +180,25 @@ public class PsfFromOptics implements PlugIn {
 		if (warning != null) IJ.log(COMMAND + ": " + warning);
 		final var builder = Provenance.start(COMMAND, o.macroOptions()).run("grid", grid.nx() + "x" + grid.ny() + "x" + grid.nz())
 				.run("fwhm_x_um", fx).run("fwhm_y_um", fy).run("fwhm_z_um", fz);
-		if (warning != null) builder.run("warning", warning);
+		if (warning != null) builder.warning(warning);
+		final String ignored = ignored(o.model(), o.optics().modality());
+		if (!ignored.isEmpty()) builder.run("ignored", ignored);
 		Provenance.attach(imp, builder, start);
 		IJ.showStatus(COMMAND + String.format(Locale.ROOT, ": FWHM %.3f x %.3f x %.3f µm", fx, fy, fz));
 		return new Result(imp, profiles(psf, o), table(o, fx, fy, fz), warning);
+	}
+
+	/**
+	 * The dialog's fields that this model and modality do not use, as one sentence for the record (they are kept
+	 * as entered, so the record repeats the dialog, and are marked here as not used).
+	 */
+	static String ignored(final String model, final Modality modality) {
+		final List<String> keys = new java.util.ArrayList<>();
+		if (!modality.usesExcitation()) keys.add("excitation");
+		if (modality != Modality.CONFOCAL) keys.add("pinhole");
+		if (modality != Modality.LIGHT_SHEET) keys.add("sheet_thickness");
+		if (!"gibson-lanni".equals(model)) keys.addAll(List.of("immersion_index_design", "coverslip_index_design", "coverslip_thickness_design", "working_distance"));
+		return keys.isEmpty() ? "" : String.join(", ", keys) + ": not used by " + model + " " + modality.key();
 	}
 
 	/** Lateral (through the peak along x) and axial (along z) profiles, each scaled to its peak. */

@@ -82,6 +82,7 @@ public final class CommandKeys {
 			"patch_size:N", "patches:N", "bootstrap:N", "seed:N", "ignore_calibration:F"));
 	public static final Command EXPORT_MACRO = define("Export Provenance as Macro", List.of(), Map.of(), List.of("macro:T", "replace:F"));
 	public static final Command WRITE_REPORT = define("Write Report", List.of(), Map.of(), List.of("file:T", "replace:F"));
+	public static final Command PARFOCAL_OPTIONS = define("Parfocal Options", List.of(), Map.of(), List.of("fft_library:W"));
 
 	private CommandKeys() {}
 

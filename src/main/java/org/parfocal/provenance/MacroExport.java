@@ -70,7 +70,7 @@ public final class MacroExport {
 			if (!(t instanceof String title)) throw new IllegalArgumentException("The record of a sample stack names no title");
 			checkText("A sample stack's title", title);
 			if (!p.options().isEmpty()) throw new IllegalArgumentException("The record of " + SAMPLE_COMMAND + " holds options it does not have");
-			sb.append("run(").append(literal(SAMPLE_COMMAND + "...")).append(");\n");
+			sb.append("run(").append(literal(SAMPLE_COMMAND)).append(");\n");
 			sb.append("selectImage(").append(literal(title)).append(");\n");
 			return;
 		}

@@ -31,8 +31,17 @@ public final class Provenance {
 	private static final Gson GSON = new GsonBuilder().disableHtmlEscaping().serializeSpecialFloatingPointValues()
 			.setObjectToNumberStrategy(ToNumberPolicy.LONG_OR_DOUBLE).create();
 
-	/** One input image. {@code source} is its own provenance when it has one. */
-	public record Input(String role, String title, String path, String sha256, String shape, Provenance source) {}
+	/**
+	 * One input image. {@code source} is its own provenance when it has one; {@code calibration} its voxel size as
+	 * text ("0.1 x 0.1 x 0.3 µm", or "uncalibrated"), null when not known.
+	 */
+	public record Input(String role, String title, String path, String sha256, String shape, Provenance source, String calibration) {
+
+		/** Without calibration (records written before it was kept). */
+		public Input(final String role, final String title, final String path, final String sha256, final String shape, final Provenance source) {
+			this(role, title, path, sha256, shape, source, null);
+		}
+	}
 
 	// Fields are plain so that Gson writes them in this order; treat instances as immutable.
 	private String command;
@@ -64,6 +73,23 @@ public final class Provenance {
 
 	/** Facts of the run (iterations, stop reason, …) by name. */
 	public Map<String, Object> run() { return run == null ? Map.of() : run; }
+
+	/** Run key of the list of warnings (one sentence each) that every command adds with {@link Builder#warning}. */
+	public static final String WARNINGS = "warnings";
+
+	/**
+	 * The warnings of the run, in the order they were added: the {@value #WARNINGS} list, then the older single
+	 * keys {@code warning} and {@code warning1}, {@code warning2}, … that records written before the list kept.
+	 */
+	public List<String> warnings() {
+		final List<String> w = new ArrayList<>();
+		final Object list = run().get(WARNINGS);
+		if (list instanceof List<?> l) for (final Object o : l) w.add(String.valueOf(o));
+		else if (list != null) w.add(String.valueOf(list));
+		for (final Map.Entry<String, Object> e : run().entrySet())
+			if (e.getKey().matches("warning[0-9]*") && e.getValue() != null) w.add(String.valueOf(e.getValue()));
+		return w;
+	}
 
 	public String parfocalVersion() { return parfocalVersion; }
 
@@ -187,6 +213,20 @@ public final class Provenance {
 		/** A fact of the run: iterations, stop reason, warnings, … */
 		public Builder run(final String key, final Object value) {
 			p.run.put(key, value);
+			return this;
+		}
+
+		/**
+		 * Adds one warning (a sentence a user can act on) to the run's {@value Provenance#WARNINGS} list, which
+		 * reports show at the top. Blank or repeated warnings are ignored.
+		 */
+		@SuppressWarnings("unchecked")
+		public Builder warning(final String text) {
+			if (text == null || text.isBlank()) return this;
+			final Object existing = p.run.get(WARNINGS);
+			final List<Object> list = existing instanceof List<?> l ? (List<Object>) l : new ArrayList<>();
+			if (!list.contains(text)) list.add(text);
+			p.run.put(WARNINGS, list);
 			return this;
 		}
 

@@ -109,7 +109,8 @@ class ZarrBlockRunnerTest {
 		for (int t = 0; t < 2; t++)
 			for (int c = 0; c < 2; c++) {
 				final Volume h = BlockRunner.loadPsf(r.withPsfFile((c == 0 ? fa : fb).toString()), l.voxelSize(), 16);
-				final BlockPlan plan = ZarrBlockRunner.plan(l, h, r, 0, new int[] { 20, 20, 0 });
+				final Volume other = BlockRunner.loadPsf(r.withPsfFile((c == 0 ? fb : fa).toString()), l.voxelSize(), 16);
+				final BlockPlan plan = ZarrBlockRunner.plans(l, c == 0 ? List.of(h, other) : List.of(other, h), r, 0, new int[] { 20, 20, 0 }).plans().get(c);
 				final Volume want = BlockDeconvolution.run(vols.get(2 * t + c), h, r.options(), plan, null);
 				assertArrayEquals(want.data(), img.read(t, c, new int[3], img.shape()).data(), "frame " + t + ", channel " + c);
 			}
@@ -155,6 +156,20 @@ class ZarrBlockRunnerTest {
 		assertEquals(planes.offset(), chunks.offset());
 		assertEquals(planes.background(), chunks.background());
 		assertEquals(planes.start(), chunks.start(), 1e-6 * planes.start());
+	}
+
+	/** Chunks larger than the blocks would make every chunk a seam chunk: the output's are halved down to the cores. */
+	@Test
+	void outputChunksShrinkToTheBlocksAndTheBlocksAlignToThem() {
+		final Volume psf = BlockScenes.psf(9, 7, 1.3, 1.2);
+		final ZarrBlockRunner.Layout l = new ZarrBlockRunner.Layout(1, 1, new int[] { 200, 160, 64 }, BlockScenes.VOXEL, new int[] { 128, 128, 32 });
+		final var r = Recipe.parse("method=richardson-lucy iterations=5");
+		final ZarrBlockRunner.Plans p = ZarrBlockRunner.plans(l, List.of(psf), r, 0, new int[] { 64, 80, 0 });
+		assertArrayEquals(new int[] { 16, 32, 32 }, p.output().chunk(), "x: 4 cores of 50 -> 16; y: 2 cores of 80 -> 32; z uncut -> kept");
+		for (final Block b : p.plans().get(0).blocks()) {
+			assertEquals(0, b.coreOrigin()[0] % 16, b.toString());
+			assertEquals(0, b.coreOrigin()[1] % 32, b.toString());
+		}
 	}
 
 	@Test

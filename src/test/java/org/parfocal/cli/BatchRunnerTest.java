@@ -49,7 +49,7 @@ class BatchRunnerTest {
 
 		assertEquals(4, rows.size());
 		assertTrue(rows.get(0).ok() && rows.get(1).ok(), rows.toString());
-		assertTrue(!rows.get(2).ok() && rows.get(2).message().contains("cannot open"), rows.get(2).toString());
+		assertTrue(!rows.get(2).ok() && rows.get(2).message().contains("cell-3-corrupt.tif is not a TIFF file"), rows.get(2).toString());
 		assertTrue(!rows.get(3).ok() && rows.get(3).message().contains("RGB"), rows.get(3).toString());
 		assertTrue(Files.isRegularFile(out.resolve("cell-1-blur.tif")) && Files.isRegularFile(out.resolve("cell-2-blur.tif")));
 		final List<String> summary = Files.readAllLines(out.resolve("summary.csv"));
@@ -60,6 +60,42 @@ class BatchRunnerTest {
 		// A second run never replaces the first one's outputs or summary.
 		BatchRunner.run(recipe, in, out, map);
 		assertTrue(Files.isRegularFile(out.resolve("cell-1-blur-2.tif")) && Files.isRegularFile(out.resolve("summary-2.csv")));
+	}
+
+	/** Issue 13, item 5: two batches into one output folder at once kept 3 files of 6; each must keep its own. */
+	@Test
+	void twoBatchesIntoOneFolderAtOnceKeepEveryFile(@TempDir final Path dir) throws Exception {
+		final Path in = Files.createDirectories(dir.resolve("in")), out = dir.resolve("out");
+		for (int k = 1; k <= 3; k++)
+			assertTrue(new FileSaver(ImageBridge.toImagePlus(SampleScene.cell(16, 16, 4, k).withVoxelSize(VoxelSize.microns(0.08, 0.08, 0.2)), "c" + k))
+					.saveAsTiff(in.resolve("c" + k + ".tif").toString()));
+		final Path psf = dir.resolve("psf.tif");
+		assertTrue(new FileSaver(ImageBridge.toImagePlus(SampleScene.gaussianPsf(3, 3, 3), "psf.tif")).saveAsTiff(psf.toString()));
+		final Path map = Files.writeString(dir.resolve("map.csv"), "*.tif,psf.tif\n");
+		final Path recipe = Files.writeString(dir.resolve("blur.ijm"), "run(\"Convolve with PSF...\", \"image=[\" + inputTitle + \"] psf=[\" + psfTitle"
+				+ " + \"] boundary=zero normalize background=0 photons=0 seed=1 offset=0\");\n");
+		final java.util.concurrent.CyclicBarrier start = new java.util.concurrent.CyclicBarrier(2);
+		final java.util.concurrent.ExecutorService pool = java.util.concurrent.Executors.newFixedThreadPool(2);
+		try {
+			final java.util.concurrent.Callable<List<BatchRunner.Row>> batch = () -> {
+				start.await();
+				return BatchRunner.run(recipe, in, out, map);
+			};
+			final var a = pool.submit(batch);
+			final var b = pool.submit(batch);
+			assertTrue(a.get().stream().allMatch(BatchRunner.Row::ok) && b.get().stream().allMatch(BatchRunner.Row::ok));
+			final java.util.Set<String> names = new java.util.TreeSet<>();
+			for (final var r : a.get()) names.add(r.output());
+			for (final var r : b.get()) names.add(r.output());
+			assertEquals(6, names.size(), "six distinct outputs: " + names);
+		} finally {
+			pool.shutdown();
+		}
+		try (var s = Files.list(out)) {
+			final List<String> files = s.map(p -> p.getFileName().toString()).sorted().toList();
+			assertEquals(8, files.size(), "six outputs and two summaries, nothing hidden left: " + files);
+			assertTrue(files.contains("summary.csv") && files.contains("summary-2.csv"), files.toString());
+		}
 	}
 
 	@Test

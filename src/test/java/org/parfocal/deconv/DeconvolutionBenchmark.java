@@ -83,7 +83,8 @@ public final class DeconvolutionBenchmark {
 			final double[] b = FftwBound.fourTransforms(p[0], p[1], p[2], threads, true);
 			if (b == null) break;
 			bound[threads] = b[1];
-			System.out.printf(Locale.ROOT, "  FFTW bound, %d thread(s): 4 whole-volume transforms %.3f s (FFTW_MEASURE planning %.1f s)%n", threads, b[1], b[0]);
+			System.out.printf(Locale.ROOT, "  FFTW bound, %d thread(s): 4 whole-volume transforms %.3f s%s (FFTW_MEASURE planning %.1f s)%n", threads, b[1],
+					threads == 1 ? String.format(Locale.ROOT, ", CPU time %.3f s", b[2]) : "", b[0]);
 			System.out.printf(Locale.ROOT, "RESULT %d fftw_bound_%d %.5f%n", n[0], threads, b[1]);
 		}
 		final String old = System.getProperty(FftBackend.PROPERTY);

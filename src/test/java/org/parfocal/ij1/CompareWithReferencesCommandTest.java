@@ -127,10 +127,10 @@ class CompareWithReferencesCommandTest {
 			final ReferenceComparison.Row row = core.rows().get(k);
 			assertEquals(row.property(), t.getStringValue("property", k));
 			assertEquals(row.distance(), t.getValue("value", k), 1e-12 * row.distance(), row.property());
-			assertEquals(row.low(), t.getValue("low", k), 1e-12);
-			assertEquals(row.floor(), t.getValue("floor", k), 1e-12);
-			assertEquals(row.baseline(), t.getValue("baseline", k), 1e-12);
-			assertEquals(row.gapClosed(), t.getValue("gap_closed", k), 1e-9);
+			assertEquals(row.low(), t.getValue(CompareWithReferences.LOW, k), 1e-12);
+			assertEquals(row.floor(), t.getValue(CompareWithReferences.FLOOR, k), 1e-12);
+			assertEquals(row.baseline(), t.getValue(CompareWithReferences.BASELINE, k), 1e-12);
+			assertEquals(row.gapClosed(), t.getValue(CompareWithReferences.GAP, k), 1e-9);
 		}
 		final ReblurConsistency.Result chi = new QualityWatch(null,
 				QualityWatch.Consistency.forDeconvolution(ImageBridge.toCore(rec).first(), psf(), false, 100, 5, 1, 0), 1, false, VOXEL)

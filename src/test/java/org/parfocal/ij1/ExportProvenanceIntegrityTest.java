@@ -184,7 +184,7 @@ class ExportProvenanceIntegrityTest {
 	@Test
 	void sampleWorkflowExportsAndRebuilds() throws Exception {
 		Interpreter.batchMode = true;
-		final java.util.List<ImagePlus> samples = ImageJHarness.run(null, "Make Sample Stacks...", "").created();
+		final java.util.List<ImagePlus> samples = ImageJHarness.run(null, "Make Sample Stacks", "").created();
 		for (final ImagePlus s : samples) Interpreter.addBatchModeImage(s);
 		final ImagePlus rec = samples.stream().filter(s -> s.getTitle().equals("quillwort-widefield.tif")).findFirst().orElseThrow();
 		final ImagePlus out = ImageJHarness.run(rec, "Deconvolve...", "image=quillwort-widefield.tif psf=quillwort-psf.tif method=richardson-lucy "
@@ -193,7 +193,7 @@ class ExportProvenanceIntegrityTest {
 		final Path macro = dir.resolve("sample-rebuild.ijm");
 		ImageJHarness.run(out, "Export Provenance as Macro...", "macro=[" + macro + "]");
 		final String text = Files.readString(macro);
-		assertTrue(text.contains("run(\"Make Sample Stacks...\");"), text);
+		assertTrue(text.contains("run(\"Make Sample Stacks\");"), text);
 		final Path rebuilt = dir.resolve("rebuilt.tif");
 		final ImageJHarness.HeadlessRun run = ImageJHarness.runHeadlessJvm(macro, rebuilt.toString());
 		assertEquals(0, run.exitCode(), run.stderr() + run.stdout());

@@ -57,12 +57,23 @@ class PsfFromOpticsCommandTest {
 		assertEquals(Fwhm.lateral(core), ((Number) p.run().get("fwhm_x_um")).doubleValue(), 1e-12);
 	}
 
+	/** Issue 17: a widefield run recorded excitation=0 and sheet_thickness=0 where the dialog showed 0.488 and 2. */
+	@Test
+	void theRecordKeepsWhatWasEnteredAndSaysWhichFieldsTheModalityIgnored() {
+		final var p = Provenance.of(ImageJHarness.run(null, CMD, OPTIONS).onlyCreated()).orElseThrow();
+		assertEquals("0.488", p.options().get("excitation"));
+		assertEquals("2", p.options().get("sheet_thickness"));
+		final String ignored = String.valueOf(p.run().get("ignored"));
+		assertTrue(ignored.contains("excitation") && ignored.contains("sheet_thickness") && ignored.contains("immersion_index_design"), ignored);
+		assertTrue(ignored.contains("born-wolf widefield"), ignored);
+	}
+
 	@Test
 	void undersamplingIsReportedWithTheNumbers() {
 		final String coarse = OPTIONS.replace("voxel_xy=0.08", "voxel_xy=0.2");
 		final ImageJHarness.Result r = ImageJHarness.run(null, CMD, coarse);
 		assertTrue(String.join("\n", r.log()).contains("lateral step 0.2 µm is coarser than Nyquist"), () -> String.join("\n", r.log()));
-		assertTrue(Provenance.of(r.onlyCreated()).orElseThrow().run().get("warning").toString().startsWith("Undersampled"));
+		assertTrue(Provenance.of(r.onlyCreated()).orElseThrow().warnings().get(0).startsWith("Undersampled"));
 	}
 
 	@Test

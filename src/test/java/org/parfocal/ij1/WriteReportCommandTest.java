@@ -31,6 +31,23 @@ class WriteReportCommandTest {
 		ImageJHarness.closeAll();
 	}
 
+	/** Issue 13, item 6: the record of a bin/parfocal-blocks output (inputs by path, no pixel hash) gave a NullPointerException. */
+	@Test
+	void reportOfABlocksRunnerOutput(@TempDir final Path dir) throws Exception {
+		final org.parfocal.core.VoxelSize v = org.parfocal.core.VoxelSize.microns(0.08, 0.08, 0.2);
+		final Path in = dir.resolve("in.tif"), psf = dir.resolve("psf.tif"), out = dir.resolve("out.tif");
+		assertTrue(new ij.io.FileSaver(ImageBridge.toImagePlus(org.parfocal.demo.SampleScene.cell(24, 20, 6, 5).withVoxelSize(v), "in")).saveAsTiffStack(in.toString()));
+		assertTrue(new ij.io.FileSaver(ImageBridge.toImagePlus(org.parfocal.demo.SampleScene.gaussianPsf(5, 5, 3), "psf")).saveAsTiffStack(psf.toString()));
+		org.parfocal.cli.BlockRunner.run(org.parfocal.blocks.Recipe.parse("psf=" + psf + " method=richardson-lucy iterations=2 stop=fixed offset=0 background=0"),
+				in, out, 0, null, org.parfocal.core.Monitor.NONE);
+		final ImagePlus result = ij.IJ.openImage(out.toString());
+		Interpreter.addBatchModeImage(result);
+		final Path html = dir.resolve("blocks-report.html");
+		ImageJHarness.run(result, "Write Report...", "file=[" + html + "]");
+		final String page = Files.readString(html);
+		assertTrue(page.contains("block_plan") && page.contains("psf.tif"), "the plan and the PSF file are in the report");
+	}
+
 	@Test
 	void reportOfADeconvolutionIsOneSelfContainedPageWithEveryParameterAndReadableFigures(@TempDir final Path dir) throws Exception {
 		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
@@ -46,7 +63,14 @@ class WriteReportCommandTest {
 		assertTrue(page.contains("Caution."), "the caution is shown");
 		for (final String key : DeconvolveCommandTest.KEYS.subList(0, DeconvolveCommandTest.KEYS.size() - 1))
 			assertTrue(page.contains("<td>" + key + "</td>"), "parameter " + key);
-		assertTrue(page.contains("PSF FWHM"));
+		assertTrue(page.contains("FWHM ("));
+		// issue 17: warnings come first, the convergence is a figure, projections say their display range and have
+		// scale bars, inputs show their calibration
+		assertTrue(page.indexOf("id=\"warnings\"") > 0 && page.indexOf("id=\"warnings\"") < page.indexOf("What was done"), "warnings at the top");
+		assertTrue(page.contains("alt=\"Convergence: relative change"), "convergence figure");
+		assertTrue(page.contains("display range"), "display ranges");
+		assertTrue(page.contains("log scale (peak to 10⁻³ of it)"), "PSF on a log scale");
+		assertTrue(page.contains("<th>voxel size</th>") && page.contains("0.08 x 0.08 x 0.2 µm"), "input calibration");
 		assertFalse(page.contains("http://") || page.contains("https://") || page.contains("<script"), "self-contained, no scripts");
 		final Matcher m = Pattern.compile("data:image/png;base64,([A-Za-z0-9+/=]+)").matcher(page);
 		int figures = 0;
@@ -54,7 +78,7 @@ class WriteReportCommandTest {
 			assertNotNull(ImageIO.read(new ByteArrayInputStream(Base64.getDecoder().decode(m.group(1)))), "figure " + figures + " is a PNG");
 			figures++;
 		}
-		assertEquals(7, figures, "result XY+XZ, image XY+XZ, PSF XY+XZ, PSF profiles");
+		assertEquals(8, figures, "result XY+XZ, image XY+XZ, PSF XY+XZ (log), PSF profiles, convergence");
 		final ImageJCommandException e = assertThrows(ImageJCommandException.class, () -> ImageJHarness.run(out, "Write Report...", "file=[" + html + "]"));
 		assertTrue(e.getMessage().contains("exists"), e.getMessage());
 	}

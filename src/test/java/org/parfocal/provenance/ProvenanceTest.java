@@ -21,6 +21,19 @@ class ProvenanceTest {
 	}
 
 	@Test
+	void warningsAreOneJsonListAndOlderSingleKeysAreStillRead() {
+		final Provenance p = Provenance.of("Deconvolve", "image=a psf=b").warning("PSF touches its border").warning("").warning("PSF touches its border")
+				.warning("Undersampled").build();
+		// read back with a general JSON parser (Gson's JsonParser), not through our own reader
+		final var list = JsonParser.parseString(p.toJson()).getAsJsonObject().getAsJsonObject("run").getAsJsonArray(Provenance.WARNINGS);
+		assertEquals(2, list.size());
+		assertEquals("Undersampled", list.get(1).getAsString());
+		assertEquals(java.util.List.of("PSF touches its border", "Undersampled"), Provenance.fromJson(p.toJson()).warnings());
+		final Provenance old = Provenance.of("PSF from Beads", "image=a").run("warning1", "few beads").run("warning2", "saturated").run("warning", "x").build();
+		assertEquals(java.util.List.of("few beads", "saturated", "x"), old.warnings());
+	}
+
+	@Test
 	void jsonParsesWithAGeneralJsonParserAndHoldsEveryOption() {
 		final Provenance p = sample();
 		final JsonObject o = JsonParser.parseString(p.toJson()).getAsJsonObject();

@@ -453,10 +453,11 @@ public final class SparkRunner {
 			throw new IllegalArgumentException("A Zarr input is written to a .zarr output in Spark blocks mode: name the output *.zarr");
 		if (Files.exists(out)) throw new IllegalArgumentException("Output " + output + " exists: choose a new name (outputs are never replaced)");
 		final TaskSettings s = resolved(sc, settings);
-		final ZarrBlockRunner.Layout l = ZarrBlockRunner.layout(in);
-		final List<Volume> psfs = ZarrBlockRunner.psfs(recipe, psfFiles, l);
-		final List<BlockPlan> plans = new ArrayList<>();
-		for (final Volume h : psfs) plans.add(ZarrBlockRunner.plan(l, h, recipe, s.tile() != null ? 0 : driverBudget(sc, s), s.tile()));
+		final ZarrBlockRunner.Layout li = ZarrBlockRunner.layout(in);
+		final List<Volume> psfs = ZarrBlockRunner.psfs(recipe, psfFiles, li);
+		final ZarrBlockRunner.Plans pl = ZarrBlockRunner.plans(li, psfs, recipe, s.tile() != null ? 0 : driverBudget(sc, s), s.tile());
+		final ZarrBlockRunner.Layout l = pl.output();
+		final List<BlockPlan> plans = pl.plans();
 		final List<BlockDeconvolution.Levels> levels = new ArrayList<>();
 		final long lv = System.nanoTime();
 		for (int t = 0; t < l.frames(); t++)

@@ -1,0 +1,294 @@
+package org.parfocal.ij1;
+
+import java.util.ArrayList;
+import java.util.List;
+
+/**
+ * The Help text of every Parfocal dialog: what each field means, its unit and its macro key, as HTML.
+ * ImageJ 1.54's {@code GenericDialog.addHelp} opens a text that starts with {@code <html>} in its own HTML
+ * window and treats any other text as a web address, so every text here starts with {@code <html>}.
+ * ImageJ renders it with Swing's HTML 3.2 viewer: plain tables and inline styles only.
+ */
+final class DialogHelp {
+
+	private DialogHelp() {}
+
+	/** One field: its label as shown, its macro key, its unit ("" when it has none) and what it means. */
+	record Field(String label, String key, String unit, String meaning) {}
+
+	/** A help page: title, a short introduction, fields in dialog order, and optional closing notes. */
+	static final class Page {
+		private final String title, intro;
+		private final List<Object> rows = new ArrayList<>();
+		private final List<String> notes = new ArrayList<>();
+
+		Page(final String title, final String intro) {
+			this.title = title;
+			this.intro = intro;
+		}
+
+		Page field(final String label, final String key, final String unit, final String meaning) {
+			rows.add(new Field(label, key, unit, meaning));
+			return this;
+		}
+
+		/** A group heading, as the dialog's own headings. */
+		Page group(final String heading) {
+			rows.add(heading);
+			return this;
+		}
+
+		Page note(final String html) {
+			notes.add(html);
+			return this;
+		}
+
+		List<Field> fields() {
+			return rows.stream().filter(Field.class::isInstance).map(Field.class::cast).toList();
+		}
+
+		String html() {
+			final StringBuilder h = new StringBuilder("<html><body style=\"font-family:sans-serif;font-size:11pt\"><h2>").append(title).append("</h2>");
+			h.append("<p>").append(intro).append("</p>");
+			h.append("<table border=\"1\" cellpadding=\"3\" cellspacing=\"0\"><tr bgcolor=\"#e8e8e8\"><th>field</th><th>macro key</th><th>unit</th><th>what it means</th></tr>");
+			for (final Object r : rows) {
+				if (r instanceof Field f)
+					h.append("<tr><td>").append(f.label()).append("</td><td><code>").append(f.key()).append("</code></td><td>")
+							.append(f.unit().isEmpty() ? "&nbsp;" : f.unit()).append("</td><td>").append(f.meaning()).append("</td></tr>");
+				else h.append("<tr bgcolor=\"#f4f4f4\"><td colspan=\"4\"><b>").append(r).append("</b></td></tr>");
+			}
+			h.append("</table>");
+			for (final String n : notes) h.append("<p>").append(n).append("</p>");
+			h.append("<p><i>Checkboxes are recorded as the bare key when ticked (e.g. <code>plot</code>) and left out when not. "
+					+ "Deconvolved intensities are estimates and can show artefacts that look like structure.</i></p>");
+			return h.append("</body></html>").toString();
+		}
+	}
+
+	private static final String LEVEL = "a number, <code>auto</code> (estimated from the data) or 0 (none)";
+
+	static Page convolve() {
+		return new Page("Convolve with PSF", "Simulates a recording of an object: the object is blurred with the PSF, a background is "
+				+ "added, then Poisson (shot) noise, then a camera offset. The result is a new 32-bit image; the inputs are not changed.")
+				.field("Image", "image", "", "the object (a sharp image or a simulated scene)")
+				.field("PSF", "psf", "", "the point spread function; its centre voxel is at (k&minus;1)/2 along each axis")
+				.field("Boundary", "boundary", "", "how the object continues past its edges while blurring: <code>zero</code>, "
+						+ "<code>mirror</code> (reflected) or <code>periodic</code> (wrapped)")
+				.field("Normalize PSF to unit sum", "normalize", "", "divide the PSF by its sum so blurring keeps the total intensity")
+				.field("Background", "background", "intensity units", "constant added after blurring (out-of-focus haze, autofluorescence)")
+				.field("Photons per unit", "photons", "photons per intensity unit", "noise level: each voxel's mean is scaled to photons, drawn "
+						+ "from a Poisson law and scaled back; 0 = no noise")
+				.field("Seed", "seed", "", "seed of the noise: the same seed gives the same noise")
+				.field("Offset", "offset", "intensity units", "camera offset added at the end, without noise")
+				.field("Recentre the PSF", "recentre", "", "shift the PSF so its centre of mass sits on the centre voxel before blurring");
+	}
+
+	static Page psfFromOptics(final boolean withProfiles) {
+		final Page p = new Page("PSF from Optics", "Computes a PSF from the objective, the sample and the light. The result is a 32-bit stack "
+				+ "with unit sum, its emitter at the centre voxel, calibrated in &micro;m. Fields a model or modality does not use are "
+				+ "ignored (and the record says so).")
+				.field("Model", "model", "", "<code>gaussian</code>: Gaussian fit to the widefield/confocal PSF (Zhang et al., Appl. Opt. 2007); "
+						+ "<code>born-wolf</code>: scalar diffraction, in focus in a matched sample; <code>gibson-lanni</code>: scalar, with the "
+						+ "aberration of a sample or coverslip that differs from what the objective was made for, growing with depth "
+						+ "(Gibson &amp; Lanni, J. Opt. Soc. Am. A 1991); <code>richards-wolf</code>: vectorial, for high NA (Richards &amp; Wolf, "
+						+ "Proc. R. Soc. A 1959)")
+				.field("Modality", "modality", "", "<code>widefield</code>, <code>confocal</code> (pinhole), <code>two-photon</code> "
+						+ "(excitation only) or <code>light-sheet</code> (sheet thickness)")
+				.group("Objective and sample")
+				.field("NA", "na", "", "numerical aperture of the objective; below the immersion index")
+				.field("Immersion_index", "immersion_index", "", "refractive index of the immersion medium actually used (oil 1.518, water 1.333, glycerol 1.47)")
+				.field("Sample_index", "sample_index", "", "refractive index of the sample around the emitters")
+				.field("Coverslip_index", "coverslip_index", "", "refractive index of the coverslip used")
+				.field("Coverslip_thickness", "coverslip_thickness", "&micro;m", "thickness of the coverslip used (No. 1.5: 170)")
+				.field("Depth", "depth", "&micro;m", "depth of the emitters below the coverslip (Gibson &amp; Lanni, Richards &amp; Wolf)")
+				.group("What the objective is corrected for (Gibson &amp; Lanni only)")
+				.field("Immersion_index_design", "immersion_index_design", "", "immersion index the objective is corrected for (printed on it)")
+				.field("Coverslip_index_design", "coverslip_index_design", "", "coverslip index the objective is corrected for")
+				.field("Coverslip_thickness_design", "coverslip_thickness_design", "&micro;m", "coverslip thickness the objective is corrected for (on the barrel)")
+				.field("Working_distance", "working_distance", "&micro;m", "free working distance of the objective")
+				.group("Light")
+				.field("Emission", "emission", "&micro;m", "emission wavelength (e.g. 0.52 for a green dye)")
+				.field("Excitation", "excitation", "&micro;m", "excitation wavelength; used by confocal and two-photon only")
+				.field("Pinhole", "pinhole", "Airy units", "pinhole diameter; used by confocal only")
+				.field("Sheet_thickness", "sheet_thickness", "&micro;m (FWHM)", "thickness of the light sheet; used by light-sheet only")
+				.group("Sampling")
+				.field("Voxel_xy", "voxel_xy", "&micro;m", "lateral voxel size of the stack to be deconvolved (taken from the current image)")
+				.field("Voxel_z", "voxel_z", "&micro;m", "axial step of the stack")
+				.field("Size_xy", "size_xy", "voxels (odd)", "PSF width; 0 = enough for the model's rings (from the optics)")
+				.field("Size_z", "size_z", "voxels (odd)", "PSF depth; 0 = from the optics");
+		if (withProfiles) p.field("Show_profiles and FWHM table", "show_profiles", "", "also show a plot of the lateral and axial profiles and a table of FWHM");
+		return p.note("A warning is given (and recorded) when the voxel size is coarser than the Nyquist step &lambda;/(4&middot;NA) laterally.");
+	}
+
+	static Page beads() {
+		return new Page("PSF from Beads", "Measures the PSF from a recording of sub-resolution fluorescent beads: finds the beads, fits "
+				+ "each with a Gaussian to locate it below a voxel, rejects the unusable ones (with the reason in the table and in the image's "
+				+ "overlay), aligns the rest by Fourier shifts, removes the background and averages them. The input's pixels are not changed.")
+				.field("Image", "image", "", "the bead recording (a calibrated stack)")
+				.group("PSF box and beads")
+				.field("Box_xy", "box_xy", "&micro;m", "width of the box cut around each bead; 0 = from the optics below (needs Optics)")
+				.field("Box_z", "box_z", "&micro;m", "depth of the box; 0 = from the optics (or a 2D image)")
+				.field("Bead_diameter", "bead_diameter", "&micro;m", "diameter of the beads; beads larger than the PSF are noted; 0 = unknown")
+				.group("Detection and rejection")
+				.field("Threshold", "threshold", "&times; noise", "a bead is a local maximum this many robust noise levels above the background")
+				.field("Reject_saturated", "reject_saturated", "", "reject beads whose peak reaches the maximum of the bit depth")
+				.field("Outlier_z", "outlier_z", "robust z-score", "reject beads whose fitted width or brightness lies this far from the others' median; 0 = off")
+				.field("Background", "background", "", "<code>stack</code>: one level for the stack; <code>border</code>: per bead, from the border of its box")
+				.field("Averaging", "averaging", "", "<code>mean</code> or <code>median</code> of the aligned beads (the median resists a stray bead)")
+				.field("Symmetrize radially", "symmetrize", "", "average the result around the optical axis")
+				.field("Voxel_xy", "voxel_xy", "&micro;m", "lateral voxel size; 0 = from the image's calibration")
+				.field("Voxel_z", "voxel_z", "&micro;m", "axial step; 0 = from the image's calibration")
+				.group("Optics for comparison (optional; also sizes the box when it is 0)")
+				.field("Optics", "optics", "", "a PSF model to compare the measured FWHM with, or <code>none</code>; the fields below are ignored with none")
+				.field("Modality", "modality", "", "as in PSF from Optics")
+				.field("NA", "na", "", "numerical aperture")
+				.field("Immersion_index", "immersion_index", "", "immersion medium index")
+				.field("Sample_index", "sample_index", "", "sample (mounting medium) index")
+				.field("Depth", "depth", "&micro;m", "depth of the beads below the coverslip")
+				.field("Emission", "emission", "&micro;m", "emission wavelength")
+				.field("Excitation", "excitation", "&micro;m", "excitation wavelength (confocal, two-photon only)")
+				.field("Pinhole", "pinhole", "Airy units", "pinhole diameter (confocal only)")
+				.field("Sheet_thickness", "sheet_thickness", "&micro;m (FWHM)", "light-sheet thickness (light-sheet only)");
+	}
+
+	private static Page levels(final Page p) {
+		return p.field("Offset", "offset", "intensity units", "camera offset subtracted first: " + LEVEL + "; auto = the 0.1 % quantile")
+				.field("Background", "background", "intensity units", "constant b in the image model H&middot;x + b: " + LEVEL
+						+ "; auto = sigma-clipped median after the offset");
+	}
+
+	static Page deconvolve() {
+		final Page p = new Page("Deconvolve", "Removes blur from every channel and time point of a stack with a known PSF. The result is a new "
+				+ "calibrated 32-bit image with its provenance in Image &gt; Show Info; Esc cancels and nothing is made. "
+				+ "The result is an estimate: check it against controls before you measure.")
+				.field("Image", "image", "", "the recording (widefield, confocal or light-sheet stack; RGB is refused)")
+				.field("PSF", "psf", "", "an open PSF (one for all channels, or one channel per image channel), or <code>from_optics</code> "
+						+ "to compute it from the optics in the next dialog")
+				.field("Method", "method", "", "<code>richardson-lucy</code> (Richardson 1972, Lucy 1974); <code>richardson-lucy-tv</code> with "
+						+ "total variation against noise (Dey et al., Microsc. Res. Tech. 2006); <code>accelerated-richardson-lucy</code> "
+						+ "(Biggs &amp; Andrews, Appl. Opt. 1997); <code>wiener</code>: one-step linear filter")
+				.field("Iterations", "iterations", "", "number of iterations; with Stop = relative-change, the most it may run")
+				.field("Regularization", "regularization", "", "weight of total variation (richardson-lucy-tv) or of the Wiener filter; "
+						+ "ignored by the other methods. Larger = smoother")
+				.field("Stop", "stop", "", "<code>fixed</code>: run all iterations; <code>relative-change</code>: stop when the iterate changes less than Threshold")
+				.field("Threshold", "threshold", "relative change", "relative change between two iterates below which the run stops (with relative-change only)")
+				.field("Edges", "edges", "", "what lies past the stack's edges: " + EDGES);
+		return levels(p).field("Plot convergence", "plot", "", "show the relative change per iteration")
+				.field("Watch quality", "watch", "", "every few iterations, compare the iterate with sharp references and the data (next dialog)")
+				.field("Recentre the PSF", "recentre", "", "shift an open PSF so its centre of mass sits on the centre voxel (a PSF off centre shifts the result)")
+				.note("With <code>psf=from_optics</code> the keys of PSF from Optics follow (see its Help).");
+	}
+
+	/** Words of the edge modes, shared by Deconvolve and Blind Deconvolve. */
+	static final String EDGES = "<code>extended</code> (default; the old value <code>non-circulant</code> still works): the object is estimated "
+			+ "on a domain larger than the stack, so light from just outside the field is accounted for and the edges do not ring "
+			+ "(Bertero &amp; Boccacci, Astron. Astrophys. 2005); <code>periodic</code>: the stack repeats itself (fast, rings at real edges); "
+			+ "<code>zero</code>: nothing outside (for comparison with other software)";
+
+	static Page watch() {
+		return new Page("Watch quality", "Every few iterations the iterate is compared with sharp reference images of the same kind of "
+				+ "structure (a sliced Wasserstein distance between patches) and re-blurred against the data (chi-square). The suggested "
+				+ "iteration is the one closest to the references; without references, the last whose chi-square is still at least 1 "
+				+ "(Morozov's discrepancy principle). Treat it as a region to inspect, not an exact answer.")
+				.field("Every", "every", "iterations", "evaluate every this many iterations")
+				.field("Reference_folder", "reference_folder", "folder", "folder whose .tif/.tiff files are the sharp references; may be empty "
+						+ "(formerly <code>references</code>)")
+				.field("Reference_images", "reference_images", "title pattern", "open images whose title matches (* and ? wildcards); may be empty "
+						+ "(formerly <code>open_references</code>)")
+				.field("Photons", "photons", "photons per intensity unit", "noise model of the chi-square (1 = the data are photon counts)")
+				.field("Read_noise", "read_noise", "intensity units (&sigma;)", "camera read noise")
+				.field("Stop_at_suggestion", "stop_at_suggestion", "", "return the suggested iterate instead of the last one (kept in memory during the run)")
+				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when the references' calibration is missing or differs");
+	}
+
+	static Page blind() {
+		final Page p = new Page("Blind Deconvolve", "Estimates the object and the PSF together, alternating Richardson&ndash;Lucy updates of "
+				+ "each, with total variation. The PSF stays non-negative, sums to 1 and lives inside a support box; optional constraints "
+				+ "below. Outputs: the deblurred image, the final PSF, and the PSF history (one frame per snapshot) with a table and plot of "
+				+ "its FWHM and its distance to the start.")
+				.field("Image", "image", "", "the recording")
+				.field("PSF", "psf", "", "the starting estimate: an open PSF, <code>from_optics</code> (next dialog) or <code>gaussian</code> (the two widths below)")
+				.field("FWHM_xy", "fwhm_xy", "&micro;m", "lateral full width at half maximum of a gaussian start (ignored otherwise)")
+				.field("FWHM_z", "fwhm_z", "&micro;m", "axial FWHM of a gaussian start (ignored otherwise)")
+				.group("Schedule")
+				.field("Iterations", "iterations", "", "outer iterations (each updates the object, then the PSF)")
+				.field("Object_updates", "object_updates", "", "object updates per outer iteration")
+				.field("PSF_updates", "psf_updates", "", "PSF updates per outer iteration; 0 keeps the PSF fixed")
+				.field("Object_TV", "object_tv", "", "total-variation weight of the object (against noise)")
+				.field("PSF_TV", "psf_tv", "", "total-variation weight of the PSF (0 = none)")
+				.group("PSF constraints")
+				.field("Band_limit", "band_limit", "", "remove PSF frequencies above the widefield cutoff 2&middot;NA/&lambda; (asks for NA, "
+						+ "immersion index and emission unless the start is from_optics)")
+				.field("Symmetric", "symmetric", "", "keep the PSF cylindrically symmetric about the optical axis")
+				.field("Centring", "centring", "", "keep the PSF's centre of mass where the start had it")
+				.field("Support_xy", "support_xy", "Support_units", "width of the box the PSF lives in; 0 = automatic (the start's extent)")
+				.field("Support_z", "support_z", "Support_units", "depth of the box; 0 = automatic")
+				.field("Support_units", "support_units", "", "<code>voxels</code> (odd sizes) or <code>microns</code>")
+				.group("Output and data")
+				.field("Snapshot_interval", "snapshot_interval", "iterations", "iterations between frames of the PSF history")
+				.field("Edges", "edges", "", EDGES);
+		return levels(p).field("Watch quality", "watch", "", "the watch dialog of Deconvolve, on the object with the current PSF estimate");
+	}
+
+	static Page band() {
+		return new Page("Optics for the band limit", "The band limit removes PSF frequencies above 2&middot;NA/&lambda;, which no objective "
+				+ "transmits. Defaults come from the image's or PSF's record when they have one.")
+				.field("NA", "na", "", "numerical aperture of the objective")
+				.field("Immersion_index", "immersion_index", "", "immersion medium index (oil 1.518, water 1.333)")
+				.field("Emission", "emission", "&micro;m", "emission wavelength");
+	}
+
+	static Page compare() {
+		return new Page("Compare with Sharp References", "Judges a result against sharp reference images that show the same kind of "
+				+ "structure but not the same cells (unmatched): a sliced Wasserstein distance between small patches, and 1D distances "
+				+ "between the distributions of intensity, gradient magnitude and Laplacian. Smaller is closer. With the blurred input and "
+				+ "the PSF it also re-blurs the result and compares with the data.")
+				.field("Result", "result", "", "the image to judge")
+				.field("Reference_folder", "reference_folder", "folder", "folder of sharp reference .tif/.tiff files; may be empty "
+						+ "(formerly <code>references</code>)")
+				.field("Reference_images", "reference_images", "title pattern", "open images whose title matches (* and ? wildcards) "
+						+ "(formerly <code>open_references</code>)")
+				.field("Input", "input", "", "the blurred recording the result came from, or <code>none</code>")
+				.field("PSF", "psf", "", "the PSF used, or <code>none</code>; with Input: the re-blur chi-square and whiteness")
+				.field("Offset", "offset", "intensity units", "camera offset of the input: " + LEVEL)
+				.field("Background", "background", "intensity units", "background of the input: " + LEVEL)
+				.field("Photons", "photons", "photons per intensity unit", "noise model of the input (1 = photon counts)")
+				.field("Read_noise", "read_noise", "intensity units (&sigma;)", "camera read noise of the input")
+				.field("Patch_size", "patch_size", "voxels", "edge of the cubic (or square) patches compared")
+				.field("Patches", "patches", "", "patches sampled from each side")
+				.field("Bootstrap", "bootstrap", "resamples", "resamples for the intervals; 0 = no intervals")
+				.field("Seed", "seed", "", "seed of the sampling (same seed, same figures)")
+				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when calibrations are missing or differ")
+				.note("<b>The table's columns.</b> <i>value</i>: the distance to the references (smaller is closer; for the re-blur rows, "
+						+ "the chi-square, about 1 when the result explains the data down to the noise, and the whiteness of the residual); "
+						+ "<i>95% low / 95% high</i>: the bootstrap interval of the distance; <i>noise floor</i>: the distance between two halves "
+						+ "of the references themselves, about the smallest a result can reach; <i>blurred input</i>: the same distance for the "
+						+ "blurred input; <i>gap closed</i>: (blurred input &minus; value) / (blurred input &minus; noise floor), the fraction of the "
+						+ "way from the input to the references' own spread (1 = all the way, 0 = no better than the input, below 0 = worse); "
+						+ "<i>why no gap</i>: why gap closed is blank (no input given, or the input is already within the noise floor, so there "
+						+ "is no gap to close).")
+				.note("<b>The plot.</b> Quantile curves of intensity and gradient magnitude: the references as wide light bands, the "
+						+ "result as a dark line on top; where they overlap the result matches the references' distribution.");
+	}
+
+	static Page export() {
+		return new Page("Export Provenance as Macro", "Writes an ImageJ macro (.ijm) that rebuilds the current image from its inputs by "
+				+ "replaying the recorded chain of Parfocal commands.")
+				.field("Macro", "macro", "file", "the .ijm file to write")
+				.field("Replace an existing file", "replace", "", "overwrite a file of that name (otherwise it is refused)");
+	}
+
+	static Page options() {
+		return new Page("Parfocal Options", "Settings for every Parfocal command, kept in ImageJ's preferences.")
+				.field("FFT_library", "fft_library", "", "<code>auto</code> (FFTW when installed, else JTransforms), <code>fftw</code> or "
+						+ "<code>java</code> (JTransforms, pure Java); the results agree within rounding");
+	}
+
+	static Page report() {
+		return new Page("Write Report", "Writes one self-contained HTML page about the current image's run: warnings first, then what was "
+				+ "done, every parameter, the inputs with their calibration and SHA-256, projections with scale bars and display ranges, "
+				+ "PSF views and profiles, convergence and watch curves. It opens in any browser and can be archived with the data.")
+				.field("File", "file", "file", "the .html file to write (default: beside the image)")
+				.field("Replace an existing report", "replace", "", "overwrite a file of that name (otherwise it is refused)");
+	}
+}
