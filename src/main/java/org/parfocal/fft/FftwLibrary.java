@@ -108,7 +108,7 @@ final class FftwLibrary {
 	/** Seconds spent in FFTW's planner in this process so far. */
 	static synchronized double planningSeconds() { return planningSeconds; }
 
-	/** A native work buffer of {@code floats} floats, 64-byte aligned. */
+	/** A native work buffer of {@code length} floats, 64-byte aligned (so every buffer of a size has the alignment its plans were made with). */
 	static final class Buffer {
 		final FloatPointer pointer;
 		final FloatBuffer floats;
@@ -122,11 +122,6 @@ final class FftwLibrary {
 			this.pointer = raw;
 			this.floats = raw.asByteBuffer().order(ByteOrder.nativeOrder()).asFloatBuffer();
 			this.length = length;
-		}
-
-		/** A pointer {@code offset} floats into the buffer (for plan execution). */
-		FloatPointer at(final long offset) {
-			return new FloatPointer(pointer).position(pointer.position() + offset);
 		}
 	}
 
