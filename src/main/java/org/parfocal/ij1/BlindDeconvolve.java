@@ -143,7 +143,7 @@ public class BlindDeconvolve implements PlugIn {
 		public Options {
 			if (estimate == null) estimate = FREE_FORM;
 			if (!FREE_FORM.equals(estimate) && !MODEL_FIT.equals(estimate) && !MODEL_FIT_REFINED.equals(estimate))
-				throw new IllegalArgumentException("'" + estimate + "' is not a PSF estimate (" + FREE_FORM + ", " + MODEL_FIT + " or " + MODEL_FIT_REFINED + ") (estimate=)");
+				throw new IllegalArgumentException("'" + estimate + "' is not a valid PSF estimate (" + FREE_FORM + ", " + MODEL_FIT + " or " + MODEL_FIT_REFINED + ") (estimate=)");
 			if (!(trustRadius > 0 && trustRadius <= 1))
 				throw new IllegalArgumentException("The trust radius must be above 0 and at most 1, got " + trustRadius + " (trust_radius=)");
 			if (!FREE_FORM.equals(estimate) && !FROM_OPTICS.equals(psf) && !GAUSSIAN.equals(psf))
@@ -240,8 +240,6 @@ public class BlindDeconvolve implements PlugIn {
 		gd.addNumericField("PSF_updates:", Commands.remembered(PREFS + "psf_updates", 1), 0, 6, "per iteration (0: PSF kept)");
 		gd.addNumericField("Object_TV:", Commands.remembered(PREFS + "object_tv", BlindOptions.DEFAULT_OBJECT_TV), 4, 8, "total-variation weight");
 		gd.addNumericField("PSF_TV:", Commands.remembered(PREFS + "psf_tv", 0), 4, 8, "total-variation weight");
-		gd.addChoice("Estimate:", new String[] { FREE_FORM, MODEL_FIT, MODEL_FIT_REFINED }, Commands.remembered(PREFS + "estimate", FREE_FORM));
-		gd.addNumericField("Trust_radius:", Commands.remembered(PREFS + "trust_radius", FitPlan.DEFAULT_TRUST_RADIUS), 3, 6, "largest distance of a refined PSF to the fitted model");
 		gd.addMessage("PSF constraints");
 		gd.addCheckbox("Band_limit (optical cutoff 2 NA / wavelength; widefield)", Commands.remembered(PREFS + "band_limit", true));
 		gd.addCheckbox("Symmetric (cylindrical about the optical axis)", Commands.remembered(PREFS + "symmetric", false));
@@ -255,6 +253,9 @@ public class BlindDeconvolve implements PlugIn {
 		gd.addChoice("Edges:", EdgeMode.keys(), Commands.remembered(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
 		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
 		gd.addStringField("Background:", Commands.remembered(PREFS + "background", "auto"), 8);
+		gd.addMessage("How the PSF is estimated");
+		gd.addChoice("Estimate:", new String[] { FREE_FORM, MODEL_FIT, MODEL_FIT_REFINED }, Commands.remembered(PREFS + "estimate", FREE_FORM));
+		gd.addNumericField("Trust_radius:", Commands.remembered(PREFS + "trust_radius", FitPlan.DEFAULT_TRUST_RADIUS), 3, 6, "largest distance of a refined PSF to the fitted model");
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
 		gd.addHelp(DialogHelp.blind().html());
 		gd.showDialog();
@@ -264,14 +265,14 @@ public class BlindDeconvolve implements PlugIn {
 		final double fwhmXY = Commands.number(gd, "fwhm_xy"), fwhmZ = Commands.number(gd, "fwhm_z");
 		final double iterations = Commands.number(gd, "iterations"), k = Commands.number(gd, "object_updates"), m = Commands.number(gd, "psf_updates");
 		final double objectTv = Commands.number(gd, "object_tv"), psfTv = Commands.number(gd, "psf_tv");
-		final String estimate = Commands.checkChoice("estimate", gd.getNextChoice(), "PSF estimate (" + FREE_FORM + ", " + MODEL_FIT + " or " + MODEL_FIT_REFINED + ")");
-		final double trust = Commands.number(gd, "trust_radius");
 		final boolean band = gd.getNextBoolean(), symmetric = gd.getNextBoolean(), centring = gd.getNextBoolean();
 		final double sxy = Commands.number(gd, "support_xy"), sz = Commands.number(gd, "support_z");
 		final String units = Commands.checkChoice("support_units", gd.getNextChoice(), "support unit (" + VOXELS + " or " + MICRONS + ")");
 		final double snapshot = Commands.number(gd, "snapshot_interval");
 		final EdgeMode edges = EdgeMode.parse(Commands.checkChoice("edges", gd.getNextChoice(), "edge mode"));
 		final String offset = gd.getNextString().trim(), background = gd.getNextString().trim();
+		final String estimate = Commands.checkChoice("estimate", gd.getNextChoice(), "PSF estimate (" + FREE_FORM + ", " + MODEL_FIT + " or " + MODEL_FIT_REFINED + ")");
+		final double trust = Commands.number(gd, "trust_radius");
 		final boolean watch = gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		final Level off = Deconvolve.level("offset", offset), bg = Deconvolve.level("background", background);

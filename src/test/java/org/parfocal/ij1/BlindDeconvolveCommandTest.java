@@ -414,9 +414,11 @@ class BlindDeconvolveCommandTest {
 			ch.get(0).select("cell.tif");
 			ch.get(1).select("gaussian");
 			ch.get(2).select("voxels");
-			ch.get(3).select("non-circulant");
+			ch.get(3).select("extended");
+			ch.get(4).select("free-form");
 			final List<TextField> num = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
-			final String[] values = { "0.3", "0.8", "4", "1", "1", "0.002", "0", "9", "5", "2" };
+			// fwhm_xy fwhm_z iterations object_updates psf_updates object_tv psf_tv support_xy support_z snapshot_interval trust_radius
+			final String[] values = { "0.3", "0.8", "4", "1", "1", "0.002", "0", "9", "5", "2", "0.2" };
 			for (int i = 0; i < values.length; i++) num.get(i).setText(values[i]);
 			final List<Checkbox> box = dialog.getCheckboxes().stream().map(Checkbox.class::cast).toList();
 			box.get(0).setState(true); // band limit: a second dialog asks for the optics
