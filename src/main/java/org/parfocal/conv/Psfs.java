@@ -111,6 +111,11 @@ public final class Psfs {
 		final double[] o = centroidOffset(psf);
 		if (o == null) return psf.copy();
 		final int dx = (int) -Math.round(o[0]), dy = (int) -Math.round(o[1]), dz = (int) -Math.round(o[2]);
+		return shifted(psf, dx, dy, dz);
+	}
+
+	/** Copy circularly shifted by whole voxels: the value at (x, y, z) moves to (x + dx, y + dy, z + dz). */
+	private static Volume shifted(final Volume psf, final int dx, final int dy, final int dz) {
 		final Volume out = Volume.zeros(psf.nx(), psf.ny(), psf.nz(), psf.voxelSize());
 		for (int z = 0; z < psf.nz(); z++)
 			for (int y = 0; y < psf.ny(); y++)
@@ -126,12 +131,7 @@ public final class Psfs {
 		for (int i = 1; i < d.length; i++) if (d[i] > d[arg]) arg = i;
 		final int ax = arg % psf.nx(), ay = (arg / psf.nx()) % psf.ny(), az = arg / (psf.nx() * psf.ny());
 		final int dx = (psf.nx() - 1) / 2 - ax, dy = (psf.ny() - 1) / 2 - ay, dz = (psf.nz() - 1) / 2 - az;
-		final Volume out = Volume.zeros(psf.nx(), psf.ny(), psf.nz(), psf.voxelSize());
-		for (int z = 0; z < psf.nz(); z++)
-			for (int y = 0; y < psf.ny(); y++)
-				for (int x = 0; x < psf.nx(); x++)
-					out.set(Math.floorMod(x + dx, psf.nx()), Math.floorMod(y + dy, psf.ny()), Math.floorMod(z + dz, psf.nz()), psf.get(x, y, z));
-		return out;
+		return shifted(psf, dx, dy, dz);
 	}
 
 	/**

@@ -14,36 +14,10 @@ public final class MacroOptions {
 
 	private MacroOptions() {}
 
-	/** Parses an options string; later duplicates win. */
+	/** Parses an options string; later duplicates win. Keys are lower-cased, a flag's value is {@code "true"}. */
 	public static LinkedHashMap<String, String> parse(final String options) {
 		final LinkedHashMap<String, String> map = new LinkedHashMap<>();
-		if (options == null) return map;
-		final String s = options.trim();
-		int i = 0;
-		while (i < s.length()) {
-			while (i < s.length() && Character.isWhitespace(s.charAt(i))) i++;
-			if (i >= s.length()) break;
-			int j = i;
-			while (j < s.length() && s.charAt(j) != '=' && !Character.isWhitespace(s.charAt(j))) j++;
-			final String key = s.substring(i, j).toLowerCase(Locale.ROOT);
-			if (j < s.length() && s.charAt(j) == '=') {
-				j++;
-				if (j < s.length() && s.charAt(j) == '[') {
-					final int close = s.indexOf(']', j);
-					if (close < 0) throw new IllegalArgumentException("Unclosed '[' in macro options after " + key + "=");
-					map.put(key, s.substring(j + 1, close));
-					i = close + 1;
-				} else {
-					int k = j;
-					while (k < s.length() && !Character.isWhitespace(s.charAt(k))) k++;
-					map.put(key, s.substring(j, k));
-					i = k;
-				}
-			} else {
-				map.put(key, "true");
-				i = j;
-			}
-		}
+		for (final Token t : tokens(options)) map.put(t.key().toLowerCase(Locale.ROOT), t.value() == null ? "true" : t.value());
 		return map;
 	}
 
