@@ -420,10 +420,7 @@ public final class SparkRunner {
 		} catch (final IllegalArgumentException | IllegalStateException | OutOfMemoryError e) {
 			return new BlockStatus(index, false, message(e), 0);
 		} catch (final RuntimeException e) {
-			final Throwable c = unwrap(e);
-			if (c instanceof IllegalArgumentException || c instanceof IllegalStateException) return new BlockStatus(index, false, message(c), 0);
-			if (c instanceof IOException io) throw io;
-			throw e;
+			return failedBlock(index, e);
 		}
 	}
 
@@ -564,11 +561,19 @@ public final class SparkRunner {
 		} catch (final IllegalArgumentException | IllegalStateException | OutOfMemoryError e) {
 			return new BlockStatus(index, false, message(e), 0);
 		} catch (final RuntimeException e) {
-			final Throwable x = unwrap(e);
-			if (x instanceof IllegalArgumentException || x instanceof IllegalStateException) return new BlockStatus(index, false, message(x), 0);
-			if (x instanceof IOException io) throw io;
-			throw e;
+			return failedBlock(index, e);
 		}
+	}
+
+	/**
+	 * A block task's failure wrapped by a lambda or a stream: a bad-input cause becomes a failed block with its
+	 * one line, an I/O cause is rethrown (Spark retries the task), anything else propagates.
+	 */
+	private static BlockStatus failedBlock(final int index, final RuntimeException e) throws IOException {
+		final Throwable c = unwrap(e);
+		if (c instanceof IllegalArgumentException || c instanceof IllegalStateException) return new BlockStatus(index, false, message(c), 0);
+		if (c instanceof IOException io) throw io;
+		throw e;
 	}
 
 	/** True the first time (creates the marker). */
