@@ -31,6 +31,37 @@ public final class SparkZarrBench {
 	public static void main(final String[] args) throws Exception {
 		final int iterations = args.length > 0 ? Integer.parseInt(args[0]) : 3;
 		final double factor = args.length > 1 ? Double.parseDouble(args[1]) : 4.0;
+		if (args.length > 2) {
+			run(iterations, factor, new int[] { Integer.parseInt(args[2]) });
+			return;
+		}
+		// Each worker count in its own JVM (same heap, same classpath): a second Spark context in the JVM of the
+		// first inherits its leftovers, so its blocks were planned from a smaller free heap and ran short of it.
+		final double[] secs = new double[3], stages = new double[3];
+		for (final int workers : new int[] { 1, 2 }) {
+			final List<String> cmd = new java.util.ArrayList<>(List.of(Path.of(System.getProperty("java.home"), "bin", "java").toString()));
+			cmd.addAll(java.lang.management.ManagementFactory.getRuntimeMXBean().getInputArguments());
+			cmd.addAll(List.of("-cp", System.getProperty("java.class.path"), SparkZarrBench.class.getName(), args.length > 0 ? args[0] : "3",
+					args.length > 1 ? args[1] : "4", String.valueOf(workers)));
+			final Process p = new ProcessBuilder(cmd).redirectErrorStream(true).start();
+			try (var r = new java.io.BufferedReader(new java.io.InputStreamReader(p.getInputStream(), java.nio.charset.StandardCharsets.UTF_8))) {
+				for (String line; (line = r.readLine()) != null;) {
+					if (line.startsWith("WARN") || line.startsWith("INFO") || line.startsWith("SLF4J")) continue;
+					System.out.println(line);
+					if (line.startsWith("seconds ")) {
+						final String[] f = line.split(" ");
+						secs[workers] = Double.parseDouble(f[1]);
+						stages[workers] = Double.parseDouble(f[2]);
+					}
+				}
+			}
+			if (p.waitFor() != 0) throw new IllegalStateException("local[" + workers + "] run failed (exit " + p.exitValue() + ")");
+		}
+		System.out.printf(Locale.ROOT, "throughput local[2] / local[1] = %.2f (goal >= 1.8); Spark stages alone (without the driver's levels pass) %.2f%n",
+				secs[1] / secs[2], stages[1] / stages[2]);
+	}
+
+	private static void run(final int iterations, final double factor, final int[] workerCounts) throws Exception {
 		final long heap = Runtime.getRuntime().maxMemory();
 		final int nz = 128;
 		final int side = (int) Math.ceil(Math.sqrt(factor * heap / 4.0 / nz) / 16) * 16;
@@ -46,8 +77,7 @@ public final class SparkZarrBench {
 					(double) bytes / heap, heap / 1e6, (System.nanoTime() - g0) / 1e9);
 			final Recipe recipe = Recipe.parse("psf=" + root.resolve("psf.tif") + " method=richardson-lucy iterations=" + iterations
 					+ " regularization=0 stop=fixed edges=non-circulant offset=100 background=2");
-			final double[] secs = new double[3], stages = new double[3];
-			for (final int workers : new int[] { 1, 2 }) {
+			for (final int workers : workerCounts) {
 				try (JavaSparkContext sc = new JavaSparkContext(new SparkConf().setMaster("local[" + workers + "]").setAppName("SparkZarrBench")
 						.set("spark.ui.enabled", "false").set("spark.driver.host", "127.0.0.1").set("spark.driver.bindAddress", "127.0.0.1")
 						.set("spark.testing.memory", String.valueOf(512L << 20)))) {
@@ -56,11 +86,10 @@ public final class SparkZarrBench {
 					final long t0 = System.nanoTime();
 					final SparkRunner.BlocksOutcome o = SparkRunner.runZarrBlocks(sc, recipe, List.of(), in, out, new SparkRunner.Settings(0, null, 1), null);
 					final double s = (System.nanoTime() - t0) / 1e9;
-					secs[workers] = s;
 					final double task = SparkRunner.TASK_NANOS.get(0) / 1e9, read = SparkRunner.TASK_NANOS.get(1) / 1e9,
 							write = SparkRunner.TASK_NANOS.get(2) / 1e9, seams = SparkRunner.TASK_NANOS.get(3) / 1e9,
 							levels = SparkRunner.TASK_NANOS.get(4) / 1e9;
-					stages[workers] = s - levels;
+					System.out.printf(Locale.ROOT, "seconds %.3f %.3f%n", s, s - levels);
 					System.out.printf(Locale.ROOT,
 							"local[%d]: %.1f s (driver's levels pass %.1f s, one reading pass over the input), %.1f MVoxel/s, %s; block tasks %.1f s (reading %.1f%%, writing %.1f%%), seam chunks %.1f s; I/O share of the tasks' time %.1f%%, of the whole run %.1f%%%n",
 							workers, s, levels, side * (double) side * nz / s / 1e6, o.plan(), task, 100 * read / task, 100 * write / task, seams,
@@ -68,8 +97,6 @@ public final class SparkZarrBench {
 					OmeZarr.deleteTree(out);
 				}
 			}
-			System.out.printf(Locale.ROOT, "throughput local[2] / local[1] = %.2f (goal >= 1.8); Spark stages alone (without the driver's levels pass) %.2f%n",
-					secs[1] / secs[2], stages[1] / stages[2]);
 		} finally {
 			OmeZarr.deleteTree(root);
 		}
