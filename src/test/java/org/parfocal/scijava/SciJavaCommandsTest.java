@@ -34,6 +34,8 @@ import org.scijava.Context;
 import org.scijava.command.CommandInfo;
 import org.scijava.command.CommandModule;
 import org.scijava.command.CommandService;
+import org.scijava.script.ScriptModule;
+import org.scijava.script.ScriptService;
 
 /**
  * The SciJava commands through a SciJava {@link Context} and its {@link CommandService} (scijava-common alone, as a
@@ -48,7 +50,7 @@ class SciJavaCommandsTest {
 
 	@BeforeAll
 	static void context() {
-		context = new Context(CommandService.class);
+		context = new Context(CommandService.class, ScriptService.class);
 		commands = context.service(CommandService.class);
 	}
 
@@ -169,6 +171,21 @@ class SciJavaCommandsTest {
 		ImageJHarness.assertSamePixels(made.stream().filter(i -> i.getTitle().equals("cell-blind.tif")).findFirst().orElseThrow(), result, 0);
 		ImageJHarness.assertSamePixels(made.stream().filter(i -> i.getTitle().equals("cell-blind-psf.tif")).findFirst().orElseThrow(), psf, 0);
 		ImageJHarness.assertSamePixels(made.stream().filter(i -> i.getTitle().equals("cell-blind-psf-history.tif")).findFirst().orElseThrow(), history, 0);
+	}
+
+	/** The README's "Scripting from Fiji" example, the file itself, run by SciJava's script service (Groovy). */
+	@Test
+	void theReadmeScriptGivesTheMenuPathsPixels() throws Exception {
+		final java.io.File script = new java.io.File("sample-stacks/deconvolve.groovy");
+		final java.io.File stack = new java.io.File("sample-stacks/quillwort-widefield.tif"), psfFile = new java.io.File("sample-stacks/quillwort-psf.tif");
+		final ScriptModule m = context.service(ScriptService.class).run(script, true, "stack_file", stack, "psf_file", psfFile, "iterations", 3).get();
+		final ImagePlus result = (ImagePlus) m.getOutput("result");
+		assertNotNull(result, "the script's output");
+		final ImagePlus img = ij.IJ.openImage(stack.getPath()), psf = ij.IJ.openImage(psfFile.getPath());
+		ImageJHarness.open(img, psf);
+		final ImagePlus menu = ImageJHarness.run(img, "Deconvolve...", "image=quillwort-widefield.tif psf=quillwort-psf.tif method=richardson-lucy-tv "
+				+ "iterations=3 regularization=0.002").onlyCreated();
+		ImageJHarness.assertSamePixels(menu, result, 0);
 	}
 
 	@Test
