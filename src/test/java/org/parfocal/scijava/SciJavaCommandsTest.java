@@ -21,13 +21,6 @@ import org.junit.jupiter.api.AfterAll;
 import org.junit.jupiter.api.AfterEach;
 import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
-import org.parfocal.conv.Acquisition;
-import org.parfocal.core.Boundary;
-import org.parfocal.core.Monitor;
-import org.parfocal.core.Volume;
-import org.parfocal.core.VoxelSize;
-import org.parfocal.demo.SampleScene;
-import org.parfocal.ij1.ImageBridge;
 import org.parfocal.provenance.CommandKeys;
 import org.parfocal.testing.ImageJHarness;
 import org.scijava.Context;
@@ -44,7 +37,6 @@ import org.scijava.script.ScriptService;
  */
 class SciJavaCommandsTest {
 
-	private static final VoxelSize VOXEL = VoxelSize.microns(0.08, 0.08, 0.2);
 	private static Context context;
 	private static CommandService commands;
 
@@ -105,10 +97,7 @@ class SciJavaCommandsTest {
 	}
 
 	static ImagePlus recorded(final String title) {
-		final Volume truth = SampleScene.cell(40, 36, 10, 7);
-		final Volume y = new Acquisition(SampleScene.gaussianPsf(9, 9, 5), truth.shape(), new Acquisition.Options(Boundary.ZERO, true, 2, 1, 5, 100))
-				.record(truth, Monitor.NONE);
-		return ImageBridge.toImagePlus(y.withVoxelSize(VOXEL), title);
+		return SciJavaTestImages.recorded(title);
 	}
 
 	@Test
