@@ -19,10 +19,10 @@ public class PsfFromBeadsCommand extends MenuCommand {
 	private ImagePlus image;
 
 	@Parameter(min = "0", persist = false)
-	private Integer box_xy = 0;
+	private Double box_xy = 0.0;
 
 	@Parameter(min = "0", persist = false)
-	private Integer box_z = 0;
+	private Double box_z = 0.0;
 
 	@Parameter(min = "0", label = "Bead diameter (µm)", persist = false)
 	private Double bead_diameter = 0.1;
