@@ -18,10 +18,10 @@ public class PsfFromBeadsCommand extends MenuCommand {
 	@Parameter(label = "Bead image", persist = false)
 	private ImagePlus image;
 
-	@Parameter(min = "0", persist = false)
+	@Parameter(min = "0", label = "Box xy (µm; 0 = from the optics)", persist = false)
 	private Double box_xy = 0.0;
 
-	@Parameter(min = "0", persist = false)
+	@Parameter(min = "0", label = "Box z (µm; 0 = a 2D image, or from the optics)", persist = false)
 	private Double box_z = 0.0;
 
 	@Parameter(min = "0", label = "Bead diameter (µm)", persist = false)
