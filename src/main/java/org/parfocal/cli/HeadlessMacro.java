@@ -176,10 +176,11 @@ public final class HeadlessMacro {
 			if (trace != null) error = trace.firstLine();
 		}
 		if (error == null) error = unexpected;
-		// A Parfocal command that failed aborted the macro: its line is the reason. (The interpreter's own message is
-		// then a consequence of the abort, e.g. "';' expected" inside a for loop.)
+		// A Parfocal command (or macro function) that failed aborted the macro: its line is the reason. (The interpreter's
+		// own message is then a consequence of the abort, e.g. "';' expected" inside a for loop; an abort from inside a
+		// call() ends the macro without any message.)
 		final String commandFailure = CommandFailure.take();
-		if (commandFailure != null && (error != null || cancelled)) error = commandFailure;
+		if (commandFailure != null) error = commandFailure;
 		// Convention for batch macros: exit("Error: <why>") ends the macro as a failure (a plain exit() or an
 		// exit with any other message is a normal end). Without a display, exit's message is the last line.
 		if (error == null && cancelled && !log.isEmpty() && log.get(log.size() - 1).startsWith(EXIT_ERROR_PREFIX))

@@ -210,7 +210,7 @@ public class BlindDeconvolve implements PlugIn {
 				}
 			}
 			final Output out = run(o);
-			out.table().show(ConvolveWithPsf.stripExtension(out.history().getTitle()) + " (table)");
+			Tables.show(out.table(), ConvolveWithPsf.stripExtension(out.history().getTitle()) + " (table)");
 			out.plot().show();
 			if (out.quality() != null) out.quality().show();
 			out.history().show();
@@ -379,6 +379,7 @@ public class BlindDeconvolve implements PlugIn {
 		final ImagePlus history = history(r.snapshots(), WindowManager.makeUniqueName(base + "-blind-psf-history.tif"), cal);
 		final String unit = cal != null && cal.scaled() ? cal.getUnits() : "voxels";
 		final ResultsTable table = table(r, unit);
+		Tables.attach(history, table); // kept with the history, saved in its TIFF
 		final Plot plot = plot(r.snapshots(), "PSF convergence of " + base);
 
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);

@@ -101,7 +101,7 @@ public class CompareWithReferences implements PlugIn {
 				}
 			}
 			final Output out = run(o);
-			out.table().show(out.tableTitle());
+			Tables.show(out.table(), out.tableTitle());
 			out.plot().show();
 		});
 	}

@@ -100,8 +100,8 @@ public class PsfFromBeads implements PlugIn {
 			final Options o = showDialog();
 			if (o == null) throw Commands.cancelled();
 			final Result r = run(o);
-			r.beads().show("Beads");
-			r.fwhm().show("Bead PSF FWHM");
+			Tables.show(r.beads(), "Beads");
+			Tables.show(r.fwhm(), "Bead PSF FWHM");
 			r.psf().show(); // last, so that the PSF is the current image for the next macro line
 		});
 	}

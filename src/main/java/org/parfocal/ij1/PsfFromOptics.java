@@ -83,8 +83,8 @@ public class PsfFromOptics implements PlugIn {
 			final Result r = run(o);
 			if (o.showProfiles()) {
 				r.profiles().show();
-				r.table().show("PSF FWHM");
-			}
+				Tables.show(r.table(), "PSF FWHM");
+			} else Tables.keep(r.table(), "PSF FWHM"); // macros read it without the profiles too
 			r.psf().show(); // last, so that the PSF is the current image for the next macro line
 		});
 	}

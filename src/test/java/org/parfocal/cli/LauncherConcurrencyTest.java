@@ -32,11 +32,10 @@ class LauncherConcurrencyTest {
 		final Path bin = Files.createDirectories(root.resolve("bin"));
 		Files.copy(Path.of("bin/parfocal-headless"), bin.resolve("parfocal-headless"));
 		assertTrue(bin.resolve("parfocal-headless").toFile().setExecutable(true));
-		Files.createDirectories(root.resolve("src/main"));
-		Files.createDirectories(root.resolve("plugins-config"));
+		Files.createDirectories(root.resolve("src/main/resources"));
 		Files.writeString(root.resolve("pom.xml"), "<project/>\n");
 		final FileTime old = FileTime.fromMillis(System.currentTimeMillis() - 3_600_000);
-		for (final String p : new String[] { "src/main", "src", "plugins-config", "pom.xml" }) Files.setLastModifiedTime(root.resolve(p), old);
+		for (final String p : new String[] { "src/main/resources", "src/main", "src", "pom.xml" }) Files.setLastModifiedTime(root.resolve(p), old);
 		final Path target = Files.createDirectories(root.resolve("target"));
 		final Path jar = target.resolve("Parfocal_-test.jar");
 		final Path classes = Path.of("target/classes").toAbsolutePath();

@@ -18,8 +18,8 @@ import org.junit.jupiter.api.Test;
  */
 class LayeringTest {
 
-	/** Packages allowed to use ImageJ 1.x and AWT: the plugin layer, the batch entry and the demo writer. */
-	private static final List<String> UI_PACKAGES = List.of("org/parfocal/ij1/", "org/parfocal/cli/", "org/parfocal/demo/");
+	/** Packages allowed to use ImageJ 1.x and AWT: the plugin layers (ImageJ 1.x, SciJava commands), the batch entry and the demo writer. */
+	private static final List<String> UI_PACKAGES = List.of("org/parfocal/ij1/", "org/parfocal/cli/", "org/parfocal/demo/", "org/parfocal/scijava/");
 
 	@Test
 	void coreIsFreeOfImageJAndAwtAndOnlyFftUsesJTransforms() throws IOException {

@@ -35,7 +35,7 @@ class SampleStacksCommandTest {
 
 	private static List<String[]> menu() throws IOException {
 		final List<String[]> entries = new ArrayList<>();
-		for (final String line : Files.readAllLines(Path.of("plugins-config/plugins.config"))) {
+		for (final String line : Files.readAllLines(Path.of("src/main/resources/plugins.config"))) {
 			if (line.startsWith("#") || line.isBlank() || line.contains("\"-\"")) continue;
 			final int q = line.indexOf('"'), q2 = line.indexOf('"', q + 1);
 			entries.add(new String[] { line.substring(q + 1, q2), line.substring(q2 + 1).replace(",", "").trim() });

@@ -1,0 +1,65 @@
+package org.parfocal.scijava;
+
+import ij.ImagePlus;
+
+import java.io.File;
+import java.util.List;
+import java.util.Map;
+
+import org.scijava.ItemIO;
+import org.scijava.command.Command;
+import org.scijava.plugin.Parameter;
+import org.scijava.plugin.Plugin;
+
+/** {@code Compare with Sharp References...} as a SciJava command (typed inputs; same code path as the menu entry, see {@link MenuCommand}). */
+@Plugin(type = Command.class, headless = true, label = "Compare with Sharp References (Parfocal)", name = "parfocal.comparewithreferences")
+public class CompareWithReferencesCommand extends MenuCommand {
+
+	@Parameter(label = "Result", persist = false)
+	private ImagePlus result;
+
+	@Parameter(required = false, style = "directory", persist = false)
+	private File reference_folder;
+
+	@Parameter(description = "title pattern of open reference images", persist = false)
+	private String reference_images = "";
+
+	@Parameter(required = false, label = "Input stack (re-blur check)", persist = false)
+	private ImagePlus input;
+
+	@Parameter(required = false, label = "PSF (re-blur check)", persist = false)
+	private ImagePlus psf;
+
+	@Parameter(description = "auto or a number", persist = false)
+	private String offset = "auto";
+
+	@Parameter(description = "auto or a number", persist = false)
+	private String background = "auto";
+
+	@Parameter(min = "0", persist = false)
+	private Double photons = 1.0;
+
+	@Parameter(min = "0", persist = false)
+	private Double read_noise = 0.0;
+
+	@Parameter(min = "1", persist = false)
+	private Integer patch_size = 7;
+
+	@Parameter(min = "1", persist = false)
+	private Integer patches = 8192;
+
+	@Parameter(min = "0", persist = false)
+	private Integer bootstrap = 50;
+
+	@Parameter(persist = false)
+	private Integer seed = 1;
+
+	@Parameter(persist = false)
+	private boolean ignore_calibration;
+
+	@Override
+	public String menuLabel() {
+		return "Compare with Sharp References...";
+	}
+
+}
