@@ -103,6 +103,7 @@ public class Deconvolve implements PlugIn {
 			return switch (l.kind()) {
 			case ESTIMATED -> "auto";
 			case DARK -> "dark";
+			case FIT -> "fit";
 			case NONE -> "0";
 			default -> MacroOptions.number(l.value());
 			};
@@ -212,7 +213,7 @@ public class Deconvolve implements PlugIn {
 		if (iterations != Math.rint(iterations)) throw new IllegalArgumentException("Iterations must be a whole number, got " + iterations);
 		final DeconvolutionOptions d = new DeconvolutionOptions(method, (int) iterations, regularization, stop,
 				stop == Stopping.RELATIVE_CHANGE ? threshold : threshold > 0 && threshold < 1 ? threshold : 0.001, edges, level("offset", offset),
-				level("background", background));
+				level("background", background, true));
 		PsfFromOptics.Options optics = null;
 		if (FROM_OPTICS.equals(psf)) {
 			optics = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
@@ -268,7 +269,16 @@ public class Deconvolve implements PlugIn {
 
 	/** "auto" = estimated, "0" or "" = none, else a number. */
 	static Level level(final String key, final String text) {
+		return level(key, text, false);
+	}
+
+	/** As {@link #level(String, String)}; with {@code fit}, "fit" = fitted with the object (background only). */
+	static Level level(final String key, final String text, final boolean fit) {
 		if (text.isEmpty() || text.equals("0")) return Level.NONE;
+		if (text.equalsIgnoreCase("fit") && key.equals("background")) {
+			if (fit) return Level.FIT; // fitted with the object inside Richardson–Lucy (BackgroundFit)
+			throw new IllegalArgumentException("background=fit is available in Deconvolve only: give a number, auto or dark");
+		}
 		if (text.equalsIgnoreCase("auto")) return Level.ESTIMATED;
 		if (text.equalsIgnoreCase("dark") && key.equals("background")) return Level.DARK; // the darkest region (background only)
 		try {

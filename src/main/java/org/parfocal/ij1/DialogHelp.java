@@ -152,9 +152,15 @@ final class DialogHelp {
 	}
 
 	private static Page levels(final Page p) {
+		return levels(p, false);
+	}
+
+	private static Page levels(final Page p, final boolean fit) {
 		return p.field("Offset", "offset", "intensity units", "camera offset subtracted first: " + LEVEL + "; auto = the 0.1 % quantile")
 				.field("Background", "background", "intensity units", "constant b in the image model H&middot;x + b: " + LEVEL
-						+ "; auto = sigma-clipped median after the offset");
+						+ "; auto = sigma-clipped median after the offset; <code>dark</code> = the darkest region"
+						+ (fit ? "; <code>fit</code> = fitted with the object inside Richardson&ndash;Lucy (maximum-likelihood EM step, "
+								+ "Shepp &amp; Vardi 1982; the fitted value goes into the Log and the provenance)" : ""));
 	}
 
 	static Page deconvolve() {
@@ -173,7 +179,7 @@ final class DialogHelp {
 				.field("Stop", "stop", "", "<code>fixed</code>: run all iterations; <code>relative-change</code>: stop when the iterate changes less than Threshold")
 				.field("Threshold", "threshold", "relative change", "relative change between two iterates below which the run stops (with relative-change only)")
 				.field("Edges", "edges", "", "what lies past the stack's edges: " + EDGES);
-		return levels(p).field("Plot convergence", "plot", "", "show the relative change per iteration")
+		return levels(p, true).field("Plot convergence", "plot", "", "show the relative change per iteration")
 				.field("Watch quality", "watch", "", "every few iterations, compare the iterate with sharp references and the data (next dialog)")
 				.field("Recentre the PSF", "recentre", "", "shift an open PSF so its centre of mass sits on the centre voxel (a PSF off centre shifts the result)")
 				.note("With <code>psf=from_optics</code> the keys of PSF from Optics follow (see its Help).");

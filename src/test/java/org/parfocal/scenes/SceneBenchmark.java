@@ -106,6 +106,9 @@ public final class SceneBenchmark {
 		COLUMNS.add(column("30 it, b true", (s, r) -> defaultWith(s, r, trueBackground(s))));
 		COLUMNS.add(column("30 it, b 0", (s, r) -> defaultWith(s, r, Level.NONE)));
 		COLUMNS.add(column("30 it, b dark", (s, r) -> defaultWith(s, r, darkBackground(s))));
+		COLUMNS.add(column("30 it, b fit", (s, r) -> defaultWith(s, r, Level.FIT)));
+		COLUMNS.add(column("b fit", (s, r) -> String.format(Locale.ROOT, "%.1f",
+				r.curve(s, options(s, DeconvolutionMethod.RL_TV, 30, 0.002, Level.FIT)).result().background())));
 	}
 
 	public static Column column(final String header, final java.util.function.BiFunction<Scene, SceneRuns, String> cell) {
