@@ -204,7 +204,11 @@ final class DialogHelp {
 				.field("Photons", "photons", "photons per intensity unit", "noise model of the chi-square (1 = the data are photon counts)")
 				.field("Read_noise", "read_noise", "intensity units (&sigma;)", "camera read noise")
 				.field("Stop_at_suggestion", "stop_at_suggestion", "", "return the suggested iterate instead of the last one (kept in memory during the run)")
-				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when the references' calibration is missing or differs");
+				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when the references' calibration is missing or differs")
+				.field("Estimate_noise", "estimate_noise", "", "take the camera gain and read noise of the chi-square from the recording itself "
+						+ "(Poisson&ndash;Gaussian fit of the local variance against the local mean, Foi et al., IEEE TIP 2008) instead of Photons and "
+						+ "Read_noise, which stay the fallback when the fit fails; the values go into the Log and the provenance. Absent from a macro "
+						+ "line: the given values");
 	}
 
 	static Page blind() {
