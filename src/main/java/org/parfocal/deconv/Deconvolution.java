@@ -60,7 +60,7 @@ public final class Deconvolution {
 		if (options.method() == DeconvolutionMethod.WIENER) {
 			final float[] out = new float[d.y().length];
 			mon.progress(0, 1, "Wiener filter");
-			if (options.background().kind() == Level.Kind.FIT)
+			if (options.background().kind() == Level.Kind.FIT || options.background().kind() == Level.Kind.FIT_SMOOTH)
 				notes.add(String.format(Locale.ROOT, "The Wiener filter cannot fit the background: its start, the darkest-region estimate %.4g, was used", d.background()));
 			WienerFilter.apply(p.psf(), n, options.edges(), d.y(), d.background(), options.regularization(), out);
 			mon.checkCancelled();
@@ -75,7 +75,7 @@ public final class Deconvolution {
 			final float[] in = image.data(), yv = d.y();
 			for (int i = 0; i < in.length; i++) if (in[i] == sat.value()) yv[i] = Float.NaN;
 		}
-		final BackgroundFit fit = options.background().kind() == Level.Kind.FIT ? new BackgroundFit(d.background()) : null;
+		final BackgroundFit fit = BackgroundFit.forLevel(options.background(), d.background(), n[0], n[1], n[2], d.y());
 		final RichardsonLucySolver s = new RichardsonLucySolver(p.psf(), n, options.edges(), d.y(), d.background(), options.method(),
 				options.regularization(), initial == null ? null : initial.data(), fit);
 		final List<IterationReport> history = new ArrayList<>();

@@ -89,6 +89,7 @@ public final class Preprocessing {
 			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (darkest region)", background));
 			break;
 		case FIT:
+		case FIT_SMOOTH:
 			background = BackgroundFit.start(y, image.nx(), image.ny(), image.nz());
 			break;
 		default:

@@ -29,8 +29,9 @@ import org.parfocal.fft.RealFft;
  * on the way); t ← Hᵀ t with the window rows as input and the object rows as output, then per object row
  * x ← x · t / Hᵀ1 (change and Σx summed on the way, the new x also written to t for the next iteration).
  * The accelerated method makes its prediction of each object row just before the first convolution
- * transforms it. With a {@link BackgroundFit} the ratio is also summed per window row and b takes its EM step
- * once per iteration, after the object's (both from the same ratio: the joint EM step).
+ * transforms it. With a {@link BackgroundFit} the ratio is also summed per window row (weighted by the
+ * background's hat functions along x when it varies) and b takes its EM step once per iteration, after the
+ * object's (both from the same ratio: the joint EM step).
  * Rows of t outside these boxes are never read, so they are never cleared. Reductions are per row, combined in
  * row order with compensation, so 1 and N threads give identical results.
  * <p>
@@ -56,12 +57,14 @@ final class RichardsonLucySolver {
 	private final RealFft.LineTransfer transfer;
 	private final float[] t, x, invW, y;
 	private final float floor;
-	/** Background of the model Hx + b; changes once per iteration when {@link #fit} is set. */
+	/** Background of the model Hx + b (a fitted one's mean); changes once per iteration when {@link #fit} is set. */
 	private float b;
 	/** The joint background fit, or null (b fixed). */
 	private final BackgroundFit fit;
-	/** Data voxels of the window (saturated ones left out), for the background's EM step. */
-	private final long dataVoxels;
+	/** The fitted background varies over the image (else b is used). */
+	private final boolean varying;
+	/** Nodes of the fit along x (1 without a fit). */
+	private final int gx;
 	private final DeconvolutionMethod method;
 	private final float lambda, eps;
 	/** Accelerated method: the last RL output x_k, and the last RL step g (overwritten in place by the next). */
@@ -104,7 +107,10 @@ final class RichardsonLucySolver {
 		this.t = spectrum; // the spectrum-layout copy is not needed any more: it becomes the working grid
 		w1 = new double[ny * nz];
 		w2 = new double[ny * nz];
-		w3 = new double[ny * nz];
+		this.fit = fit;
+		this.varying = fit != null && !fit.constant();
+		this.gx = fit == null ? 1 : fit.nodesX();
+		w3 = new double[ny * nz * gx];
 		final int rows = my * mz;
 		r1 = new double[rows];
 		r2 = new double[rows];
@@ -116,8 +122,6 @@ final class RichardsonLucySolver {
 		for (final float v : y)
 			if (v == v) { mean += v; used++; }
 		mean /= Math.max(1, used);
-		this.fit = fit;
-		this.dataVoxels = used;
 		this.b = (float) (fit != null ? fit.value() : background);
 		this.floor = (float) Math.max(FLOOR * mean, Float.MIN_NORMAL);
 		this.lambda = method == DeconvolutionMethod.RL_TV ? (float) regularization : 0f;
@@ -211,11 +215,14 @@ final class RichardsonLucySolver {
 		final double[] lm = ratio(true, method == DeconvolutionMethod.RL_ACCELERATED ? predictor() : null);
 		cancelCheck.run();
 		final double[] cs = method == DeconvolutionMethod.RL_TV ? updateTv() : update();
-		if (fit != null) b = (float) fit.update(lm[2], dataVoxels);
+		if (fit != null) {
+			fit.update(w3);
+			b = (float) fit.value();
+		}
 		return new Step(lm[0], lm[1], cs[0], cs[1]);
 	}
 
-	/** The background b of the model now (the fitted value after the last iteration with a fit). */
+	/** The background b of the model now (the fitted value, or its mean over the image, after the last iteration with a fit). */
 	double background() {
 		return b;
 	}
@@ -229,8 +236,8 @@ final class RichardsonLucySolver {
 
 	/**
 	 * t ← H t (object rows in, window rows out), then per window row t ← y / max(t + b, floor) in the window
-	 * and 0 elsewhere in the row (if {@code divide}); returns {log-likelihood, Σ Hx, Σ y/(Hx + b)} (the last
-	 * over the unmasked window voxels, with the floor; 0 unless {@code divide}). {@code before}, if not
+	 * and 0 elsewhere in the row (if {@code divide}; then the background fit's ratio sums of each row go to
+	 * w3); returns {log-likelihood, Σ Hx}. {@code before}, if not
 	 * null, makes each object row of t just before its transform.
 	 */
 	private double[] ratio(final boolean divide, final RealFft.RowAction before) {
@@ -238,10 +245,18 @@ final class RichardsonLucySolver {
 			final int wr = windowRow(r);
 			final int q = o + wx, yo = wr * nx;
 			final float bb = b;
+			final float[] rowB = varying ? new float[gx] : null;
+			final double[] nodeSums = varying ? new double[gx] : null;
+			if (varying) fit.rowBackground(wr % ny, wr / ny, rowB);
 			double ll = 0, model = 0, ratioSum = 0;
 			for (int i = 0; i < nx; i++) {
 				final float hx = t[q + i];
-				float den = hx + bb;
+				float bi = bb;
+				if (varying) {
+					bi = 0f;
+					for (int j = 0; j < gx; j++) bi += fit.weightX(i, j) * rowB[j];
+				}
+				float den = hx + bi;
 				if (!(den >= floor)) den = floor;
 				final float yy = y[yo + i];
 				model += hx;
@@ -254,7 +269,8 @@ final class RichardsonLucySolver {
 				if (divide) {
 					final float q1 = yy / den;
 					t[q + i] = q1;
-					ratioSum += q1;
+					if (varying) for (int j = 0; j < gx; j++) nodeSums[j] += fit.weightX(i, j) * (double) q1;
+					else ratioSum += q1;
 				}
 			}
 			if (divide) {
@@ -263,9 +279,10 @@ final class RichardsonLucySolver {
 			}
 			w1[wr] = ll;
 			w2[wr] = model;
-			w3[wr] = ratioSum;
+			if (varying) System.arraycopy(nodeSums, 0, w3, wr * gx, gx);
+			else w3[wr] = ratioSum;
 		});
-		return new double[] { ordered(w1), ordered(w2), ordered(w3) };
+		return new double[] { ordered(w1), ordered(w2) };
 	}
 
 	/**

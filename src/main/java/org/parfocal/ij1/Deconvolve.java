@@ -104,6 +104,7 @@ public class Deconvolve implements PlugIn {
 			case ESTIMATED -> "auto";
 			case DARK -> "dark";
 			case FIT -> "fit";
+			case FIT_SMOOTH -> "fit-smooth";
 			case NONE -> "0";
 			default -> MacroOptions.number(l.value());
 			};
@@ -308,9 +309,10 @@ public class Deconvolve implements PlugIn {
 	/** As {@link #level(String, String)}; with {@code fit}, "fit" = fitted with the object (background only). */
 	static Level level(final String key, final String text, final boolean fit) {
 		if (text.isEmpty() || text.equals("0")) return Level.NONE;
-		if (text.equalsIgnoreCase("fit") && key.equals("background")) {
-			if (fit) return Level.FIT; // fitted with the object inside Richardson–Lucy (BackgroundFit)
-			throw new IllegalArgumentException("background=fit is available in Deconvolve only: give a number, auto or dark");
+		if ((text.equalsIgnoreCase("fit") || text.equalsIgnoreCase("fit-smooth")) && key.equals("background")) {
+			// fitted with the object inside Richardson–Lucy (BackgroundFit): a constant, or slowly varying
+			if (fit) return text.equalsIgnoreCase("fit") ? Level.FIT : Level.FIT_SMOOTH;
+			throw new IllegalArgumentException("background=" + text + " is available in Deconvolve only: give a number, auto or dark");
 		}
 		if (text.equalsIgnoreCase("auto")) return Level.ESTIMATED;
 		if (text.equalsIgnoreCase("dark") && key.equals("background")) return Level.DARK; // the darkest region (background only)

@@ -160,7 +160,8 @@ final class DialogHelp {
 				.field("Background", "background", "intensity units", "constant b in the image model H&middot;x + b: " + LEVEL
 						+ "; auto = sigma-clipped median after the offset; <code>dark</code> = the darkest region"
 						+ (fit ? "; <code>fit</code> = fitted with the object inside Richardson&ndash;Lucy (maximum-likelihood EM step, "
-								+ "Shepp &amp; Vardi 1982; the fitted value goes into the Log and the provenance)" : ""));
+								+ "Shepp &amp; Vardi 1982; the fitted value goes into the Log and the provenance); <code>fit-smooth</code> = a slowly varying "
+								+ "background fitted the same way (piecewise linear over a 3 &times; 3 &times; 2 grid)" : ""));
 	}
 
 	static Page deconvolve() {

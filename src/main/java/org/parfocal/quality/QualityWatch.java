@@ -75,11 +75,11 @@ public final class QualityWatch implements IterationListener, WatchedRun {
 			};
 			final double b = switch (background.kind()) {
 			case VALUE -> background.value();
-			case DARK, FIT -> {
+			case DARK, FIT, FIT_SMOOTH -> {
 				final float[] in = recording.data(), y = new float[in.length];
 				for (int i = 0; i < in.length; i++) y[i] = (float) Math.max(0, in[i] - o);
 				// FIT: the fit's start; the watch takes the fitted value from each iterate (EstimateView.background)
-				yield background.kind() == Level.Kind.FIT ? org.parfocal.deconv.BackgroundFit.start(y, recording.nx(), recording.ny(), recording.nz())
+				yield background.kind() != Level.Kind.DARK ? org.parfocal.deconv.BackgroundFit.start(y, recording.nx(), recording.ny(), recording.nz())
 						: Preprocessing.estimateDarkBackground(y, recording.nx(), recording.ny(), recording.nz());
 			}
 			case ESTIMATED -> {

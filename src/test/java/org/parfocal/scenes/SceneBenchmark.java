@@ -115,6 +115,10 @@ public final class SceneBenchmark {
 		COLUMNS.add(column("chi2 truth, true noise", (s, r) -> String.format(Locale.ROOT, "%.3f",
 				truthChiSquare(s, 1 / s.gain(), Math.sqrt(s.readNoise() * s.readNoise() + 1.0 / 12)))));
 		COLUMNS.add(column("30 it, b fit", (s, r) -> defaultWith(s, r, Level.FIT)));
+		COLUMNS.add(column("30 it, b fit-smooth", (s, r) -> defaultWith(s, r, Level.FIT_SMOOTH)));
+		for (final Level b : new Level[] { null, Level.FIT })
+			COLUMNS.add(column("acc 15 it, b " + (b == null ? "true" : "fit"), (s, r) -> db(r.curve(s, options(s, DeconvolutionMethod.RL_ACCELERATED, 15, 0,
+					b == null ? trueBackground(s) : b)).last() - Score.inputPsnr(s))));
 		COLUMNS.add(column("b fit", (s, r) -> String.format(Locale.ROOT, "%.1f",
 				r.curve(s, options(s, DeconvolutionMethod.RL_TV, 30, 0.002, Level.FIT)).result().background())));
 	}
