@@ -48,7 +48,8 @@ import org.parfocal.psf.PsfModels;
  * <p>
  * Macro keys (public API): {@code image psf method iterations regularization stop threshold edges offset
  * background plot watch}; with {@code psf=from_optics} also the keys of {@code PSF from Optics...} (without
- * {@code show_profiles}). {@code offset} and {@code background} take a number or {@code auto}.
+ * {@code show_profiles}). {@code offset} and {@code background} take a number or {@code auto}; {@code background} also
+ * {@code dark}, {@code fit} and {@code fit-smooth} (fitted with the object, {@link org.parfocal.deconv.BackgroundFit}).
  * <p>
  * <b>Watch mode</b> ({@code watch}, off by default; iterative methods only): a second dialog (keys {@code every
  * reference_folder reference_images photons read_noise stop_at_suggestion ignore_calibration}) sets up a
