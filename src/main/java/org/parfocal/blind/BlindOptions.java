@@ -61,6 +61,8 @@ public record BlindOptions(int iterations, int objectUpdates, int psfUpdates, do
 		if (snapshotInterval > iterations)
 			throw new IllegalArgumentException("The snapshot interval (" + snapshotInterval + ") is larger than the number of iterations (" + iterations
 					+ "): no snapshot would be taken");
+		if (background.kind() == Level.Kind.FIT || background.kind() == Level.Kind.FIT_SMOOTH)
+			throw new IllegalArgumentException("background=fit is available in Deconvolve only: give a number, auto or dark");
 		if (background.kind() == Level.Kind.VALUE && background.value() < 0)
 			throw new IllegalArgumentException("The background must be 0 or more, got " + background.value());
 		if (bandLimit && optics == null)

@@ -98,6 +98,7 @@ public final class BlockDeconvolution {
 			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (sigma-clipped median)", background));
 		}
 		case DARK -> throw new IllegalArgumentException("background=dark is not available block by block yet: give a number (e.g. from a run on a crop) or auto");
+		case FIT, FIT_SMOOTH -> throw new IllegalArgumentException("background=fit is not available block by block yet: give a number (e.g. the fitted value of a run on a crop) or auto");
 		default -> background = 0;
 		}
 		if (background >= stats[1])

@@ -127,6 +127,8 @@ public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf opt
 		if (t.isEmpty() || t.equals("0")) return Level.NONE;
 		if (t.equalsIgnoreCase("auto")) return Level.ESTIMATED;
 		if (t.equalsIgnoreCase("dark") && key.equals("background")) return Level.DARK;
+		if (t.equalsIgnoreCase("fit") && key.equals("background")) return Level.FIT; // whole-stack runs fit it; block runs refuse it in one line
+		if (t.equalsIgnoreCase("fit-smooth") && key.equals("background")) return Level.FIT_SMOOTH;
 		try {
 			final double v = Double.parseDouble(t);
 			return v == 0 ? Level.NONE : Level.of(v);

@@ -2,6 +2,7 @@ package org.parfocal.deconv;
 
 import java.util.ArrayList;
 import java.util.List;
+import java.util.Locale;
 
 import org.parfocal.core.Monitor;
 import org.parfocal.core.Volume;
@@ -10,7 +11,8 @@ import org.parfocal.core.Volume;
  * Deconvolution of one 2D or 3D image with one PSF: the entry point of the core.
  * <p>
  * Model: the recording is y = Poisson(H x + b) + o, with H the convolution by the PSF (unit sum, origin at
- * voxel ⌊(k − 1)/2⌋), b a constant background and o a camera offset. The data and the PSF are prepared as
+ * voxel ⌊(k − 1)/2⌋), b a constant background (given, estimated, or fitted with the object: {@link BackgroundFit})
+ * and o a camera offset. The data and the PSF are prepared as
  * {@link Preprocessing} documents; the image and the PSF passed in are never modified. Methods:
  * {@link DeconvolutionMethod}; edge handling: {@link EdgeMode}.
  * <p>
@@ -58,6 +60,8 @@ public final class Deconvolution {
 		if (options.method() == DeconvolutionMethod.WIENER) {
 			final float[] out = new float[d.y().length];
 			mon.progress(0, 1, "Wiener filter");
+			if (options.background().kind() == Level.Kind.FIT || options.background().kind() == Level.Kind.FIT_SMOOTH)
+				notes.add(String.format(Locale.ROOT, "The Wiener filter cannot fit the background: its start, the darkest-region estimate %.4g, was used", d.background()));
 			WienerFilter.apply(p.psf(), n, options.edges(), d.y(), d.background(), options.regularization(), out);
 			mon.checkCancelled();
 			mon.progress(1, 1, "Wiener filter");
@@ -71,8 +75,9 @@ public final class Deconvolution {
 			final float[] in = image.data(), yv = d.y();
 			for (int i = 0; i < in.length; i++) if (in[i] == sat.value()) yv[i] = Float.NaN;
 		}
+		final BackgroundFit fit = BackgroundFit.forLevel(options.background(), d.background(), n[0], n[1], n[2], d.y());
 		final RichardsonLucySolver s = new RichardsonLucySolver(p.psf(), n, options.edges(), d.y(), d.background(), options.method(),
-				options.regularization(), initial == null ? null : initial.data());
+				options.regularization(), initial == null ? null : initial.data(), fit);
 		final List<IterationReport> history = new ArrayList<>();
 		final String name = switch (options.method()) {
 		case RL_TV -> "Richardson-Lucy-TV";
@@ -102,8 +107,9 @@ public final class Deconvolution {
 		final float[] out = d.y();
 		s.crop(out);
 		mon.progress(max, max, name + " done");
-		return new DeconvolutionResult(Volume.wrap(out, n[0], n[1], n[2], image.voxelSize()), done, converged, history, ll, d.offset(), d.background(),
-				notes);
+		if (fit != null) notes.add(fit.describe());
+		return new DeconvolutionResult(Volume.wrap(out, n[0], n[1], n[2], image.voxelSize()), done, converged, history, ll, d.offset(),
+				fit != null ? s.background() : d.background(), notes);
 	}
 
 	/**

@@ -15,7 +15,8 @@ import org.parfocal.core.Volume;
  * @param logLikelihood Poisson log-likelihood of the returned estimate (on the extended domain for
  *        non-circulant edges); NaN for Wiener
  * @param offset camera offset subtracted
- * @param background background b used
+ * @param background background b used (with {@code background=fit} the fitted value, with {@code fit-smooth} the
+ *        fitted background's mean over the image; the notes give its range)
  * @param notes what was done to the inputs that the user should know (PSF normalised, values clipped,
  *        levels estimated), one line each
  */

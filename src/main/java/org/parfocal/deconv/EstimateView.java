@@ -22,4 +22,12 @@ public interface EstimateView {
 
 	/** A new volume holding a copy of the iterate. */
 	Volume toVolume();
+
+	/**
+	 * With {@code background=fit}: the background b of the model Hx + b fitted so far (data units after offset
+	 * removal; with {@code fit-smooth} its mean over the image); NaN when the background is fixed (the run's given or estimated level) or the engine does not say.
+	 */
+	default double background() {
+		return Double.NaN;
+	}
 }

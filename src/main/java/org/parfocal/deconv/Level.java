@@ -6,12 +6,19 @@ package org.parfocal.deconv;
  */
 public record Level(Kind kind, double value) {
 
-	/** ESTIMATED: the sigma-clipped median (macro word {@code auto}); DARK: the darkest region (macro word {@code dark}). */
-	public enum Kind { NONE, VALUE, ESTIMATED, DARK }
+	/**
+	 * ESTIMATED: the sigma-clipped median (macro word {@code auto}); DARK: the darkest region (macro word
+	 * {@code dark}); FIT: fitted jointly with the object inside Richardson–Lucy (macro word {@code fit}, background
+	 * only, see {@link BackgroundFit}); FIT_SMOOTH: a slowly varying background fitted the same way (macro word
+	 * {@code fit-smooth}).
+	 */
+	public enum Kind { NONE, VALUE, ESTIMATED, DARK, FIT, FIT_SMOOTH }
 
 	public static final Level NONE = new Level(Kind.NONE, 0);
 	public static final Level ESTIMATED = new Level(Kind.ESTIMATED, 0);
 	public static final Level DARK = new Level(Kind.DARK, 0);
+	public static final Level FIT = new Level(Kind.FIT, 0);
+	public static final Level FIT_SMOOTH = new Level(Kind.FIT_SMOOTH, 0);
 
 	public Level {
 		if (kind == null) kind = Kind.NONE;

@@ -22,7 +22,9 @@ import org.parfocal.core.Volume;
  * y ≥ 0; how many is reported;</li>
  * <li>the background b (light that is not from the in-focus object, with shot noise) is kept in the model
  * Hx + b rather than subtracted, which would bias dim regions after clipping: given, or estimated by
- * {@link #estimateBackground} as a sigma-clipped median.</li>
+ * {@link #estimateBackground} as a sigma-clipped median, or from the darkest region
+ * ({@link #estimateDarkBackground}); for {@link Level.Kind#FIT} this is the start of the fit
+ * ({@link BackgroundFit#start}), which the engine then updates.</li>
  * </ol>
  * <b>PSF</b>: negative values are set to zero and the PSF is scaled to unit sum, each with a note, so that RL
  * keeps the flux.
@@ -85,6 +87,10 @@ public final class Preprocessing {
 		case DARK:
 			background = estimateDarkBackground(y, image.nx(), image.ny(), image.nz());
 			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (darkest region)", background));
+			break;
+		case FIT:
+		case FIT_SMOOTH:
+			background = BackgroundFit.start(y, image.nx(), image.ny(), image.nz());
 			break;
 		default:
 			background = 0;

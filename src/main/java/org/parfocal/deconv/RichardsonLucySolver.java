@@ -29,7 +29,9 @@ import org.parfocal.fft.RealFft;
  * on the way); t ← Hᵀ t with the window rows as input and the object rows as output, then per object row
  * x ← x · t / Hᵀ1 (change and Σx summed on the way, the new x also written to t for the next iteration).
  * The accelerated method makes its prediction of each object row just before the first convolution
- * transforms it.
+ * transforms it. With a {@link BackgroundFit} the ratio is also summed per window row (weighted by the
+ * background's hat functions along x when it varies) and b takes its EM step once per iteration, after the
+ * object's (both from the same ratio: the joint EM step).
  * Rows of t outside these boxes are never read, so they are never cleared. Reductions are per row, combined in
  * row order with compensation, so 1 and N threads give identical results.
  * <p>
@@ -54,13 +56,21 @@ final class RichardsonLucySolver {
 	private final RealFft.Rows objectRows, windowRows;
 	private final RealFft.LineTransfer transfer;
 	private final float[] t, x, invW, y;
-	private final float b, floor;
+	private final float floor;
+	/** Background of the model Hx + b (a fitted one's mean); changes once per iteration when {@link #fit} is set. */
+	private float b;
+	/** The joint background fit, or null (b fixed). */
+	private final BackgroundFit fit;
+	/** The fitted background varies over the image (else b is used). */
+	private final boolean varying;
+	/** Nodes of the fit along x (1 without a fit). */
+	private final int gx;
 	private final DeconvolutionMethod method;
 	private final float lambda, eps;
 	/** Accelerated method: the last RL output x_k, and the last RL step g (overwritten in place by the next). */
 	private final float[] xPrev, g;
 	/** Per-row partial sums: of window rows (ratio) and of object rows (update). */
-	private final double[] w1, w2, r1, r2, r3, r4, norm3;
+	private final double[] w1, w2, w3, r1, r2, r3, r4, norm3;
 	/** Extrapolation factor of the next prediction and the number of RL steps done (accelerated method). */
 	private double alpha;
 	private int accelSteps;
@@ -70,6 +80,12 @@ final class RichardsonLucySolver {
 
 	RichardsonLucySolver(final Volume psf, final int[] n, final EdgeMode mode, final float[] y, final double background,
 			final DeconvolutionMethod method, final double regularization, final float[] initial) {
+		this(psf, n, mode, y, background, method, regularization, initial, null);
+	}
+
+	/** @param fit if not null, b is fitted from {@code fit}'s start (and {@code background} ignored) */
+	RichardsonLucySolver(final Volume psf, final int[] n, final EdgeMode mode, final float[] y, final double background,
+			final DeconvolutionMethod method, final double regularization, final float[] initial, final BackgroundFit fit) {
 		final int[] k = psf.shape();
 		final EdgeMode.Domains dom = mode.domains(n, k);
 		final int[] m = dom.object(), w = dom.window(), p = dom.grid();
@@ -91,6 +107,10 @@ final class RichardsonLucySolver {
 		this.t = spectrum; // the spectrum-layout copy is not needed any more: it becomes the working grid
 		w1 = new double[ny * nz];
 		w2 = new double[ny * nz];
+		this.fit = fit;
+		this.varying = fit != null && !fit.constant();
+		this.gx = fit == null ? 1 : fit.nodesX();
+		w3 = new double[ny * nz * gx];
 		final int rows = my * mz;
 		r1 = new double[rows];
 		r2 = new double[rows];
@@ -102,13 +122,13 @@ final class RichardsonLucySolver {
 		for (final float v : y)
 			if (v == v) { mean += v; used++; }
 		mean /= Math.max(1, used);
-		this.b = (float) background;
+		this.b = (float) (fit != null ? fit.value() : background);
 		this.floor = (float) Math.max(FLOOR * mean, Float.MIN_NORMAL);
 		this.lambda = method == DeconvolutionMethod.RL_TV ? (float) regularization : 0f;
 		this.eps = (float) Math.max(TV_EPSILON * mean, Float.MIN_NORMAL);
 		this.invW = mode == EdgeMode.NON_CIRCULANT ? Sensitivity.invert(Sensitivity.of(psf.data(), k, n)) : null;
 		this.x = new float[mx * my * mz];
-		initialise(initial, (float) Math.max(mean - background, floor));
+		initialise(initial, (float) Math.max(mean - b, floor));
 		final boolean acc = method == DeconvolutionMethod.RL_ACCELERATED;
 		xPrev = acc ? new float[x.length] : null;
 		g = acc ? new float[x.length] : null;
@@ -195,7 +215,16 @@ final class RichardsonLucySolver {
 		final double[] lm = ratio(true, method == DeconvolutionMethod.RL_ACCELERATED ? predictor() : null);
 		cancelCheck.run();
 		final double[] cs = method == DeconvolutionMethod.RL_TV ? updateTv() : update();
+		if (fit != null) {
+			fit.update(w3);
+			b = (float) fit.value();
+		}
 		return new Step(lm[0], lm[1], cs[0], cs[1]);
+	}
+
+	/** The background b of the model now (the fitted value, or its mean over the image, after the last iteration with a fit). */
+	double background() {
+		return b;
 	}
 
 	/** Log-likelihood and Σ Hx of the current estimate (one convolution); leaves t holding a copy of x. */
@@ -207,17 +236,27 @@ final class RichardsonLucySolver {
 
 	/**
 	 * t ← H t (object rows in, window rows out), then per window row t ← y / max(t + b, floor) in the window
-	 * and 0 elsewhere in the row (if {@code divide}); returns {log-likelihood, Σ Hx}. {@code before}, if not
+	 * and 0 elsewhere in the row (if {@code divide}; then the background fit's ratio sums of each row go to
+	 * w3); returns {log-likelihood, Σ Hx}. {@code before}, if not
 	 * null, makes each object row of t just before its transform.
 	 */
 	private double[] ratio(final boolean divide, final RealFft.RowAction before) {
 		fft.convolveInPlace(t, transfer, false, objectRows, before, windowRows, (r, o) -> {
 			final int wr = windowRow(r);
 			final int q = o + wx, yo = wr * nx;
-			double ll = 0, model = 0;
+			final float bb = b;
+			final float[] rowB = varying ? new float[gx] : null;
+			final double[] nodeSums = varying ? new double[gx] : null;
+			if (varying) fit.rowBackground(wr % ny, wr / ny, rowB);
+			double ll = 0, model = 0, ratioSum = 0;
 			for (int i = 0; i < nx; i++) {
 				final float hx = t[q + i];
-				float den = hx + b;
+				float bi = bb;
+				if (varying) {
+					bi = 0f;
+					for (int j = 0; j < gx; j++) bi += fit.weightX(i, j) * rowB[j];
+				}
+				float den = hx + bi;
 				if (!(den >= floor)) den = floor;
 				final float yy = y[yo + i];
 				model += hx;
@@ -227,7 +266,12 @@ final class RichardsonLucySolver {
 				}
 				ll -= den;
 				if (yy > 0) ll += yy * FastLog.ln(den);
-				if (divide) t[q + i] = yy / den;
+				if (divide) {
+					final float q1 = yy / den;
+					t[q + i] = q1;
+					if (varying) for (int j = 0; j < gx; j++) nodeSums[j] += fit.weightX(i, j) * (double) q1;
+					else ratioSum += q1;
+				}
 			}
 			if (divide) {
 				Arrays.fill(t, o, q, 0f);
@@ -235,6 +279,8 @@ final class RichardsonLucySolver {
 			}
 			w1[wr] = ll;
 			w2[wr] = model;
+			if (varying) System.arraycopy(nodeSums, 0, w3, wr * gx, gx);
+			else w3[wr] = ratioSum;
 		});
 		return new double[] { ordered(w1), ordered(w2) };
 	}
@@ -385,6 +431,11 @@ final class RichardsonLucySolver {
 				final Volume v = Volume.zeros(nx, ny, nz, null);
 				crop(v.data());
 				return v;
+			}
+
+			@Override
+			public double background() {
+				return fit != null ? b : Double.NaN;
 			}
 		};
 	}

@@ -365,7 +365,7 @@ public class BlindDeconvolve implements PlugIn {
 			final String problem = CompareWithReferences.calibrationProblem(imp, refs, null);
 			if (problem != null) throw new IllegalArgumentException(problem + ": calibrate it, or add ignore_calibration to compare voxel for voxel");
 		}
-		final BlindQualityWatch watch = w == null ? null : Commands.withImageJThreads(() -> watch(w, image, options, refs, monitor));
+		final BlindQualityWatch watch = w == null ? null : Commands.withImageJThreads(() -> watch(w, image, options, refs, monitor, notes));
 		final FitPlan plan = o.plan();
 		final BlindResult r = Commands.withImageJThreads(() -> BlindDeconvolution.run(image, options, plan, monitor, watch));
 		for (final String note : r.notes()) if (!notes.contains(note)) notes.add(note);
@@ -412,12 +412,19 @@ public class BlindDeconvolve implements PlugIn {
 	 */
 	static BlindQualityWatch watch(final Deconvolve.Watch w, final Volume image, final BlindOptions options, final List<CompareWithReferences.Reference> refs,
 			final org.parfocal.core.Monitor monitor) {
+		return watch(w, image, options, refs, monitor, new ArrayList<>());
+	}
+
+	/** As above; notes about the noise model ({@code estimate_noise}) go to {@code notes}. */
+	static BlindQualityWatch watch(final Deconvolve.Watch w, final Volume image, final BlindOptions options, final List<CompareWithReferences.Reference> refs,
+			final org.parfocal.core.Monitor monitor, final List<String> notes) {
 		final ReferenceComparison.References prepared = refs.isEmpty() ? null
 				: CompareWithReferences.named(refs, () -> ReferenceComparison.prepare(refs.stream().map(CompareWithReferences.Reference::volume).toList(), image,
 						ReferenceComparison.Options.defaults().withIgnoreCalibration(w.ignoreCalibration()), monitor));
 		final double[] lv = QualityWatch.Consistency.levels(image, options.offset(), options.background());
-		final BlindQualityWatch.Recording rec = new BlindQualityWatch.Recording(image, options.edges() == EdgeMode.PERIODIC, lv[0], lv[1], w.photons(),
-				w.readNoise());
+		final double[] noise = w.noise(image, lv[0], notes);
+		final BlindQualityWatch.Recording rec = new BlindQualityWatch.Recording(image, options.edges() == EdgeMode.PERIODIC, lv[0], lv[1], noise[0],
+				noise[1]);
 		return new BlindQualityWatch(prepared, rec, w.every(), w.stopAtSuggestion(), image.voxelSize());
 	}
 

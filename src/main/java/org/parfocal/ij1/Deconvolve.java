@@ -48,7 +48,8 @@ import org.parfocal.psf.PsfModels;
  * <p>
  * Macro keys (public API): {@code image psf method iterations regularization stop threshold edges offset
  * background plot watch}; with {@code psf=from_optics} also the keys of {@code PSF from Optics...} (without
- * {@code show_profiles}). {@code offset} and {@code background} take a number or {@code auto}.
+ * {@code show_profiles}). {@code offset} and {@code background} take a number or {@code auto}; {@code background} also
+ * {@code dark}, {@code fit} and {@code fit-smooth} (fitted with the object, {@link org.parfocal.deconv.BackgroundFit}).
  * <p>
  * <b>Watch mode</b> ({@code watch}, off by default; iterative methods only): a second dialog (keys {@code every
  * reference_folder reference_images photons read_noise stop_at_suggestion ignore_calibration}) sets up a
@@ -103,6 +104,8 @@ public class Deconvolve implements PlugIn {
 			return switch (l.kind()) {
 			case ESTIMATED -> "auto";
 			case DARK -> "dark";
+			case FIT -> "fit";
+			case FIT_SMOOTH -> "fit-smooth";
 			case NONE -> "0";
 			default -> MacroOptions.number(l.value());
 			};
@@ -119,9 +122,18 @@ public class Deconvolve implements PlugIn {
 	 * @param readNoise read-noise σ in intensity units
 	 * @param stopAtSuggestion return the suggested iterate instead of the last one
 	 * @param ignoreCalibration compare with references voxel for voxel
+	 * @param estimateNoise take gain and read noise estimated from each recording ({@link org.parfocal.core.CameraNoise})
+	 *        instead of {@code photons} and {@code read_noise} (which stay the fallback when the estimate fails);
+	 *        absent from old macros, so they keep their given values
 	 */
 	public record Watch(int every, String referenceFolder, String openReferences, double photons, double readNoise, boolean stopAtSuggestion,
-			boolean ignoreCalibration) {
+			boolean ignoreCalibration, boolean estimateNoise) {
+
+		/** Without the noise estimate (the given photons and read noise). */
+		public Watch(final int every, final String referenceFolder, final String openReferences, final double photons, final double readNoise,
+				final boolean stopAtSuggestion, final boolean ignoreCalibration) {
+			this(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, ignoreCalibration, false);
+		}
 
 		public Watch {
 			if (every < 1 || every > DeconvolutionOptions.MAX_ITERATIONS)
@@ -133,11 +145,32 @@ public class Deconvolve implements PlugIn {
 		public String macroOptions() {
 			return "every=" + every + " reference_folder=" + MacroOptions.quote(referenceFolder) + " reference_images=" + MacroOptions.quote(openReferences)
 					+ " photons=" + MacroOptions.number(photons) + " read_noise=" + MacroOptions.number(readNoise) + (stopAtSuggestion ? " stop_at_suggestion" : "")
-					+ (ignoreCalibration ? " ignore_calibration" : "");
+					+ (ignoreCalibration ? " ignore_calibration" : "") + (estimateNoise ? " estimate_noise" : "");
 		}
 
 		Watch withIgnoreCalibration() {
-			return new Watch(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, true);
+			return new Watch(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, true, estimateNoise);
+		}
+
+		/**
+		 * {photons per unit, read noise} of the χ² for one recording: estimated from it with
+		 * {@code estimateNoise} ({@link org.parfocal.quality.ReblurConsistency.NoiseModel#fromCamera}; the
+		 * given values when that fails, with a note), else the given values.
+		 */
+		double[] noise(final Volume recording, final double offset, final List<String> notes) {
+			if (!estimateNoise) return new double[] { photons, readNoise };
+			try {
+				final org.parfocal.core.CameraNoise c = org.parfocal.core.CameraNoise.estimate(recording, offset);
+				final var m = org.parfocal.quality.ReblurConsistency.NoiseModel.fromCamera(c, 0, offset);
+				final String note = String.format(Locale.ROOT, "watch noise model estimated from the recording: %.4g photons per unit, read noise %.4g units",
+						m.photonsPerUnit(), m.readNoise());
+				if (!notes.contains(note)) notes.add(note);
+				return new double[] { m.photonsPerUnit(), m.readNoise() };
+			} catch (final IllegalArgumentException e) {
+				notes.add("watch noise model not estimated (" + e.getMessage() + "): photons=" + MacroOptions.number(photons) + " read_noise="
+						+ MacroOptions.number(readNoise) + " used");
+				return new double[] { photons, readNoise };
+			}
 		}
 	}
 
@@ -212,7 +245,7 @@ public class Deconvolve implements PlugIn {
 		if (iterations != Math.rint(iterations)) throw new IllegalArgumentException("Iterations must be a whole number, got " + iterations);
 		final DeconvolutionOptions d = new DeconvolutionOptions(method, (int) iterations, regularization, stop,
 				stop == Stopping.RELATIVE_CHANGE ? threshold : threshold > 0 && threshold < 1 ? threshold : 0.001, edges, level("offset", offset),
-				level("background", background));
+				level("background", background, true));
 		PsfFromOptics.Options optics = null;
 		if (FROM_OPTICS.equals(psf)) {
 			optics = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
@@ -247,13 +280,15 @@ public class Deconvolve implements PlugIn {
 		gd.addNumericField("Read_noise:", macro ? 0 : Commands.remembered(PREFS + "read_noise", 0), 3, 8, "sigma, intensity units");
 		gd.addCheckbox("Stop_at_suggestion (return the suggested iterate)", false);
 		gd.addCheckbox("Ignore_calibration of the references", false);
+		gd.addCheckbox("Estimate_noise from the recording (camera gain and read noise, instead of Photons and Read_noise)",
+				!macro && Commands.remembered(PREFS + "estimate_noise", true));
 		gd.addHelp(DialogHelp.watch().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final double every = Commands.number(gd, "every");
 		final String folder = gd.getNextString().trim(), pattern = gd.getNextString().trim();
 		final double photons = Commands.number(gd, "photons"), readNoise = Commands.number(gd, "read_noise");
-		final boolean stop = gd.getNextBoolean(), ignore = gd.getNextBoolean();
+		final boolean stop = gd.getNextBoolean(), ignore = gd.getNextBoolean(), estimate = gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		if (every != Math.rint(every)) throw new IllegalArgumentException("Every must be a whole number of iterations, got " + every + " (every=)");
 		if (!macro) {
@@ -262,13 +297,24 @@ public class Deconvolve implements PlugIn {
 			Prefs.set(PREFS + "open_references", pattern);
 			Prefs.set(PREFS + "photons", photons);
 			Prefs.set(PREFS + "read_noise", readNoise);
+			Prefs.set(PREFS + "estimate_noise", estimate);
 		}
-		return new Watch((int) every, folder, pattern, photons, readNoise, stop, ignore);
+		return new Watch((int) every, folder, pattern, photons, readNoise, stop, ignore, estimate);
 	}
 
 	/** "auto" = estimated, "0" or "" = none, else a number. */
 	static Level level(final String key, final String text) {
+		return level(key, text, false);
+	}
+
+	/** As {@link #level(String, String)}; with {@code fit}, "fit" = fitted with the object (background only). */
+	static Level level(final String key, final String text, final boolean fit) {
 		if (text.isEmpty() || text.equals("0")) return Level.NONE;
+		if ((text.equalsIgnoreCase("fit") || text.equalsIgnoreCase("fit-smooth")) && key.equals("background")) {
+			// fitted with the object inside Richardson–Lucy (BackgroundFit): a constant, or slowly varying
+			if (fit) return text.equalsIgnoreCase("fit") ? Level.FIT : Level.FIT_SMOOTH;
+			throw new IllegalArgumentException("background=" + text + " is available in Deconvolve only: give a number, auto or dark");
+		}
 		if (text.equalsIgnoreCase("auto")) return Level.ESTIMATED;
 		if (text.equalsIgnoreCase("dark") && key.equals("background")) return Level.DARK; // the darkest region (background only)
 		try {
@@ -315,8 +361,9 @@ public class Deconvolve implements PlugIn {
 					if (o.watch() != null) {
 						final DeconvolutionOptions d = o.deconvolution();
 						final double[] lv = QualityWatch.Consistency.levels(in.get(c, t), d.offset(), d.background());
+						final double[] noise = o.watch().noise(in.get(c, t), lv[0], notes);
 						final QualityWatch w = new QualityWatch(prepared, QualityWatch.Consistency.forDeconvolution(in.get(c, t), psfs.get(c),
-								d.edges() == EdgeMode.PERIODIC, lv[0], lv[1], o.watch().photons(), o.watch().readNoise()), o.watch().every(),
+								d.edges() == EdgeMode.PERIODIC, lv[0], lv[1], noise[0], noise[1]), o.watch().every(),
 								o.watch().stopAtSuggestion(), in.voxelSize());
 						watches.add(w);
 						listener = w;

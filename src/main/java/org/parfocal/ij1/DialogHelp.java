@@ -152,9 +152,16 @@ final class DialogHelp {
 	}
 
 	private static Page levels(final Page p) {
+		return levels(p, false);
+	}
+
+	private static Page levels(final Page p, final boolean fit) {
 		return p.field("Offset", "offset", "intensity units", "camera offset subtracted first: " + LEVEL + "; auto = the 0.1 % quantile")
 				.field("Background", "background", "intensity units", "constant b in the image model H&middot;x + b: " + LEVEL
-						+ "; auto = sigma-clipped median after the offset");
+						+ "; auto = sigma-clipped median after the offset; <code>dark</code> = the darkest region"
+						+ (fit ? "; <code>fit</code> = fitted with the object inside Richardson&ndash;Lucy (maximum-likelihood EM step, "
+								+ "Shepp &amp; Vardi 1982; the fitted value goes into the Log and the provenance); <code>fit-smooth</code> = a slowly varying "
+								+ "background fitted the same way (piecewise linear over a 3 &times; 3 &times; 2 grid)" : ""));
 	}
 
 	static Page deconvolve() {
@@ -173,7 +180,7 @@ final class DialogHelp {
 				.field("Stop", "stop", "", "<code>fixed</code>: run all iterations; <code>relative-change</code>: stop when the iterate changes less than Threshold")
 				.field("Threshold", "threshold", "relative change", "relative change between two iterates below which the run stops (with relative-change only)")
 				.field("Edges", "edges", "", "what lies past the stack's edges: " + EDGES);
-		return levels(p).field("Plot convergence", "plot", "", "show the relative change per iteration")
+		return levels(p, true).field("Plot convergence", "plot", "", "show the relative change per iteration")
 				.field("Watch quality", "watch", "", "every few iterations, compare the iterate with sharp references and the data (next dialog)")
 				.field("Recentre the PSF", "recentre", "", "shift an open PSF so its centre of mass sits on the centre voxel (a PSF off centre shifts the result)")
 				.note("With <code>psf=from_optics</code> the keys of PSF from Optics follow (see its Help).");
@@ -198,7 +205,11 @@ final class DialogHelp {
 				.field("Photons", "photons", "photons per intensity unit", "noise model of the chi-square (1 = the data are photon counts)")
 				.field("Read_noise", "read_noise", "intensity units (&sigma;)", "camera read noise")
 				.field("Stop_at_suggestion", "stop_at_suggestion", "", "return the suggested iterate instead of the last one (kept in memory during the run)")
-				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when the references' calibration is missing or differs");
+				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when the references' calibration is missing or differs")
+				.field("Estimate_noise", "estimate_noise", "", "take the camera gain and read noise of the chi-square from the recording itself "
+						+ "(Poisson&ndash;Gaussian fit of the local variance against the local mean, Foi et al., IEEE TIP 2008) instead of Photons and "
+						+ "Read_noise, which stay the fallback when the fit fails; the values go into the Log and the provenance. Absent from a macro "
+						+ "line: the given values");
 	}
 
 	static Page blind() {

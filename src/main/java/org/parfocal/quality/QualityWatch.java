@@ -75,10 +75,12 @@ public final class QualityWatch implements IterationListener, WatchedRun {
 			};
 			final double b = switch (background.kind()) {
 			case VALUE -> background.value();
-			case DARK -> {
+			case DARK, FIT, FIT_SMOOTH -> {
 				final float[] in = recording.data(), y = new float[in.length];
 				for (int i = 0; i < in.length; i++) y[i] = (float) Math.max(0, in[i] - o);
-				yield Preprocessing.estimateDarkBackground(y, recording.nx(), recording.ny(), recording.nz());
+				// FIT: the fit's start; the watch takes the fitted value from each iterate (EstimateView.background)
+				yield background.kind() != Level.Kind.DARK ? org.parfocal.deconv.BackgroundFit.start(y, recording.nx(), recording.ny(), recording.nz())
+						: Preprocessing.estimateDarkBackground(y, recording.nx(), recording.ny(), recording.nz());
 			}
 			case ESTIMATED -> {
 				final float[] in = recording.data(), y = new float[in.length];
@@ -126,16 +128,27 @@ public final class QualityWatch implements IterationListener, WatchedRun {
 		final int it = report.iteration();
 		if (it % every != 0 && it != report.maxIterations()) return;
 		final Volume x = estimate.toVolume().withVoxelSize(voxelSize);
-		points.add(evaluate(it, x));
+		points.add(evaluate(it, x, estimate.background()));
 		if (tracker.offer(points.get(points.size() - 1)) && keepBest) best = x;
 	}
 
 	/** Evaluates one iterate (not modified) without recording it. */
 	public StoppingRule.Point evaluate(final int iteration, final Volume x) {
+		return evaluate(iteration, x, Double.NaN);
+	}
+
+	/**
+	 * As {@link #evaluate(int, Volume)}, with the background the engine used for this iterate (a fitted one
+	 * changes from iteration to iteration); NaN keeps the consistency model's.
+	 */
+	public StoppingRule.Point evaluate(final int iteration, final Volume x, final double background) {
 		final double d = references == null ? Double.NaN : ReferenceComparison.patchDistance(references, x);
 		double chi = Double.NaN, white = Double.NaN;
 		if (consistency != null) {
-			final ReblurConsistency.Result r = ReblurConsistency.evaluate(consistency.recording(), x, consistency.operator(), consistency.model(),
+			final ReblurConsistency.NoiseModel m = consistency.model();
+			final ReblurConsistency.NoiseModel model = Double.isFinite(background) && background != m.background()
+					? new ReblurConsistency.NoiseModel(m.photonsPerUnit(), m.readNoise(), background, m.offset()) : m;
+			final ReblurConsistency.Result r = ReblurConsistency.evaluate(consistency.recording(), x, consistency.operator(), model,
 					consistency.margin());
 			chi = r.meanChiSquare();
 			white = r.whiteness();

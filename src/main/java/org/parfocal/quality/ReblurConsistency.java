@@ -3,6 +3,7 @@ package org.parfocal.quality;
 import java.util.Locale;
 
 import org.parfocal.conv.ConvolutionOperator;
+import org.parfocal.core.CameraNoise;
 import org.parfocal.core.Parallel;
 import org.parfocal.core.Volume;
 
@@ -42,6 +43,15 @@ public final class ReblurConsistency {
 			if (!(readNoise >= 0) || !Double.isFinite(readNoise)) throw new IllegalArgumentException("Read noise must be 0 or more, got " + readNoise);
 			if (!Double.isFinite(background)) throw new IllegalArgumentException("Background must be a finite number, got " + background);
 			if (!Double.isFinite(offset)) throw new IllegalArgumentException("Offset must be a finite number, got " + offset);
+		}
+
+		/**
+		 * The model of a camera whose noise was estimated from the recording ({@link CameraNoise}, Foi et al.
+		 * 2008): photons per unit 1/g and, as the read noise, the whole variance at zero signal, c + g·o (σ² plus
+		 * the 1/12 of rounding to integers, which the recording also carries), so var = g·(h∗x + b) + c + g·o.
+		 */
+		public static NoiseModel fromCamera(final CameraNoise camera, final double background, final double offset) {
+			return new NoiseModel(camera.photonsPerUnit(), Math.sqrt(Math.max(0, camera.intercept() + camera.gain() * offset)), background, offset);
 		}
 
 		/** Photon counts with background b and nothing else. */

@@ -280,6 +280,34 @@ class DeconvolveCommandTest {
 		assertArrayEquals(core.data(), ImageBridge.toCore(last).first().data(), 1e-6f * max(core.data()));
 	}
 
+	/**
+	 * background=fit through the macro: the output equals the core run's, the provenance records the fitted value
+	 * (not the start) and the note; estimate_noise puts the watch's noise model, estimated from the recording, in
+	 * the notes, and a line without it keeps the given photons (old macros).
+	 */
+	@Test
+	void backgroundFitAndEstimatedNoiseThroughTheMacro() {
+		final ImagePlus img = recorded("cell.tif"), psf = ImageBridge.toImagePlus(gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
+		open(img, psf);
+		final String fit = OPTIONS.replace("background=auto", "background=fit");
+		final ImagePlus out = ImageJHarness.run(img, CMD, fit).onlyCreated();
+		final DeconvolutionOptions d = new DeconvolutionOptions(DeconvolutionMethod.RL_TV, 12, 0.002, Stopping.FIXED, 0.001, EdgeMode.NON_CIRCULANT,
+				Level.of(100), Level.FIT);
+		final org.parfocal.deconv.DeconvolutionResult core = Deconvolution.run(ImageBridge.toCore(img).first(), gaussianPsf(), d, Monitor.NONE);
+		assertArrayEquals(core.estimate().data(), ImageBridge.toCore(out).first().data(), 1e-6f * max(core.estimate().data()), "command = core");
+		final var p = Provenance.of(out).orElseThrow();
+		assertEquals("fit", p.options().get("background"));
+		assertEquals(core.background(), ((Number) p.run().get("background")).doubleValue(), 1e-9 * core.background());
+		assertTrue(p.run().get("notes").toString().contains("Background fitted with the object"), p.run().get("notes").toString());
+		final String watch = fit + " watch every=4 reference_folder=[] reference_images=[] photons=1 read_noise=0";
+		final var withEstimate = Provenance.of(ImageJHarness.run(img, CMD, watch + " estimate_noise").created().stream()
+				.filter(i -> i.getTitle().startsWith("cell-deconvolved")).findFirst().orElseThrow()).orElseThrow();
+		assertTrue(withEstimate.run().get("notes").toString().contains("watch noise model estimated from the recording"), withEstimate.run().get("notes").toString());
+		final var without = Provenance.of(ImageJHarness.run(img, CMD, watch).created().stream()
+				.filter(i -> i.getTitle().startsWith("cell-deconvolved")).findFirst().orElseThrow()).orElseThrow();
+		assertTrue(!without.run().get("notes").toString().contains("watch noise model"), without.run().get("notes").toString());
+	}
+
 	@Test
 	void watchModeBadInputIsRefusedInOneLine() {
 		final ImagePlus img = recorded("cell.tif"), psf = ImageBridge.toImagePlus(gaussianPsf().withVoxelSize(VOXEL), "psf.tif");

@@ -21,11 +21,11 @@ import org.parfocal.deconv.Stopping;
  * The scene table (issue 14): every scene of {@code tools/scenes/make_scenes.py} deconvolved with several
  * settings, PSNR gains over the input against the simulation's truth.
  * <pre>
- * bin/parfocal-bench scenes [folder] [column,column,…]    (default folder target/scenes, made if missing)
+ * bin/parfocal-bench scenes [folder] ["column;column;…"]    (default folder target/scenes, made if missing)
  * </pre>
  * A column is a {@link Column}: a header and a cell computed from the scene and the shared runs
  * ({@link SceneRuns}, each run made once). Add one to {@link #COLUMNS}; the command line can pick columns by
- * header.
+ * header (the header itself, else every header it begins; separated by ';', since headers hold commas).
  */
 public final class SceneBenchmark {
 
@@ -106,9 +106,40 @@ public final class SceneBenchmark {
 		COLUMNS.add(column("30 it, b true", (s, r) -> defaultWith(s, r, trueBackground(s))));
 		COLUMNS.add(column("30 it, b 0", (s, r) -> defaultWith(s, r, Level.NONE)));
 		COLUMNS.add(column("30 it, b dark", (s, r) -> defaultWith(s, r, darkBackground(s))));
+		COLUMNS.add(column("chi2 truth, photons=1", (s, r) -> String.format(Locale.ROOT, "%.2f", truthChiSquare(s, 1, 0))));
+		COLUMNS.add(column("chi2 truth, estimated noise", (s, r) -> {
+			final org.parfocal.core.CameraNoise c = org.parfocal.core.CameraNoise.estimate(s.recording(), s.offset());
+			final org.parfocal.quality.ReblurConsistency.NoiseModel m = org.parfocal.quality.ReblurConsistency.NoiseModel.fromCamera(c, 0, s.offset());
+			return String.format(Locale.ROOT, "%.3f", truthChiSquare(s, m.photonsPerUnit(), m.readNoise()));
+		}));
+		COLUMNS.add(column("chi2 truth, true noise", (s, r) -> String.format(Locale.ROOT, "%.3f",
+				truthChiSquare(s, 1 / s.gain(), Math.sqrt(s.readNoise() * s.readNoise() + 1.0 / 12)))));
+		COLUMNS.add(column("30 it, b fit", (s, r) -> defaultWith(s, r, Level.FIT)));
+		COLUMNS.add(column("30 it, b fit-smooth", (s, r) -> defaultWith(s, r, Level.FIT_SMOOTH)));
+		for (final Level b : new Level[] { null, Level.FIT })
+			COLUMNS.add(column("acc 15 it, b " + (b == null ? "true" : "fit"), (s, r) -> db(r.curve(s, options(s, DeconvolutionMethod.RL_ACCELERATED, 15, 0,
+					b == null ? trueBackground(s) : b)).last() - Score.inputPsnr(s))));
+		COLUMNS.add(column("b fit", (s, r) -> String.format(Locale.ROOT, "%.1f",
+				r.curve(s, options(s, DeconvolutionMethod.RL_TV, 30, 0.002, Level.FIT)).result().background())));
 	}
 
-	public static Column column(final String header, final java.util.function.BiFunction<Scene, SceneRuns, String> cell) {
+	/**
+	 * Mean re-blur χ² of the true object (the watch's check: mirrored edges, half a PSF left out at each edge)
+	 * with the noise model given: photons per ADU and read noise in ADU. The object is the truth plus the true
+	 * background map, both in ADU, with no constant background: the slowly varying background is smooth enough
+	 * that blurring leaves it as it is.
+	 */
+	static double truthChiSquare(final Scene s, final double photonsPerUnit, final double readNoise) {
+		final float[] t = s.truth().data(), bg = s.background().data();
+		final float[] x = new float[t.length];
+		for (int i = 0; i < t.length; i++) x[i] = (float) ((t[i] + bg[i]) * s.gain());
+		final org.parfocal.core.Volume xv = org.parfocal.core.Volume.wrap(x, s.truth().nx(), s.truth().ny(), s.truth().nz(), s.recording().voxelSize());
+		final org.parfocal.quality.QualityWatch.Consistency c = org.parfocal.quality.QualityWatch.Consistency.forDeconvolution(s.recording(), s.psf(), false,
+				s.offset(), 0, photonsPerUnit, readNoise);
+		return new org.parfocal.quality.QualityWatch(null, c, 1, false, s.recording().voxelSize()).consistency(xv).meanChiSquare();
+	}
+
+		public static Column column(final String header, final java.util.function.BiFunction<Scene, SceneRuns, String> cell) {
 		return new Column() {
 			@Override
 			public String header() { return header; }
@@ -138,8 +169,10 @@ public final class SceneBenchmark {
 		ensure(dir);
 		final List<Column> cols = new ArrayList<>();
 		if (args.length > 1) {
-			for (final String h : args[1].split(","))
-				COLUMNS.stream().filter(c -> c.header().startsWith(h.trim())).forEach(cols::add);
+			for (final String h : args[1].split(";")) {
+				final List<Column> exact = COLUMNS.stream().filter(c -> c.header().equals(h.trim())).toList();
+				(exact.isEmpty() ? COLUMNS.stream().filter(c -> c.header().startsWith(h.trim())).toList() : exact).forEach(cols::add);
+			}
 		} else cols.addAll(COLUMNS);
 		final String only = System.getenv("PARFOCAL_SCENES");
 		final StringBuilder head = new StringBuilder("| scene |");
