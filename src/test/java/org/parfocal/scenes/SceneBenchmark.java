@@ -108,6 +108,10 @@ public final class SceneBenchmark {
 		COLUMNS.add(column("30 it, b dark", (s, r) -> defaultWith(s, r, darkBackground(s))));
 	}
 
+	static {
+		COLUMNS.addAll(StopColumns.columns()); // issue 14: stopping, default run, TV weight
+	}
+
 	public static Column column(final String header, final java.util.function.BiFunction<Scene, SceneRuns, String> cell) {
 		return new Column() {
 			@Override
