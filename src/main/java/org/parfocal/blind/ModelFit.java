@@ -201,25 +201,9 @@ public final class ModelFit {
 	/** Seed of the split (fixed: the fit is deterministic). */
 	static final long SPLIT_SEED = 0x5eed_15L;
 
-	/**
-	 * Poisson thinning: {first half, second half} of y, each photon of round(max(y, 0)·s) to either half with
-	 * probability ½ (Binomial(c, ½) as the number of set bits among c random bits: exact, and no library samples
-	 * a binomial this cheaply), divided back by s. Sequential and seeded: the same split on every run.
-	 */
+	/** Poisson thinning of y into two halves ({@link org.parfocal.core.PoissonThinning}, seed {@link #SPLIT_SEED}). */
 	static float[][] split(final float[] y, final double photonsPerUnit) {
-		final float[] a = new float[y.length], b = new float[y.length];
-		final java.util.SplittableRandom r = new java.util.SplittableRandom(SPLIT_SEED);
-		for (int i = 0; i < y.length; i++) {
-			final double v = y[i] * photonsPerUnit;
-			long c = v > 0 ? Math.round(v) : 0;
-			long k = 0;
-			final long total = c;
-			for (; c >= 64; c -= 64) k += Long.bitCount(r.nextLong());
-			if (c > 0) k += Long.bitCount(r.nextLong() & ((1L << c) - 1));
-			a[i] = (float) (k / photonsPerUnit);
-			b[i] = (float) ((total - k) / photonsPerUnit);
-		}
-		return new float[][] { a, b };
+		return org.parfocal.core.PoissonThinning.split(y, photonsPerUnit, SPLIT_SEED);
 	}
 
 	/**

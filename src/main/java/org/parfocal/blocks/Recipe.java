@@ -27,7 +27,8 @@ import org.parfocal.psf.PsfModels;
  * threshold edges offset background psf}; with {@code psf=from_optics} also {@code model modality na
  * immersion_index immersion_index_design sample_index coverslip_index coverslip_index_design
  * coverslip_thickness coverslip_thickness_design working_distance depth emission excitation pinhole
- * sheet_thickness voxel_xy voxel_z size_xy size_z}. Missing keys take the dialog's first-use defaults. Other
+ * sheet_thickness voxel_xy voxel_z size_xy size_z}. Missing keys take the dialog's first-use defaults (without
+ * {@code method}, {@code iterations} and {@code stop}: the default run, {@link org.parfocal.deconv.DefaultRun}). Other
  * keys ({@code image plot}) are ignored. Immutable. Not serialisable (the option records it holds are not):
  * it travels to cluster tasks as its options text, from which {@link #parse} makes it again.
  *
@@ -91,10 +92,10 @@ public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf opt
 	 * @param psfFromRecord the PSF file recorded with the options, used when {@code psf=} is not itself a file
 	 */
 	public static Recipe fromOptions(final Map<String, String> o, final String psfFromRecord) {
-		final DeconvolutionMethod method = DeconvolutionMethod.parse(get(o, "method", DeconvolutionMethod.RL_TV.key()));
-		final int iterations = (int) whole(o, "iterations", 30);
+		final DeconvolutionMethod method = DeconvolutionMethod.parse(get(o, "method", org.parfocal.deconv.DefaultRun.METHOD.key()));
+		final int iterations = (int) whole(o, "iterations", org.parfocal.deconv.DefaultRun.CAP);
 		final double regularization = number(o, "regularization", 0.002);
-		final Stopping stop = Stopping.parse(get(o, "stop", Stopping.FIXED.key()));
+		final Stopping stop = Stopping.parse(get(o, "stop", org.parfocal.deconv.DefaultRun.stop(o.containsKey("iterations")).key()));
 		final double threshold = number(o, "threshold", 0.001);
 		final EdgeMode edges = EdgeMode.parse(get(o, "edges", EdgeMode.NON_CIRCULANT.key()));
 		final DeconvolutionOptions d = new DeconvolutionOptions(method, iterations, regularization, stop,

@@ -75,6 +75,11 @@ public final class Deconvolution {
 			final float[] in = image.data(), yv = d.y();
 			for (int i = 0; i < in.length; i++) if (in[i] == sat.value()) yv[i] = Float.NaN;
 		}
+		// held-out stop: the split run decides the number of iterations first (its solver is gone before the full one is made)
+		final HoldOutStop.Result held = options.stopping() == Stopping.HELD_OUT
+				? HoldOutStop.find(image, p.psf(), n, options, d.y(), d.offset(), d.background(), initial == null ? null : initial.data(), mon)
+				: null;
+		if (held != null) notes.add(held.reason());
 		final BackgroundFit fit = BackgroundFit.forLevel(options.background(), d.background(), n[0], n[1], n[2], d.y());
 		final RichardsonLucySolver s = new RichardsonLucySolver(p.psf(), n, options.edges(), d.y(), d.background(), options.method(),
 				options.regularization(), initial == null ? null : initial.data(), fit);
@@ -84,7 +89,7 @@ public final class Deconvolution {
 		case RL_ACCELERATED -> "Accelerated Richardson-Lucy";
 		default -> "Richardson-Lucy";
 		};
-		final int max = options.iterations();
+		final int max = held != null ? held.fullIterations() : options.iterations();
 		final EstimateView view = s.view();
 		boolean converged = false;
 		int done = 0;
@@ -128,6 +133,7 @@ public final class Deconvolution {
 	/** Bytes a run allocates, for a memory check before starting. */
 	public static long bytesNeeded(final int[] imageShape, final int[] psfShape, final DeconvolutionOptions options) {
 		return options.method() == DeconvolutionMethod.WIENER ? WienerFilter.bytesNeeded(imageShape, psfShape, options.edges()) + 8L * imageShape[0] * imageShape[1] * imageShape[2]
-				: RichardsonLucySolver.bytesNeeded(imageShape, psfShape, options.edges(), options.method());
+				: RichardsonLucySolver.bytesNeeded(imageShape, psfShape, options.edges(), options.method())
+						+ (options.stopping() == Stopping.HELD_OUT ? HoldOutStop.bytesNeeded(imageShape) : 0);
 	}
 }

@@ -448,4 +448,33 @@ final class RichardsonLucySolver {
 			System.arraycopy(x, wx + mx * (iy + wy + my * (iz + wz)), dst, r * nx, nx);
 		});
 	}
+
+	// -- held-out validation (HoldOutStop) --
+
+	/**
+	 * Poisson log-likelihood Σ [v ln(Hx + bv) − (Hx + bv)] of other data v (another half of a thinned
+	 * recording, image window, NaN voxels left out) under the current estimate, with background bv (one
+	 * convolution; the iterate is not changed, t holds a copy of x afterwards).
+	 */
+	double logLikelihoodOf(final float[] v, final double background) {
+		if (v.length != nx * ny * nz) throw new IllegalArgumentException("Array of " + v.length + " values does not match the image");
+		final float bv = (float) background;
+		fft.convolveInPlace(t, transfer, false, objectRows, null, windowRows, (r, o) -> {
+			final int wr = windowRow(r);
+			final int q = o + wx, yo = wr * nx;
+			double ll = 0;
+			for (int i = 0; i < nx; i++) {
+				float den = t[q + i] + bv;
+				if (!(den >= floor)) den = floor;
+				final float yy = v[yo + i];
+				if (yy != yy) continue;
+				ll -= den;
+				if (yy > 0) ll += yy * FastLog.ln(den);
+			}
+			w1[wr] = ll;
+		});
+		final double ll = ordered(w1);
+		copyObjectToGrid();
+		return ll;
+	}
 }

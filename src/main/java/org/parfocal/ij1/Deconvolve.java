@@ -26,6 +26,7 @@ import org.parfocal.deconv.Deconvolution;
 import org.parfocal.deconv.DeconvolutionMethod;
 import org.parfocal.deconv.DeconvolutionOptions;
 import org.parfocal.deconv.DeconvolutionResult;
+import org.parfocal.deconv.DefaultRun;
 import org.parfocal.deconv.EdgeMode;
 import org.parfocal.deconv.IterationReport;
 import org.parfocal.deconv.Level;
@@ -216,10 +217,13 @@ public class Deconvolve implements PlugIn {
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
 		gd.addChoice("PSF:", psfChoices, guessPsf(titles));
-		gd.addChoice("Method:", DeconvolutionMethod.keys(), Commands.remembered(PREFS + "method", DeconvolutionMethod.RL_TV.key()));
-		gd.addNumericField("Iterations:", Commands.remembered(PREFS + "iterations", 30), 0, 6, "at most, with relative-change stop");
+		// the default run (DefaultRun) when method, iterations or stop are left out; a macro line that gives iterations without stop runs them all
+		final boolean iterationsGiven = Commands.isMacro() && ij.Macro.getValue(ij.Macro.getOptions(), "iterations", null) != null;
+		gd.addChoice("Method:", DeconvolutionMethod.keys(), Commands.remembered(PREFS + "method", DefaultRun.METHOD.key()));
+		gd.addNumericField("Iterations:", Commands.remembered(PREFS + "iterations", DefaultRun.CAP), 0, 6, "at most, with relative-change or held-out stop");
 		gd.addNumericField("Regularization:", Commands.remembered(PREFS + "regularization", 0.002), 4, 8, "TV weight (RL-TV) or Wiener weight");
-		gd.addChoice("Stop:", new String[] { Stopping.FIXED.key(), Stopping.RELATIVE_CHANGE.key() }, Commands.remembered(PREFS + "stop", Stopping.FIXED.key()));
+		gd.addChoice("Stop:", new String[] { Stopping.FIXED.key(), Stopping.RELATIVE_CHANGE.key(), Stopping.HELD_OUT.key() },
+				Commands.remembered(PREFS + "stop", DefaultRun.stop(iterationsGiven).key()));
 		gd.addNumericField("Threshold:", Commands.remembered(PREFS + "threshold", 0.001), 5, 8, "relative change that stops");
 		gd.addChoice("Edges:", EdgeMode.keys(), Commands.remembered(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
 		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
@@ -404,6 +408,8 @@ public class Deconvolve implements PlugIn {
 		prov.run("iterations", first.iterations()).run("stop_reason", stopReason(o.deconvolution(), first) + (o.watch() != null && o.watch().stopAtSuggestion() && !watches.isEmpty()
 				&& watches.get(0).best() != null ? "; the suggested iterate " + watches.get(0).suggestion().iteration() + " was returned (watch mode)" : "")).run("offset", first.offset())
 				.run("background", first.background());
+		if (o.deconvolution().stopping() == Stopping.HELD_OUT) // an edge of the range is not a choice: say so in the warnings box too
+			for (final String note : notes) if (note.startsWith(HELD_OUT_NOTE) && note.contains("no interior peak")) prov.warning(note);
 		if (n > 1) prov.run("volumes", n).run("offset_per_volume", results.stream().map(r -> (Object) r.offset()).toList())
 				.run("background_per_volume", results.stream().map(r -> (Object) r.background()).toList());
 		if (!first.history().isEmpty()) prov.run("relative_change", first.history().stream().map(h -> (Object) h.relativeChange()).toList());
@@ -547,9 +553,14 @@ public class Deconvolve implements PlugIn {
 		return plot;
 	}
 
+	/** Start of the held-out stop's note (deconv/HoldOutStop). */
+	static final String HELD_OUT_NOTE = "Held-out stop (Coakley 1991):";
+
 	/** Why the run stopped, in words, for provenance. */
 	static String stopReason(final DeconvolutionOptions d, final DeconvolutionResult r) {
 		if (d.method() == DeconvolutionMethod.WIENER) return "one-shot filter";
+		if (d.stopping() == Stopping.HELD_OUT)
+			for (final String note : r.notes()) if (note.startsWith(HELD_OUT_NOTE)) return note.substring(HELD_OUT_NOTE.length()).trim();
 		if (r.converged())
 			return String.format(Locale.ROOT, "relative change %.3g fell below %.3g at iteration %d", r.history().get(r.history().size() - 1).relativeChange(),
 					d.changeThreshold(), r.iterations());

@@ -174,10 +174,14 @@ final class DialogHelp {
 				.field("Method", "method", "", "<code>richardson-lucy</code> (Richardson 1972, Lucy 1974); <code>richardson-lucy-tv</code> with "
 						+ "total variation against noise (Dey et al., Microsc. Res. Tech. 2006); <code>accelerated-richardson-lucy</code> "
 						+ "(Biggs &amp; Andrews, Appl. Opt. 1997); <code>wiener</code>: one-step linear filter")
-				.field("Iterations", "iterations", "", "number of iterations; with Stop = relative-change, the most it may run")
+				.field("Iterations", "iterations", "", "number of iterations; with Stop = relative-change or held-out, the most it may run")
 				.field("Regularization", "regularization", "", "weight of total variation (richardson-lucy-tv) or of the Wiener filter; "
 						+ "ignored by the other methods. Larger = smoother")
-				.field("Stop", "stop", "", "<code>fixed</code>: run all iterations; <code>relative-change</code>: stop when the iterate changes less than Threshold")
+				.field("Stop", "stop", "", "<code>fixed</code>: run all iterations; <code>relative-change</code>: stop when the iterate changes less than Threshold; "
+						+ "<code>held-out</code> (default): the photons are split at random into two halves, the method runs on one half and "
+						+ "stops where its iterate best predicts the other half (Coakley, IEEE Trans. Nucl. Sci. 1991); the full data then get "
+						+ "that many iterations. The Log says when no interior peak was found within Iterations. A macro line that gives "
+						+ "<code>iterations</code> without <code>stop</code> runs them all (<code>fixed</code>), as before")
 				.field("Threshold", "threshold", "relative change", "relative change between two iterates below which the run stops (with relative-change only)")
 				.field("Edges", "edges", "", "what lies past the stack's edges: " + EDGES);
 		return levels(p, true).field("Plot convergence", "plot", "", "show the relative change per iteration")

@@ -126,7 +126,8 @@ class MacroKeysTest {
 		ImageJHarness.assertSamePixels(a, c, 0);
 		final ImagePlus d = ImageJHarness.run(obj, "Deconvolve...", "image=cell.tif psf=psf.tif offset=0 background=0").onlyCreated();
 		final var p = Provenance.of(d).orElseThrow().options();
-		assertEquals("30", p.get("iterations"), "the documented default, not the remembered 1");
-		assertEquals("richardson-lucy-tv", p.get("method"));
+		assertEquals("100", p.get("iterations"), "the documented default (the default run's cap), not the remembered 1");
+		assertEquals("accelerated-richardson-lucy", p.get("method"));
+		assertEquals("held-out", p.get("stop"));
 	}
 }

@@ -139,7 +139,11 @@ public final class SceneBenchmark {
 		return new org.parfocal.quality.QualityWatch(null, c, 1, false, s.recording().voxelSize()).consistency(xv).meanChiSquare();
 	}
 
-		public static Column column(final String header, final java.util.function.BiFunction<Scene, SceneRuns, String> cell) {
+	static {
+		COLUMNS.addAll(StopColumns.columns()); // issue 14: stopping, default run, TV weight
+	}
+
+	public static Column column(final String header, final java.util.function.BiFunction<Scene, SceneRuns, String> cell) {
 		return new Column() {
 			@Override
 			public String header() { return header; }

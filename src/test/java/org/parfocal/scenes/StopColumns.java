@@ -1,0 +1,112 @@
+package org.parfocal.scenes;
+
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+
+import org.parfocal.core.Monitor;
+import org.parfocal.deconv.DeconvolutionMethod;
+import org.parfocal.deconv.DeconvolutionOptions;
+import org.parfocal.deconv.HoldOutStop;
+import org.parfocal.deconv.Level;
+
+/**
+ * Columns of the scene table for issue 14's stopping and default-run items: the best iterate of each method
+ * (cap {@link #CAP}), the held-out stop's suggestion ({@link HoldOutStop}) against it, the default run
+ * (accelerated RL, held-out stop, cap {@link #CAP}, background {@code auto}), and the TV weight grid.
+ * A held-out suggestion costs no extra full run: a fixed run of N iterations is the first N iterates of the
+ * cap's run, so its PSNR is read off the cap's curve at the suggested count.
+ */
+final class StopColumns {
+
+	private StopColumns() {}
+
+	/** Cap of iterations of the default run and of the per-method curves. */
+	static final int CAP = 100;
+	/** TV weights of the weight grid. */
+	static final double[] WEIGHTS = { 0.0005, 0.001, 0.002, 0.005, 0.01 };
+
+	private static final Map<String, HoldOutStop.Result> SUGGESTIONS = new HashMap<>();
+
+	static DeconvolutionOptions opts(final Scene s, final DeconvolutionMethod m, final double w, final Level b) {
+		return SceneBenchmark.options(s, m, CAP, w, b);
+	}
+
+	static HoldOutStop.Result held(final Scene s, final DeconvolutionOptions o) {
+		return SUGGESTIONS.computeIfAbsent(s.name() + " " + o, k -> HoldOutStop.suggest(s.recording(), s.psf(), o, Monitor.NONE));
+	}
+
+	static double gain(final Scene s, final double psnr) {
+		return psnr - Score.inputPsnr(s);
+	}
+
+	/** "+g @k" of the best iterate of a curve. */
+	static String best(final Scene s, final SceneRuns.Curve c) {
+		return SceneBenchmark.db(gain(s, c.best())) + " @" + (c.bestIndex() + 1);
+	}
+
+	/** The held-out suggestion of options o: gain at round(f·k*) and its distance to the curve's best; "k*" and an edge flag. */
+	static String heldOut(final Scene s, final SceneRuns r, final DeconvolutionOptions o, final double factor) {
+		final HoldOutStop.Result h = held(s, o);
+		final SceneRuns.Curve c = r.curve(s, o);
+		final int n = Math.max(1, Math.min(CAP, (int) Math.round(factor * h.peak())));
+		return SceneBenchmark.db(gain(s, c.at(n))) + " (" + SceneBenchmark.db(c.at(n) - c.best()) + ", k*=" + h.peak() + (h.interior() ? "" : " edge") + ")";
+	}
+
+	static List<SceneBenchmark.Column> columns() {
+		final List<SceneBenchmark.Column> cols = new ArrayList<>();
+		final DeconvolutionMethod acc = DeconvolutionMethod.RL_ACCELERATED, rl = DeconvolutionMethod.RL, tv = DeconvolutionMethod.RL_TV;
+		cols.add(SceneBenchmark.column("default run (acc. RL, held-out, cap 100, bg auto)", (s, r) -> {
+			final DeconvolutionOptions o = opts(s, acc, 0, Level.ESTIMATED);
+			final HoldOutStop.Result h = held(s, o);
+			final SceneRuns.Curve c = r.curve(s, o);
+			return SceneBenchmark.db(gain(s, c.at(h.fullIterations()))) + " @" + h.fullIterations() + (h.interior() ? "" : " edge");
+		}));
+		cols.add(SceneBenchmark.column("default run, bg true", (s, r) -> {
+			final DeconvolutionOptions o = opts(s, acc, 0, SceneBenchmark.trueBackground(s));
+			final HoldOutStop.Result h = held(s, o);
+			return SceneBenchmark.db(gain(s, r.curve(s, o).at(h.fullIterations()))) + " @" + h.fullIterations();
+		}));
+		cols.add(SceneBenchmark.column("best iterate (methods x TV weights, bg true)", (s, r) -> {
+			SceneRuns.Curve bc = null;
+			String what = null;
+			for (final DeconvolutionMethod m : List.of(rl, acc)) {
+				final SceneRuns.Curve c = r.curve(s, opts(s, m, 0, SceneBenchmark.trueBackground(s)));
+				if (bc == null || c.best() > bc.best()) { bc = c; what = m.key(); }
+			}
+			for (final double w : WEIGHTS) {
+				final SceneRuns.Curve c = r.curve(s, opts(s, tv, w, SceneBenchmark.trueBackground(s)));
+				if (c.best() > bc.best()) { bc = c; what = "tv " + w; }
+			}
+			return best(s, bc) + " " + what;
+		}));
+		for (final DeconvolutionMethod m : List.of(acc, rl)) {
+			final String name = m == acc ? "acc" : "rl";
+			cols.add(SceneBenchmark.column(name + " best", (s, r) -> best(s, r.curve(s, opts(s, m, 0, SceneBenchmark.trueBackground(s))))));
+			for (final double f : m == acc ? new double[] { 1, 1.25, 1.5, 2 } : new double[] { 1, 1.5 })
+				cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "%s held-out x%.2f", name, f),
+						(s, r) -> heldOut(s, r, opts(s, m, 0, SceneBenchmark.trueBackground(s)), f)));
+		}
+		cols.add(SceneBenchmark.column("tv 0.002 best", (s, r) -> best(s, r.curve(s, opts(s, tv, 0.002, SceneBenchmark.trueBackground(s))))));
+		cols.add(SceneBenchmark.column("tv 0.002 held-out x1.0", (s, r) -> heldOut(s, r, opts(s, tv, 0.002, SceneBenchmark.trueBackground(s)), 1)));
+		cols.add(SceneBenchmark.column("tv weights (best iterate each)", (s, r) -> {
+			final StringBuilder sb = new StringBuilder();
+			for (final double w : WEIGHTS) {
+				if (sb.length() > 0) sb.append(' ');
+				sb.append(w).append(':').append(SceneBenchmark.db(gain(s, r.curve(s, opts(s, tv, w, SceneBenchmark.trueBackground(s))).best())));
+			}
+			return sb.toString();
+		}));
+		cols.add(SceneBenchmark.column("photons/voxel", (s, r) -> String.format(Locale.ROOT, "%.3g", photonsPerVoxel(s))));
+		return cols;
+	}
+
+	/** Mean photons per voxel of the recording after the true offset (true gain): the noise level a TV rule may scale with. */
+	static double photonsPerVoxel(final Scene s) {
+		double sum = 0;
+		for (final float v : s.recording().data()) sum += Math.max(0, v - s.offset());
+		return sum / s.recording().data().length / s.gain();
+	}
+}
