@@ -116,17 +116,29 @@ public final class BlindDeconvolution {
 
 	/**
 	 * Blind deconvolution with a model fit ({@link ModelFit}): the PSF model's parameters are fitted first
-	 * (Gaussian widths from a Gaussian start; depth, sample index and NA of the start's model from a model
-	 * start), optionally refined free-form inside a trust region around the fitted model with every step
-	 * checked on held-out voxels ({@link RefineStep}); then the object is deconvolved on all the data with the
-	 * final PSF ({@code iterations × objectUpdates} updates, as non-blind RL or RL-TV). Without a plan
-	 * ({@code null}) this is {@link #run(Volume, BlindOptions, Monitor, BlindListener)}.
+	 * (from a Gaussian start the widefield shape of the start's widths, {@link ModelFit#widefieldShape}, or as
+	 * {@link FitPlan#gaussianStart()} says a Gaussian, or both with the higher held-out likelihood kept; depth, sample index and NA of the start's
+	 * model from a model start), optionally refined free-form inside a trust region around the fitted model with
+	 * every step checked on held-out voxels ({@link RefineStep}: kept only when the held-out likelihood rises by
+	 * more than its noise, a paired t over blocks of rows above {@link #REFINE_T}); then the object is
+	 * deconvolved on all the data with the final PSF ({@code iterations × objectUpdates} updates, as non-blind RL
+	 * or RL-TV). Without a plan ({@code null}) this is {@link #run(Volume, BlindOptions, Monitor, BlindListener)}.
 	 * <p>
 	 * The box: the given support, else for a model start the smallest holding {@link LightBox#FRACTION} of the
-	 * model's light within the image ({@link LightBox}), for a Gaussian start ±3 FWHM of the start (±2 FWHM of a
-	 * Gaussian 1.5× as wide).
+	 * model's light within the image ({@link LightBox}), for a Gaussian start ±3 FWHM of the start, enlarged
+	 * (unless only the Gaussian is fitted) to hold 95 % of the widefield shape's light.
 	 */
 	public static BlindResult run(final Volume image, final BlindOptions options, final FitPlan plan, final Monitor monitor, final BlindListener listener) {
+		return run(image, options, plan, monitor, listener, java.util.function.UnaryOperator.identity());
+	}
+
+	/**
+	 * As {@link #run(Volume, BlindOptions, FitPlan, Monitor, BlindListener)} with every model family passed
+	 * through {@code adapt} first (e.g. {@link ModelFit#peakCentred} for simulations whose PSF was centred on
+	 * its maximum).
+	 */
+	static BlindResult run(final Volume image, final BlindOptions options, final FitPlan plan, final Monitor monitor, final BlindListener listener,
+			final java.util.function.UnaryOperator<ModelFit.Space> adapt) {
 		if (plan == null) return run(image, options, monitor, listener);
 		if (image == null || options == null) throw new IllegalArgumentException("No image or options given");
 		options.checkFor(image);
@@ -138,15 +150,27 @@ public final class BlindDeconvolution {
 		final VoxelSize vs = image.voxelSize();
 		final double[] um = micronSizes(vs);
 		final List<String> notes = new ArrayList<>();
-		final ModelFit.Space space;
+		ModelFit.Space space;
+		ModelFit.Space rival = null;
 		int[] k;
 		if (options.start() instanceof PsfStart.Gaussian g) {
-			space = ModelFit.gaussian(g.fwhmLateral(), g.fwhmAxial(), n[2] > 1);
-			k = options.support() != null ? options.support().shape()
-					: new int[] { size(3 * g.fwhmLateral() / um[0], n[0]), size(3 * g.fwhmLateral() / um[1], n[1]), n[2] == 1 ? 1 : size(3 * g.fwhmAxial() / um[2], n[2]) };
+			final ModelFit.Space gs = adapt.apply(ModelFit.gaussian(g.fwhmLateral(), g.fwhmAxial(), n[2] > 1));
+			final ModelFit.Space ws = adapt.apply(ModelFit.widefieldShape(g.fwhmLateral(), g.fwhmAxial(), n[2] > 1));
+			space = plan.gaussianStart() == FitPlan.GaussianStart.WIDEFIELD ? ws : gs;
+			if (plan.gaussianStart() == FitPlan.GaussianStart.BY_HELD_OUT) rival = ws;
+			if (options.support() != null) k = options.support().shape();
+			else {
+				k = new int[] { size(3 * g.fwhmLateral() / um[0], n[0]), size(3 * g.fwhmLateral() / um[1], n[1]), n[2] == 1 ? 1 : size(3 * g.fwhmAxial() / um[2], n[2]) };
+				final int[] big = LightBox.largest(n);
+				if (plan.gaussianStart() != FitPlan.GaussianStart.GAUSSIAN) {
+					final int[] w = LightBox.holding(ws.psf(ws.start(), new PsfGrid(big[0], big[1], big[2], um[0], um[1], um[2])), new ArrayList<>());
+					for (int d = 0; d < 3; d++) k[d] = Math.max(k[d], w[d]);
+					notes.add("PSF box " + k[0] + " x " + k[1] + " x " + k[2] + ": ±3 FWHM of the starting Gaussian, enlarged to hold 95 % of the light of a widefield PSF of the same widths within the image");
+				}
+			}
 		} else {
 			final PsfStart.Model m = (PsfStart.Model) options.start();
-			space = ModelFit.optics(m.key(), options.optics());
+			space = adapt.apply(ModelFit.optics(m.key(), options.optics()));
 			if (options.support() != null) k = options.support().shape();
 			else {
 				final int[] big = LightBox.largest(n);
@@ -159,10 +183,23 @@ public final class BlindDeconvolution {
 		notes.addAll(d.notes());
 		mon.checkCancelled();
 		final float[] y = d.y();
-		final ModelFit.Fit fit = ModelFit.fit(y, n, um, image, d.background(), options.edges(), k, space, plan.settings().withObjectTv(options.objectTv()), mon);
+		ModelFit.Fit fit = ModelFit.fit(y, n, um, image, d.background(), options.edges(), k, space, plan.settings().withObjectTv(options.objectTv()), mon);
+		if (rival != null) {
+			// a Gaussian start: the Gaussian and the widefield shape of the same widths are both fitted, and the one
+			// that predicts the held-out half better is kept (cross-validated model choice; same split and box)
+			final ModelFit.Fit other = ModelFit.fit(y, n, um, image, d.background(), options.edges(), k, rival, plan.settings().withObjectTv(options.objectTv()), mon);
+			final boolean wide = other.heldOutLogLikelihood() > fit.heldOutLogLikelihood();
+			notes.add(String.format(Locale.ROOT, "Model choice from the Gaussian start: the held-out log-likelihood of the widefield shape is %+.4g against the Gaussian's: %s kept",
+					other.heldOutLogLikelihood() - fit.heldOutLogLikelihood(), wide ? "the widefield shape" : "the Gaussian"));
+			notes.add("(not kept) " + (wide ? fit : other).summary());
+			if (wide) {
+				fit = other;
+				space = rival;
+			}
+		}
 		notes.add(fit.summary());
 		notes.addAll(fit.notes());
-		if (fit.optics() != null && options.support() == null) {
+		if (fit.optics() != null && options.support() == null && !ModelFit.WIDEFIELD_SHAPE.equals(fit.model())) {
 			final int[] big = LightBox.largest(n);
 			final double f = LightBox.fraction(space.psf(fit.parameters().stream().mapToDouble(ModelFit.Parameter::value).toArray(),
 					new PsfGrid(big[0], big[1], big[2], um[0], um[1], um[2])), k);
@@ -195,8 +232,8 @@ public final class BlindDeconvolution {
 			final BlindSolver check = ModelFit.solver(fit.psf(), n, options.edges(), halves, d.background(), options.objectTv());
 			float[] kept = hFinal.clone();
 			final float[] flat = check.objectCopy();
-			double keptScore = fit.heldOutLogLikelihood();
 			final int block = options.snapshotInterval(), w = plan.settings().candidateIterations();
+			ModelFit.Score keptScore = score(check, kept, flat, w, mon);
 			for (int it = 1; it <= max; it++) {
 				mon.checkCancelled();
 				mon.progress(it - 1, 2 * max, "Refining the PSF: iteration " + it + " of " + max);
@@ -205,16 +242,22 @@ public final class BlindDeconvolution {
 				if (it % block == 0 || it == max) {
 					final float[] cand = r.psf().clone();
 					final double dist = constraints.distanceToAnchor(cand);
-					final double before = keptScore, after = score(check, cand, flat, w, mon);
-					final boolean keep = after >= before;
+					final ModelFit.Score next = score(check, cand, flat, w, mon);
+					final double before = keptScore.value(), after = next.value();
+					final double t = ModelFit.pairedT(keptScore.rows(), next.rows());
+					final boolean keep = after > before && t > REFINE_T;
 					final String why = keep
-							? String.format(Locale.ROOT, "kept: held-out log-likelihood (object re-fitted) %+.4g; distance to the model %.3f (trust radius %.3g)", after - before, dist,
-									plan.trustRadius())
-							: String.format(Locale.ROOT, "undone: held-out log-likelihood (object re-fitted) would fall by %.4g; distance to the model %.3f", before - after, dist);
+							? String.format(Locale.ROOT, "kept: held-out log-likelihood (object re-fitted) %+.4g, paired t %.2f > %.1f over blocks of rows; distance to the model %.3f (trust radius %.3g)",
+									after - before, t, REFINE_T, dist, plan.trustRadius())
+							: after > before
+									? String.format(Locale.ROOT, "undone: held-out log-likelihood %+.4g is within its noise (paired t %.2f ≤ %.1f over blocks of rows); distance to the model %.3f",
+											after - before, t, REFINE_T, dist)
+									: String.format(Locale.ROOT, "undone: held-out log-likelihood (object re-fitted) would fall by %.4g (paired t %.2f); distance to the model %.3f", before - after,
+											t, dist);
 					steps.add(new RefineStep(it, before, after, dist, keep, why));
 					if (keep) {
 						kept = cand;
-						keptScore = after;
+						keptScore = next;
 					} else r.replacePsf(kept);
 					if (it < max) snaps.add(snapshot(it, r.psf(), h0, k, vs));
 				}
@@ -248,11 +291,17 @@ public final class BlindDeconvolution {
 				d.background(), notes, fit, steps);
 	}
 
+	/**
+	 * Paired t (over blocks of held-out rows, {@link ModelFit#pairedT}) a refinement step must exceed to be kept:
+	 * about a one-sided 2.3 % chance that a step which does not predict better is kept anyway (normal tail).
+	 */
+	static final double REFINE_T = 2;
+
 	/** Held-out log-likelihood of PSF h with its own object: w RL iterations from x (the flat start) on the training voxels. */
-	private static double score(final BlindSolver check, final float[] h, final float[] x, final int w, final Monitor mon) {
+	private static ModelFit.Score score(final BlindSolver check, final float[] h, final float[] x, final int w, final Monitor mon) {
 		check.replacePsf(h);
 		check.setObject(x);
-		return ModelFit.peakHeldOut(check, w, mon::checkCancelled);
+		return ModelFit.peakHeldOutRows(check, w, mon::checkCancelled);
 	}
 
 	/** µm per voxel, or 1 per voxel for an uncalibrated image (used only by constraints that then are off). */

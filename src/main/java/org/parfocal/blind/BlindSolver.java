@@ -613,6 +613,9 @@ final class BlindSolver {
 		tHoldsX = false;
 	}
 
+	/** Held-out log-likelihood per image row (y fastest, then z) of the iterate the last update or evaluation started from. */
+	double[] heldOutRows() { return w3.clone(); }
+
 	/** The current PSF (box array, live). */
 	float[] psf() { return h; }
 

@@ -119,10 +119,14 @@ public class BlindDeconvolve implements PlugIn {
 					supportZ, supportUnits, snapshotInterval, edges, offset, background, optics, band, watch, e, radius);
 		}
 
-		/** The model-fit plan, or null for free-form. */
+		/**
+		 * The model-fit plan, or null for free-form. A Gaussian start fits the Gaussian family, as recorded lines
+		 * of this command always did (the core's default is the widefield shape; no key selects it yet).
+		 */
 		public FitPlan plan() {
 			if (FREE_FORM.equals(estimate)) return null;
-			return (MODEL_FIT_REFINED.equals(estimate) ? FitPlan.refined() : FitPlan.model()).withTrustRadius(trustRadius);
+			return (MODEL_FIT_REFINED.equals(estimate) ? FitPlan.refined() : FitPlan.model()).withTrustRadius(trustRadius)
+					.withGaussianStart(FitPlan.GaussianStart.GAUSSIAN);
 		}
 
 		/** Without watch mode. */

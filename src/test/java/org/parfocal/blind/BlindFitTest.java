@@ -103,7 +103,8 @@ class BlindFitTest {
 	void refinementKeepsTheTrustRegionAndSaysWhyForEveryStep() {
 		final BlindOptions o = BlindOptions.of(PsfStart.gaussian(0.8 * FX, 0.8 * FZ), null).withBackground(Level.of(B)).withRegularization(0, 0)
 				.withIterations(10).withSnapshotInterval(5).withSupport(new SupportBox(BOX[0], BOX[1], BOX[2]));
-		final FitPlan plan = FitPlan.refined().withSettings(new ModelFit.Settings(150, 20, 0, false)).withTrustRadius(0.1);
+		final FitPlan plan = FitPlan.refined().withSettings(new ModelFit.Settings(150, 20, 0, false)).withTrustRadius(0.1)
+				.withGaussianStart(FitPlan.GaussianStart.GAUSSIAN);
 		final BlindResult r = BlindDeconvolution.run(RECORDED, o, plan, Monitor.NONE, BlindListener.NONE);
 		assertEquals(2, r.refinement().size(), "one check per block of 5 iterations");
 		final float[] m = r.fit().psf().data(), h = r.psf().data();
@@ -118,7 +119,7 @@ class BlindFitTest {
 		assertEquals(1, sum, 1e-5);
 		for (final RefineStep s : r.refinement()) {
 			assertTrue(s.reason().startsWith(s.accepted() ? "kept" : "undone"), s.reason());
-			assertEquals(s.accepted(), s.heldOutAfter() >= s.heldOutBefore());
+			if (s.accepted()) assertTrue(s.heldOutAfter() > s.heldOutBefore(), "a kept step predicts the held-out half better");
 		}
 		assertEquals(10, r.history().size());
 		assertTrue(r.notes().stream().anyMatch(s -> s.startsWith("gaussian:")), "fitted parameters in the notes");

@@ -209,7 +209,8 @@ class BlindDeconvolveCommandTest {
 		final ImageJHarness.Result run = ImageJHarness.run(img, CMD, opt);
 		final BlindOptions o = new BlindOptions(4, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5), true, false, true, BAND, 2,
 				EdgeMode.NON_CIRCULANT, Level.of(100), Level.ESTIMATED);
-		final BlindResult core = BlindDeconvolution.run(ImageBridge.toCore(img).first(), o, org.parfocal.blind.FitPlan.refined().withTrustRadius(0.15),
+		final BlindResult core = BlindDeconvolution.run(ImageBridge.toCore(img).first(), o, org.parfocal.blind.FitPlan.refined().withTrustRadius(0.15)
+				.withGaussianStart(org.parfocal.blind.FitPlan.GaussianStart.GAUSSIAN),
 				Monitor.NONE, null);
 		assertClose(core.estimate().data(), ImageBridge.toCore(created(run, "cell-blind.tif")).first().data(), "command = core");
 		final var prov = Provenance.of(created(run, "cell-blind.tif")).orElseThrow();
