@@ -176,6 +176,12 @@ final class DialogHelp {
 		return levels(p).field("Plot convergence", "plot", "", "show the relative change per iteration")
 				.field("Watch quality", "watch", "", "every few iterations, compare the iterate with sharp references and the data (next dialog)")
 				.field("Recentre the PSF", "recentre", "", "shift an open PSF so its centre of mass sits on the centre voxel (a PSF off centre shifts the result)")
+				.field("Output", "output", "", "<code>32-bit</code> (default; left out of recorded lines and records, so a macro without the key gets it): the computed values; <code>16-bit</code>: "
+						+ "for tools that expect camera-like data, stored as value = offset + scale &times; stored, with offset (the smallest value) "
+						+ "and scale (the range &divide; 65535) in the record, the Info and ImageJ's calibration; each value is within half a step "
+						+ "(scale &divide; 2) of the 32-bit one")
+				.note("<b>Preview</b> (no macro key, never recorded): a few iterations on a small region around the view and a few planes around the current one, in a "
+						+ "temporary window; updated when a field changes, stopped by Esc or by closing the dialog.")
 				.note("With <code>psf=from_optics</code> the keys of PSF from Optics follow (see its Help).");
 	}
 
