@@ -257,7 +257,7 @@ final class DeconvolvePreview {
 	private static final class View extends Canvas {
 		private static final long serialVersionUID = 1L;
 		private Image left, right;
-		private String caption = "";
+		private String leftCaption = "", rightCaption = "";
 		private int w, h, zoom = 1;
 
 		void set(final Result r) {
@@ -266,9 +266,9 @@ final class DeconvolvePreview {
 			zoom = Math.max(1, Math.min(4, 256 / Math.max(w, h)));
 			left = image(r.data(), w, h);
 			right = image(r.result(), w, h);
-			caption = "data, plane " + r.z() + "        preview: " + (r.iterations() == 0 ? "Wiener filter" : r.iterations() + " iteration(s)") + " on planes "
-					+ r.z0() + "-" + r.z1();
-			setPreferredSize(new Dimension(2 * w * zoom + 12, h * zoom + 24));
+			leftCaption = "data, plane " + r.z();
+			rightCaption = (r.iterations() == 0 ? "Wiener filter" : r.iterations() + " iteration(s)") + ", planes " + r.z0() + "-" + r.z1();
+			setPreferredSize(new Dimension(Math.max(2 * w * zoom + 12, 300), h * zoom + 24));
 			repaint();
 		}
 
@@ -286,7 +286,8 @@ final class DeconvolvePreview {
 			g.drawImage(left, 4, 20, w * zoom, h * zoom, null);
 			g.drawImage(right, 8 + w * zoom, 20, w * zoom, h * zoom, null);
 			g.setColor(Color.WHITE);
-			g.drawString(caption, 4, 14);
+			g.drawString(leftCaption, 4, 14);
+			g.drawString(rightCaption, 8 + w * zoom, 14);
 		}
 	}
 
