@@ -86,7 +86,9 @@ final class DialogHelp {
 	static Page psfFromOptics(final boolean withProfiles) {
 		final Page p = new Page("PSF from Optics", "Computes a PSF from the objective, the sample and the light. The result is a 32-bit stack "
 				+ "with unit sum, its emitter at the centre voxel, calibrated in &micro;m. Fields a model or modality does not use are "
-				+ "ignored (and the record says so).")
+				+ "ignored (and the record says so). Opened from the menu, the fields start from the optics in the current image's "
+				+ "record, or in its inputs' records (a PSF from Optics, a run with <code>psf=from_optics</code>); a macro always gets "
+				+ "the defaults below.")
 				.field("Model", "model", "", "<code>gaussian</code>: Gaussian fit to the widefield/confocal PSF (Zhang et al., Appl. Opt. 2007); "
 						+ "<code>born-wolf</code>: scalar diffraction, in focus in a matched sample; <code>gibson-lanni</code>: scalar, with the "
 						+ "aberration of a sample or coverslip that differs from what the objective was made for, growing with depth "

@@ -114,6 +114,24 @@ class DeconvolveChoicesTest {
 	}
 
 	@Test
+	void opticsDefaultsComeFromTheNearestRecordThatHoldsOptics() {
+		final ImagePlus psf = opticsPsf(1.1);
+		assertEquals("1.1", OpticsDefaults.of(psf).get("na"), "the PSF's own record");
+		final ImagePlus obj = ImageBridge.toImagePlus(DeconvolveCommandTest.truth().withVoxelSize(VOXEL), "cell.tif");
+		ImageJHarness.open(obj, psf);
+		final ImagePlus blurred = ImageJHarness.run(obj, "Convolve with PSF...", "image=cell.tif psf=" + psf.getTitle()
+				+ " boundary=zero normalize background=0 photons=0 seed=1 offset=0").onlyCreated();
+		final var found = OpticsDefaults.of(blurred);
+		assertEquals("1.1", found.get("na"), "through the Convolve record's PSF input");
+		assertEquals("born-wolf", found.get("model"));
+		assertEquals("0.52", found.get("emission"));
+		assertNull(found.get("voxel_xy"), "sampling comes from the image, not from the record");
+		assertTrue(OpticsDefaults.of(obj).isEmpty(), "no record, no optics");
+		assertEquals(1.1, OpticsDefaults.number(found, "na", 1.4));
+		assertEquals(1.4, OpticsDefaults.number(found, "no_such_key", 1.4));
+	}
+
+	@Test
 	void sixteenBitOutputTimesScalePlusOffsetIsTheFloatResultWithinOneStep() {
 		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif"), psf = ImageBridge.toImagePlus(DeconvolveCommandTest.gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
 		ImageJHarness.open(img, psf);
