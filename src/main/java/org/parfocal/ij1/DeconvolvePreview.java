@@ -45,7 +45,9 @@ import org.parfocal.deconv.IterationListener;
  * pixels around the centre of the visible part of the image (or its rectangle selection) and
  * {@value #HALF_SLAB} planes on either side of the current plane, for the current channel and frame. The data
  * plane and the preview plane are shown side by side in a temporary window owned by the dialog — not an image
- * window, so it is never the current image, never in the image lists and never recorded. Each change of a field
+ * window, so it is never the current image, never in the image lists and never recorded. A PSF deeper than the
+ * slab widens the slab to its depth where the stack allows; what is still larger than the region is cropped
+ * about its centre (and normalised again) for the preview only. Each change of a field
  * starts a new run (the running one is abandoned at its next iteration); Esc stops it; closing the dialog
  * closes the window. Offset and background "auto" are estimated on the slab, so the preview's levels may differ
  * a little from the full run's.
@@ -201,14 +203,25 @@ final class DeconvolvePreview {
 		final ImagePlus imp = Commands.image(s.image(), "image");
 		final ImagePlus psfImp = Commands.image(s.psf(), "PSF");
 		final Rectangle r = region(imp);
-		final int z = imp.getZ(), z0 = Math.max(1, z - HALF_SLAB), z1 = Math.min(imp.getNSlices(), z + HALF_SLAB);
-		final Volume slab = crop(imp, r, z0, z1, imp.getC(), imp.getT());
+		final int z = imp.getZ();
+		int z0 = Math.max(1, z - HALF_SLAB), z1 = Math.min(imp.getNSlices(), z + HALF_SLAB);
+		Volume slab = crop(imp, r, z0, z1, imp.getC(), imp.getT());
 		final Hyperstack psfAll = ImageBridge.toCore(psfImp);
 		final Volume psfChannel = psfAll.get(psfAll.channels() == 1 ? 0 : Math.min(imp.getC(), psfAll.channels()) - 1, 0);
 		final ImagePlus onePsf = ImageBridge.toImagePlus(psfChannel, psfImp.getTitle());
 		final List<String> notes = new ArrayList<>();
-		final Volume p = Deconvolve.psfsFor(Hyperstack.of(slab), onePsf, null, notes, s.recentre()).get(0);
-		final DeconvolutionResult res = Commands.withImageJThreads(() -> Deconvolution.run(slab, p, s.options(), null, new Monitor() {
+		Volume psf = Deconvolve.psfsFor(Hyperstack.of(slab), onePsf, null, notes, s.recentre()).get(0);
+		if (psf.nz() > slab.nz()) { // a deep (widefield) PSF: as many planes as it has, as far as the stack allows
+			z0 = Math.max(1, z - psf.nz() / 2);
+			z1 = Math.min(imp.getNSlices(), z0 + psf.nz() - 1);
+			z0 = Math.max(1, Math.min(z0, z1 - psf.nz() + 1));
+			slab = crop(imp, r, z0, z1, imp.getC(), imp.getT());
+		}
+		if (psf.nx() > slab.nx() || psf.ny() > slab.ny() || psf.nz() > slab.nz()) // the engine takes no PSF larger than the image
+			psf = org.parfocal.conv.Psfs.normalized(org.parfocal.conv.Psfs.resizeCentered(psf, Math.min(psf.nx(), slab.nx()), Math.min(psf.ny(), slab.ny()),
+					Math.min(psf.nz(), slab.nz())));
+		final Volume p = psf, slabData = slab;
+		final DeconvolutionResult res = Commands.withImageJThreads(() -> Deconvolution.run(slabData, p, s.options(), null, new Monitor() {
 			@Override
 			public boolean isCancelled() {
 				return cancelled.getAsBoolean() || IJ.escapePressed();
@@ -220,7 +233,7 @@ final class DeconvolvePreview {
 		}
 		final int plane = z - z0, n = r.width * r.height;
 		final float[] data = new float[n], result = new float[n];
-		System.arraycopy(slab.data(), plane * n, data, 0, n);
+		System.arraycopy(slabData.data(), plane * n, data, 0, n);
 		System.arraycopy(res.estimate().data(), plane * n, result, 0, n);
 		return new Result(imp.getTitle(), data, result, r.width, r.height, z0, z1, z, s.options().method() == DeconvolutionMethod.WIENER ? 0 : res.iterations());
 	}

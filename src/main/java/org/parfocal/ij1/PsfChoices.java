@@ -19,7 +19,7 @@ import org.parfocal.provenance.MacroExport;
  * PSF of Make Sample Stacks), newest first; then other small stacks that can be normalised to unit sum (a
  * positive total, no strongly negative values, at most half the image's voxels), newest first. Never an RGB
  * image, never the image itself, never one whose channels or planes cannot match it (one channel or one per
- * image channel; no more planes than the image; one frame). The first entry is the default, so the PSF just
+ * image channel; a 2D PSF for a 2D image; one frame). The first entry is the default, so the PSF just
  * computed is preselected. Macros are not limited to this list: in a macro every open image is listed, and the
  * command checks the one given.
  */
@@ -75,7 +75,7 @@ final class PsfChoices {
 		if (p.getNFrames() != 1) return null;
 		if (image != null) {
 			if (p.getNChannels() != 1 && p.getNChannels() != image.getNChannels()) return null;
-			if (p.getNSlices() > image.getNSlices()) return null;
+			if (image.getNSlices() == 1 && p.getNSlices() > 1) return null; // a 3D PSF for a 2D image
 		}
 		if (madeAsPsf(p)) return Kind.PARFOCAL;
 		final long voxels = (long) p.getWidth() * p.getHeight() * p.getNSlices();

@@ -61,15 +61,19 @@ class DeconvolveChoicesTest {
 		final Volume neg = SampleScene.gaussianPsf(9, 9, 5);
 		neg.data()[0] = -0.5f; // far below zero: not a PSF
 		final ImagePlus negative = ImageBridge.toImagePlus(neg, "difference.tif");
-		final ImagePlus deep = ImageBridge.toImagePlus(SampleScene.gaussianPsf(9, 9, 15), "deep-psf.tif"); // more planes than the image
+		final ImagePlus deep = ImageBridge.toImagePlus(SampleScene.gaussianPsf(9, 9, 15), "deep-psf.tif"); // more planes than the image: allowed
 		final List<ImagePlus> open = List.of(img, older, small, truth, rgb, smallNoName, twoChannels, negative, newer, deep);
 		final List<String> titles = new ArrayList<>();
 		for (final PsfChoices.Candidate c : PsfChoices.candidates(img, open)) titles.add(c.title());
-		assertEquals(List.of(newer.getTitle(), older.getTitle(), "measured-psf.tif", "kernel.tif"), titles);
+		assertEquals(List.of(newer.getTitle(), older.getTitle(), "deep-psf.tif", "measured-psf.tif", "kernel.tif"), titles, "small stacks named PSF first, newest first");
 		assertTrue(newer.getID() < older.getID(), "ImageJ numbers newer images more negatively");
 		assertEquals(PsfChoices.Kind.PARFOCAL, PsfChoices.kind(newer, img));
 		assertEquals(PsfChoices.Kind.STACK, PsfChoices.kind(small, img));
-		for (final ImagePlus no : List.of(truth, rgb, twoChannels, negative, deep)) assertNull(PsfChoices.kind(no, img), no.getTitle());
+		for (final ImagePlus no : List.of(truth, rgb, twoChannels, negative)) assertNull(PsfChoices.kind(no, img), no.getTitle());
+		// a 2D image takes only 2D PSFs
+		final ImagePlus flat = ImageBridge.toImagePlus(SampleScene.cell(40, 36, 1, 7).withVoxelSize(VOXEL), "flat.tif");
+		assertNull(PsfChoices.kind(small, flat));
+		assertEquals(PsfChoices.Kind.STACK, PsfChoices.kind(ImageBridge.toImagePlus(SampleScene.gaussianPsf(9, 9, 1), "psf2d.tif"), flat));
 		// the two-channel PSF fits a two-channel image
 		final ImagePlus two = ImageBridge.toImagePlus(new Hyperstack(2, 1, List.of(DeconvolveCommandTest.truth(), DeconvolveCommandTest.truth())), "two.tif", null);
 		assertEquals(PsfChoices.Kind.STACK, PsfChoices.kind(twoChannels, two));
@@ -111,6 +115,36 @@ class DeconvolveChoicesTest {
 		assertEquals("periodic", rb.get("edges"));
 		assertNull(rb.get("output"), "32-bit, the default, is left out of the record as out of recorded lines");
 		assertEquals(ImagePlus.GRAY32, b.getType());
+	}
+
+	/**
+	 * The preview predicts the run: its plane (a few iterations on a slab of planes around the current one) is
+	 * much closer to the same plane of the full run with the same iterations than the data are. Reference: the
+	 * full command's own result (RL is local: with extended edges, planes beyond the PSF's reach hardly matter).
+	 */
+	@Test
+	void thePreviewPlaneIsCloseToTheSamePlaneOfTheFullRun() {
+		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif"), psf = ImageBridge.toImagePlus(DeconvolveCommandTest.gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
+		img.setSlice(5);
+		ImageJHarness.open(img, psf);
+		final var opts = org.parfocal.deconv.DeconvolutionOptions.of(DeconvolutionMethod.RL, DeconvolvePreview.MAX_ITERATIONS)
+				.withOffset(org.parfocal.deconv.Level.of(100)).withBackground(org.parfocal.deconv.Level.of(2));
+		final DeconvolvePreview.Result r = DeconvolvePreview.compute(new DeconvolvePreview.Settings("cell.tif", "psf.tif", opts, false), () -> false);
+		assertEquals(2, r.z0());
+		assertEquals(8, r.z1());
+		assertEquals(DeconvolvePreview.MAX_ITERATIONS, r.iterations());
+		final ImagePlus full = ImageJHarness.run(img, "Deconvolve...", "image=cell.tif psf=psf.tif method=richardson-lucy iterations="
+				+ DeconvolvePreview.MAX_ITERATIONS + " regularization=0 stop=fixed threshold=0.001 edges=extended offset=100 background=2").onlyCreated();
+		final float[] f = (float[]) full.getStack().getPixels(5);
+		double dPreview = 0, dData = 0, norm = 0;
+		for (int i = 0; i < f.length; i++) {
+			dPreview += (r.result()[i] - f[i]) * (double) (r.result()[i] - f[i]);
+			dData += (r.data()[i] - 100 - f[i]) * (double) (r.data()[i] - 100 - f[i]);
+			norm += f[i] * (double) f[i];
+		}
+		System.out.printf("preview vs full run, plane 5: relative difference %.4f; data vs full run %.4f%n", Math.sqrt(dPreview / norm), Math.sqrt(dData / norm));
+		assertTrue(Math.sqrt(dPreview / norm) < 0.05, "preview within 5 % of the full run");
+		assertTrue(dPreview < 0.05 * dData, "the preview is much closer to the result than the data are");
 	}
 
 	@Test
