@@ -64,15 +64,19 @@ final class Commands {
 	/**
 	 * In a macro, the choice the dialog returned must be the value the macro gave: without a display
 	 * ij1-patcher's dialog silently falls back to the default for an unknown value, which would run the
-	 * command on the wrong image.
+	 * command on the wrong image. Choices shown in words ({@link ChoiceWords}) come back as their macro values.
 	 */
 	static String checkChoice(final String key, final String chosen, final String what) {
 		final String options = Macro.getOptions();
-		if (options == null) return chosen;
+		final String value = ChoiceWords.value(key, chosen);
+		if (options == null) {
+			ChoiceWords.recordValue(key, chosen, value); // the Recorder keeps the macro value, not the words shown
+			return value;
+		}
 		final String given = Macro.getValue(options, key, null);
 		if (given != null && !given.equals(chosen))
 			throw new IllegalArgumentException("'" + given + "' is not a valid " + what + " (" + key + "=)");
-		return chosen;
+		return value;
 	}
 
 	/**
@@ -199,12 +203,13 @@ final class Commands {
 
 	/**
 	 * In a macro: an unknown key is an error naming the closest known key, a missing required key an error, and
-	 * old key names are translated (as whole keys) so the dialogs read them under their new names.
+	 * old key names are translated (as whole keys) so the dialogs read them under their new names, and choices
+	 * given in the words a dialog shows become their macro values ({@link ChoiceWords}).
 	 */
 	static void acceptKeys(final CommandKeys.Command keys) {
 		final String options = Macro.getOptions();
 		if (options == null) return;
-		final String checked = CommandKeys.check(keys, options);
+		final String checked = ChoiceWords.valuesForWords(CommandKeys.check(keys, options));
 		if (!checked.equals(options)) Macro.setOptions(checked);
 	}
 

@@ -73,7 +73,13 @@ public class Deconvolve implements PlugIn {
 	 * What the dialogs decide. {@code optics} is set when {@code psf} is {@link #FROM_OPTICS}.
 	 */
 	public record Options(String image, String psf, PsfFromOptics.Options optics, DeconvolutionOptions deconvolution, boolean plot, Watch watch,
-			boolean recentre) {
+			boolean recentre, OutputDepth output) {
+
+		/** A 32-bit output (what a macro without {@code output=} gets). */
+		public Options(final String image, final String psf, final PsfFromOptics.Options optics, final DeconvolutionOptions deconvolution, final boolean plot,
+				final Watch watch, final boolean recentre) {
+			this(image, psf, optics, deconvolution, plot, watch, recentre, OutputDepth.FLOAT);
+		}
 
 		/** Without re-centring the PSF ({@code recentre}: shift an open PSF's centre of mass to its centre voxel). */
 		public Options(final String image, final String psf, final PsfFromOptics.Options optics, final DeconvolutionOptions deconvolution, final boolean plot,
@@ -89,6 +95,7 @@ public class Deconvolve implements PlugIn {
 		public Options {
 			if (watch != null && deconvolution != null && deconvolution.method() == DeconvolutionMethod.WIENER)
 				throw new IllegalArgumentException("Watch mode needs an iterative method: the Wiener filter has no iterations to watch");
+			if (output == null) output = OutputDepth.FLOAT;
 		}
 
 		public String macroOptions() {
@@ -96,7 +103,7 @@ public class Deconvolve implements PlugIn {
 			final String s = "image=" + MacroOptions.quote(image) + " psf=" + MacroOptions.quote(psf) + " method=" + d.method().key() + " iterations="
 					+ d.iterations() + " regularization=" + MacroOptions.number(d.regularization()) + " stop=" + d.stopping().key() + " threshold="
 					+ MacroOptions.number(d.changeThreshold()) + " edges=" + d.edges().key() + " offset=" + level(d.offset()) + " background="
-					+ level(d.background()) + (plot ? " plot" : "") + (watch != null ? " watch" : "") + (recentre ? " recentre" : "");
+					+ level(d.background()) + (plot ? " plot" : "") + (watch != null ? " watch" : "") + (recentre ? " recentre" : "") + (output == OutputDepth.FLOAT ? "" : " output=" + output.key());
 			final String withOptics = optics == null ? s : s + " " + optics.macroOptions();
 			return watch == null ? withOptics : withOptics + " " + watch.macroOptions();
 		}
@@ -186,7 +193,7 @@ public class Deconvolve implements PlugIn {
 						CompareWithReferences.references(o.watch().referenceFolder(), o.watch().openReferences(), List.of(o.image(), o.psf())), null);
 				if (problem != null) {
 					if (!CompareWithReferences.askIgnoreCalibration(COMMAND, problem)) throw Commands.cancelled();
-					o = new Options(o.image(), o.psf(), o.optics(), o.deconvolution(), o.plot(), o.watch().withIgnoreCalibration(), o.recentre());
+					o = new Options(o.image(), o.psf(), o.optics(), o.deconvolution(), o.plot(), o.watch().withIgnoreCalibration(), o.recentre(), o.output());
 				}
 			}
 			final Output out = run(o);
@@ -210,13 +217,12 @@ public class Deconvolve implements PlugIn {
 	Options showDialog() {
 		final String[] titles = Commands.imageTitles();
 		if (titles.length == 0) throw new IllegalArgumentException("Open the stack to deconvolve first");
-		final String[] psfChoices = new String[titles.length + 1];
-		System.arraycopy(titles, 0, psfChoices, 0, titles.length);
-		psfChoices[titles.length] = FROM_OPTICS;
+		final String imageDefault = Commands.currentNonPsfTitle(titles);
+		final String[] psfChoices = PsfChoices.items(WindowManager.getImage(imageDefault)); // plausible PSFs, newest Parfocal PSF first
 		Commands.acceptOldValue("edges", EdgeMode.OLD_NON_CIRCULANT_KEY, EdgeMode.NON_CIRCULANT.key());
 		final GenericDialog gd = new GenericDialog(COMMAND);
-		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
-		gd.addChoice("PSF:", psfChoices, guessPsf(titles));
+		gd.addChoice("Image:", titles, imageDefault);
+		gd.addChoice("PSF:", psfChoices, psfChoices[0]);
 		// the default run (DefaultRun) when method, iterations or stop are left out; a macro line that gives iterations without stop runs them all
 		final boolean iterationsGiven = Commands.isMacro() && ij.Macro.getValue(ij.Macro.getOptions(), "iterations", null) != null;
 		gd.addChoice("Method:", DeconvolutionMethod.keys(), Commands.remembered(PREFS + "method", DefaultRun.METHOD.key()));
@@ -228,11 +234,20 @@ public class Deconvolve implements PlugIn {
 		gd.addChoice("Edges:", EdgeMode.keys(), Commands.remembered(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
 		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
 		gd.addStringField("Background:", Commands.remembered(PREFS + "background", "auto"), 8);
+		gd.addChoice("Output:", OutputDepth.keys(), Commands.remembered(PREFS + "output", OutputDepth.FLOAT.key()));
 		gd.addCheckbox("Plot convergence", true);
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
 		gd.addCheckbox("Recentre the PSF (shift its centre of mass to the centre voxel)", false);
 		gd.addHelp(DialogHelp.deconvolve().html());
-		gd.showDialog();
+		ChoiceWords.show(gd, "image", "psf", "method", "stop", "edges", "output");
+		PsfChoices.follow(gd);
+		DeconvolveHints.follow(gd);
+		final DeconvolvePreview preview = DeconvolvePreview.attach(gd);
+		try {
+			gd.showDialog();
+		} finally {
+			if (preview != null) preview.close();
+		}
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
 		final String psf = Commands.checkChoice("psf", gd.getNextChoice(), "PSF (an open image or " + FROM_OPTICS + ")");
@@ -245,6 +260,8 @@ public class Deconvolve implements PlugIn {
 		final boolean plot = gd.getNextBoolean();
 		final boolean watch = gd.getNextBoolean();
 		final boolean recentre = gd.getNextBoolean();
+		final OutputDepth output = OutputDepth.parse(Commands.checkChoice("output", gd.getNextChoice(), "output depth"));
+		if (output == OutputDepth.FLOAT) ChoiceWords.forgetRecorded("output"); // the default is left out, as in lines recorded before the key
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		if (iterations != Math.rint(iterations)) throw new IllegalArgumentException("Iterations must be a whole number, got " + iterations);
 		final DeconvolutionOptions d = new DeconvolutionOptions(method, (int) iterations, regularization, stop,
@@ -269,8 +286,9 @@ public class Deconvolve implements PlugIn {
 			Prefs.set(PREFS + "edges", edges.key());
 			Prefs.set(PREFS + "offset", offset);
 			Prefs.set(PREFS + "background", background);
+			Prefs.set(PREFS + "output", output.key());
 		}
-		return new Options(image, psf, optics, d, plot, w, recentre);
+		return new Options(image, psf, optics, d, plot, w, recentre, output);
 	}
 
 	/** The watch-mode dialog; in a macro, values not given take the defaults (never remembered ones). */
@@ -415,11 +433,18 @@ public class Deconvolve implements PlugIn {
 		if (!first.history().isEmpty()) prov.run("relative_change", first.history().stream().map(h -> (Object) h.relativeChange()).toList());
 		if (o.watch() != null) watchProvenance(prov, o.watch(), watches, refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
+		outputDepth(o, out, prov);
 		Provenance.attach(out, prov, start);
 		monitor.done(String.format(Locale.ROOT, "%d iteration(s), %.1f s", first.iterations(), (System.nanoTime() - start) / 1e9));
 		final Plot plot = o.plot() && !first.history().isEmpty() ? convergencePlot(results, title) : null;
 		final Plot quality = o.watch() == null ? null : qualityPlot(watches, title);
 		return new Output(out, plot, results, quality, List.copyOf(watches));
+	}
+
+	/** Stores the output at the asked depth; for 16-bit the scale and offset go into the record. */
+	static void outputDepth(final Options o, final ImagePlus out, final org.parfocal.provenance.Provenance.Builder prov) {
+		final OutputDepth.Scaling s = o.output().apply(out);
+		if (s != null) prov.run("output_depth", o.output().key()).run("output_offset", s.offset()).run("output_scale", s.scale());
 	}
 
 	/** System property (bytes) that overrides the memory budget deciding when to work block by block. */
@@ -474,6 +499,7 @@ public class Deconvolve implements PlugIn {
 				.run("offset", first.levels().offset()).run("background", first.levels().background()).run("block_plan", plan.describe());
 		if (n > 1) prov.run("volumes", n);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
+		outputDepth(o, out, prov);
 		Provenance.attach(out, prov, start);
 		monitor.done("block by block, " + plan.count() + " blocks");
 		return new Output(out, null, List.of());
@@ -679,8 +705,4 @@ public class Deconvolve implements PlugIn {
 		return plot;
 	}
 
-	private static String guessPsf(final String[] titles) {
-		for (final String t : titles) if (t.toLowerCase(Locale.ROOT).contains("psf")) return t;
-		return FROM_OPTICS;
-	}
 }

@@ -86,7 +86,9 @@ final class DialogHelp {
 	static Page psfFromOptics(final boolean withProfiles) {
 		final Page p = new Page("PSF from Optics", "Computes a PSF from the objective, the sample and the light. The result is a 32-bit stack "
 				+ "with unit sum, its emitter at the centre voxel, calibrated in &micro;m. Fields a model or modality does not use are "
-				+ "ignored (and the record says so).")
+				+ "ignored (and the record says so). Opened from the menu, the fields start from the optics in the current image's "
+				+ "record, or in its inputs' records (a PSF from Optics, a run with <code>psf=from_optics</code>); a macro always gets "
+				+ "the defaults below.")
 				.field("Model", "model", "", "<code>gaussian</code>: Gaussian fit to the widefield/confocal PSF (Zhang et al., Appl. Opt. 2007); "
 						+ "<code>born-wolf</code>: scalar diffraction, in focus in a matched sample; <code>gibson-lanni</code>: scalar, with the "
 						+ "aberration of a sample or coverslip that differs from what the objective was made for, growing with depth "
@@ -187,6 +189,12 @@ final class DialogHelp {
 		return levels(p, true).field("Plot convergence", "plot", "", "show the relative change per iteration")
 				.field("Watch quality", "watch", "", "every few iterations, compare the iterate with sharp references and the data (next dialog)")
 				.field("Recentre the PSF", "recentre", "", "shift an open PSF so its centre of mass sits on the centre voxel (a PSF off centre shifts the result)")
+				.field("Output", "output", "", "<code>32-bit</code> (default; left out of recorded lines and records, so a macro without the key gets it): the computed values; <code>16-bit</code>: "
+						+ "for tools that expect camera-like data, stored as value = offset + scale &times; stored, with offset (the smallest value) "
+						+ "and scale (the range &divide; 65535) in the record, the Info and ImageJ's calibration; each value is within half a step "
+						+ "(scale &divide; 2) of the 32-bit one")
+				.note("<b>Preview</b> (no macro key, never recorded): a few iterations on a small region around the view and a few planes around the current one, in a "
+						+ "temporary window; updated when a field changes, stopped by Esc or by closing the dialog.")
 				.note("With <code>psf=from_optics</code> the keys of PSF from Optics follow (see its Help).");
 	}
 

@@ -72,7 +72,7 @@ public final class CommandKeys {
 			"pinhole:N", "sheet_thickness:N"));
 	public static final Command DECONVOLVE = define("Deconvolve", List.of("image", "psf"), OLD_REFERENCES, List.of("image:T", "psf:T",
 			"method:W", "iterations:N", "regularization:N", "stop:W", "threshold:N", "edges:W", "offset:T", "background:T", "plot:F", "watch:F",
-			"recentre:F"), OPTICS, WATCH);
+			"recentre:F", "output:W"), OPTICS, WATCH);
 	public static final Command BLIND_DECONVOLVE = define("Blind Deconvolve", List.of("image", "psf"), OLD_REFERENCES, List.of("image:T",
 			"psf:T", "fwhm_xy:N", "fwhm_z:N", "iterations:N", "object_updates:N", "psf_updates:N", "object_tv:N", "psf_tv:N", "estimate:W",
 			"trust_radius:N", "band_limit:F", "symmetric:F", "centring:F", "support_xy:N", "support_z:N", "support_units:W", "snapshot_interval:N",

@@ -335,8 +335,8 @@ class DeconvolveCommandTest {
 			final List<Choice> ch = dialog.getChoices().stream().map(Choice.class::cast).toList();
 			ch.get(0).select("cell.tif");
 			ch.get(1).select("psf.tif");
-			ch.get(2).select("accelerated-richardson-lucy");
-			ch.get(3).select("relative-change");
+			ch.get(2).select(ChoiceWords.word("method", "accelerated-richardson-lucy")); // the dialog shows words
+			ch.get(3).select(ChoiceWords.word("stop", "relative-change"));
 			final List<TextField> num = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
 			num.get(0).setText("15");
 			num.get(2).setText("0.002");

@@ -234,8 +234,14 @@ public final class ImageJHarness {
 	 *
 	 * @param line the line the Recorder wrote, e.g. {@code run("Gaussian Blur...", "sigma=2.5");}
 	 * @param result the images the recorded run created, or the image it changed in place
+	 * @param text everything the Recorder wrote during the run
 	 */
-	public record Recording(String line, Result result) {}
+	public record Recording(String line, Result result, String text) {
+
+		public Recording(final String line, final Result result) {
+			this(line, result, line);
+		}
+	}
 
 	/**
 	 * Records a command the way a user produces a macro line: opens the macro Recorder, runs the
@@ -245,6 +251,17 @@ public final class ImageJHarness {
 	 * ({@link #assumeDisplay()}).
 	 */
 	public static Recording record(final ImagePlus imp, final String command, final DialogInput input) {
+		return record(imp, command, input, null);
+	}
+
+	/**
+	 * As {@link #record(ImagePlus, String, DialogInput)}; {@code beforeOk} (may be null) runs on the calling
+	 * thread after {@code input} filled the dialog and before OK is pressed, with the dialog open (e.g. to wait
+	 * for a preview).
+	 */
+	public static Recording record(final ImagePlus imp, final String command, final DialogInput input,
+		final java.util.function.Consumer<GenericDialog> beforeOk)
+	{
 		if (!hasDisplay()) throw new IllegalStateException("record() needs a display; call assumeDisplay() first");
 		synchronized (LOCK) {
 			final Set<Integer> before = imageIds();
@@ -277,6 +294,7 @@ public final class ImageJHarness {
 				final GenericDialog dialog = awaitDialog(menuThread);
 				if (dialog != null) {
 					onEventThread(() -> input.fill(dialog));
+					if (beforeOk != null) beforeOk.accept(dialog);
 					onEventThread(() -> dialog.actionPerformed(
 						new java.awt.event.ActionEvent(dialog.getButtons()[0], java.awt.event.ActionEvent.ACTION_PERFORMED, "OK")));
 				}
@@ -294,7 +312,7 @@ public final class ImageJHarness {
 				final String line = recordedLine(recorder.getText().substring(start), command);
 				final ImagePlus now = current.get();
 				if (now != null && now != imp && !created.contains(now)) created.add(now);
-				return new Recording(line, new Result(imp, created, now, log.since(mark)));
+				return new Recording(line, new Result(imp, created, now, log.since(mark)), recorder.getText().substring(start));
 			}
 			finally {
 				if (created.isEmpty()) takeNewImages(before);
