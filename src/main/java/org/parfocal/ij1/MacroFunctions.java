@@ -2,7 +2,6 @@ package org.parfocal.ij1;
 
 import ij.ImagePlus;
 import ij.WindowManager;
-import ij.macro.Interpreter;
 import ij.measure.ResultsTable;
 import ij.plugin.filter.Analyzer;
 
@@ -23,7 +22,8 @@ public final class MacroFunctions {
 
 	/**
 	 * Makes a Parfocal table ImageJ's Results table, so that {@code nResults}, {@code getResult(column, row)},
-	 * {@code Table.get(column, row)} and {@code Table.getColumn(column)} read it, with or without a display. The
+	 * {@code Table.get(column, row, "Results")} and {@code Table.getColumn(column, "Results")} read it, with or without
+	 * a display (with one, Table functions without a title read the front table window, which may be another). The
 	 * title is a table's (e.g. "Bead PSF FWHM") or an image's that carries its own table (the blind PSF history).
 	 * Returns the number of rows; an unknown title is a macro error.
 	 */
@@ -34,9 +34,10 @@ public final class MacroFunctions {
 			Commands.fail("selectTable", msg); // one line, and the macro stops
 			return "";
 		}
-		final ResultsTable copy = (ResultsTable) rt.clone();
-		Analyzer.setResultsTable(copy);
-		if (!java.awt.GraphicsEnvironment.isHeadless() && !Interpreter.isBatchMode()) copy.show("Results");
-		return Integer.toString(copy.size());
+		// into the system Results table itself (the object the Results window, if any, shows)
+		final ResultsTable results = Analyzer.getResultsTable();
+		Tables.copyInto(rt, results);
+		if (!java.awt.GraphicsEnvironment.isHeadless()) results.show("Results");
+		return Integer.toString(results.size());
 	}
 }

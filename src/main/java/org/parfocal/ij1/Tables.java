@@ -104,6 +104,25 @@ public final class Tables {
 		return rt;
 	}
 
+	/** Replaces {@code to}'s rows and columns by {@code from}'s (numbers, text, labels). */
+	static void copyInto(final ResultsTable from, final ResultsTable to) {
+		final ResultsTable t = fromText(toText(from));
+		to.reset();
+		final String[] headings = t.getHeadings();
+		for (int r = 0; r < t.size(); r++) {
+			to.incrementCounter();
+			for (final String h : headings) {
+				if (h.equals("Label")) to.addLabel(t.getLabel(r));
+				else {
+					final double v = t.getValue(h, r);
+					final String text = t.getStringValue(h, r);
+					if (Double.isNaN(v) && text != null && !text.equals("NaN")) to.addValue(h, text);
+					else to.addValue(h, v);
+				}
+			}
+		}
+	}
+
 	private static String clean(final String s) {
 		return s.replace('\t', ' ').replace('\n', ' ').replace('\r', ' ');
 	}

@@ -19,9 +19,10 @@ import org.parfocal.cli.HeadlessMacro;
 import org.parfocal.testing.ImageJHarness;
 
 /**
- * The commands' result tables read by a macro without a display, through {@link HeadlessMacro}: ImageJ 1.x finds
- * named tables only through windows, so {@code MacroFunctions.selectTable} makes the asked table the Results table
- * and {@code nResults}, {@code Table.get}, {@code Table.getColumn} read that one.
+ * The commands' result tables read by macros through {@link HeadlessMacro}: ImageJ 1.x finds named tables only
+ * through windows, so {@code MacroFunctions.selectTable} copies the asked table into the Results table, where
+ * {@code nResults}, {@code getResult} and {@code getResultString} read it with or without a display, and
+ * {@code Table.get}/{@code Table.getColumn} with the title "Results" without one.
  */
 class ResultTablesMacroTest {
 
@@ -48,13 +49,15 @@ class ResultTablesMacroTest {
 	void psfFromOpticsFwhmTableWithoutTheProfiles() {
 		final Map<String, String> p = printed("""
 				setBatchMode(true);
-				run("PSF from Optics...", "model=gaussian modality=widefield na=1.2 immersion_index=1.33 sample_index=1.33 emission=0.52 voxel_xy=0.08 voxel_z=0.2 size_xy=11 size_z=7");
+				function column(c) { a = newArray(nResults); for (i = 0; i < nResults; i++) a[i] = getResult(c, i); return a; }
+				function strings(c) { a = newArray(nResults); for (i = 0; i < nResults; i++) a[i] = getResultString(c, i); return a; }
+								run("PSF from Optics...", "model=gaussian modality=widefield na=1.2 immersion_index=1.33 sample_index=1.33 emission=0.52 voxel_xy=0.08 voxel_z=0.2 size_xy=11 size_z=7");
 				n = %s"PSF FWHM");
 				print("T rows=" + n); print("T nResults=" + nResults);
-				print("T axis=" + Table.getString("Axis", 2));
-				nyq = Table.getColumn("Nyquist step (µm)");
+				print("T axis=" + getResultString("Axis", 2));
+				nyq = column("Nyquist step (µm)");
 				print("T nyquist_xy=" + d2s(nyq[0], 9)); print("T nyquist_z=" + d2s(nyq[2], 9));
-				print("T step_z=" + d2s(Table.get("Voxel step (µm)", 2), 9));
+				print("T step_z=" + d2s(getResult("Voxel step (µm)", 2), 9));
 				""".formatted(SELECT));
 		assertEquals("3", p.get("rows"));
 		assertEquals("3", p.get("nResults"));
@@ -71,13 +74,15 @@ class ResultTablesMacroTest {
 		ImageJHarness.open(PsfFromBeadsCommandTest.beads("beads.tif"));
 		final Map<String, String> p = printed("""
 				setBatchMode(true);
-				run("PSF from Beads...", "%s");
+				function column(c) { a = newArray(nResults); for (i = 0; i < nResults; i++) a[i] = getResult(c, i); return a; }
+				function strings(c) { a = newArray(nResults); for (i = 0; i < nResults; i++) a[i] = getResultString(c, i); return a; }
+								run("PSF from Beads...", "%s");
 				print("T beads=" + %s"Beads")); print("T beads_nResults=" + nResults);
-				status = Table.getColumn("Status"); accepted = 0;
+				status = strings("Status"); accepted = 0;
 				for (i = 0; i < status.length; i++) if (status[i] == "accepted") accepted++;
 				print("T accepted=" + accepted);
 				print("T fwhm=" + %s"Bead PSF FWHM")); print("T fwhm_nResults=" + nResults);
-				print("T axis=" + Table.getString("Axis", 0));
+				print("T axis=" + getResultString("Axis", 0));
 				""".formatted(PsfFromBeadsCommandTest.OPTIONS, SELECT, SELECT));
 		// the generator's scene: four beads plus one at the edge (BeadsForCommandTests)
 		assertEquals("5", p.get("beads"));
@@ -93,10 +98,12 @@ class ResultTablesMacroTest {
 		ImageJHarness.open(org.parfocal.scijava.SciJavaTestImages.recorded("cell.tif"));
 		final Map<String, String> p = printed("""
 				setBatchMode(true);
-				run("Blind Deconvolve...", "image=cell.tif psf=gaussian fwhm_xy=0.3 fwhm_z=0.8 iterations=4 snapshot_interval=2 offset=100");
+				function column(c) { a = newArray(nResults); for (i = 0; i < nResults; i++) a[i] = getResult(c, i); return a; }
+				function strings(c) { a = newArray(nResults); for (i = 0; i < nResults; i++) a[i] = getResultString(c, i); return a; }
+								run("Blind Deconvolve...", "image=cell.tif psf=gaussian fwhm_xy=0.3 fwhm_z=0.8 iterations=4 snapshot_interval=2 offset=100");
 				print("T table=" + %s"cell-blind-psf-history (table)"));
 				print("T history=" + %s"cell-blind-psf-history.tif"));
-				it = Table.getColumn("Iteration"); sum = Table.getColumn("Sum"); fw = Table.getColumn("FWHM lateral (µm)");
+				it = column("Iteration"); sum = column("Sum"); fw = column("FWHM lateral (µm)");
 				s = ""; for (i = 0; i < it.length; i++) s = s + it[i] + "/" + d2s(sum[i], 6) + "/" + d2s(fw[i], 9) + " ";
 				print("T rows=" + s);
 				selectImage("cell-blind-psf-history.tif");
@@ -104,7 +111,7 @@ class ResultTablesMacroTest {
 				close();
 				open("%s");
 				print("T reopened=" + %s getTitle()));
-				it = Table.getColumn("Iteration"); sum = Table.getColumn("Sum"); fw = Table.getColumn("FWHM lateral (µm)");
+				it = column("Iteration"); sum = column("Sum"); fw = column("FWHM lateral (µm)");
 				s = ""; for (i = 0; i < it.length; i++) s = s + it[i] + "/" + d2s(sum[i], 6) + "/" + d2s(fw[i], 9) + " ";
 				print("T rows_reopened=" + s);
 				""".formatted(SELECT, SELECT, dir.resolve("history.tif"), dir.resolve("history.tif"), SELECT));
@@ -130,11 +137,13 @@ class ResultTablesMacroTest {
 				CompareWithReferencesCommandTest.image(CompareWithReferencesCommandTest.psf(), "psf.tif"));
 		final Map<String, String> p = printed("""
 				setBatchMode(true);
-				run("Compare with Sharp References...", "result=result.tif reference_folder=[%s] input=recording.tif psf=psf.tif offset=100 background=5 patches=2048 bootstrap=10 seed=3");
+				function column(c) { a = newArray(nResults); for (i = 0; i < nResults; i++) a[i] = getResult(c, i); return a; }
+				function strings(c) { a = newArray(nResults); for (i = 0; i < nResults; i++) a[i] = getResultString(c, i); return a; }
+								run("Compare with Sharp References...", "result=result.tif reference_folder=[%s] input=recording.tif psf=psf.tif offset=100 background=5 patches=2048 bootstrap=10 seed=3");
 				print("T rows=" + %s"Reference comparison of result")); print("T nResults=" + nResults);
-				prop = Table.getColumn("property"); v = Table.getColumn("value");
+				prop = strings("property"); v = column("value");
 				print("T last=" + prop[prop.length - 1]); print("T before_last=" + prop[prop.length - 2]);
-				print("T chi=" + d2s(v[v.length - 2], 9)); print("T first=" + prop[0] + ":" + d2s(Table.get("value", 0), 9));
+				print("T chi=" + d2s(v[v.length - 2], 9)); print("T first=" + prop[0] + ":" + d2s(getResult("value", 0), 9));
 				""".formatted(dir, SELECT));
 		assertEquals(p.get("rows"), p.get("nResults"));
 		assertTrue(Integer.parseInt(p.get("rows")) >= 3, p.toString());
@@ -142,6 +151,23 @@ class ResultTablesMacroTest {
 		assertEquals("re-blur chi-square", p.get("before_last"));
 		final double chi = Double.parseDouble(p.get("chi"));
 		assertTrue(chi > 0 && Double.isFinite(chi), "a chi-square is positive: " + chi);
+	}
+
+	@Test
+	void tableFunctionsReadTheSelectedTableWithoutADisplay() {
+		org.junit.jupiter.api.Assumptions.assumeFalse(ImageJHarness.hasDisplay(), "with a display, Table functions read windows");
+		final Map<String, String> p = printed("""
+				setBatchMode(true);
+				run("PSF from Optics...", "model=gaussian modality=widefield na=1.2 immersion_index=1.33 sample_index=1.33 emission=0.52 voxel_xy=0.08 voxel_z=0.2 size_xy=11 size_z=7");
+				n = %s"PSF FWHM");
+				nyq = Table.getColumn("Nyquist step (µm)", "Results");
+				print("T nyquist_xy=" + d2s(nyq[0], 9)); print("T axis=" + Table.getString("Axis", 2, "Results"));
+				print("T step_z=" + d2s(Table.get("Voxel step (µm)", 2, "Results"), 9)); print("T size=" + Table.size("Results"));
+				""".formatted(SELECT));
+		assertEquals(0.52 / (4 * 1.2), Double.parseDouble(p.get("nyquist_xy")), 1e-9, "λ/(4 NA)");
+		assertEquals("axial z", p.get("axis"));
+		assertEquals(0.2, Double.parseDouble(p.get("step_z")), 1e-12);
+		assertEquals("3", p.get("size"));
 	}
 
 	@Test
