@@ -190,6 +190,22 @@ public final class BackgroundFit {
 		}
 	}
 
+	/** The background at every voxel (a new array, x fastest). */
+	public float[] map() {
+		final float[] m = new float[nx * ny * nz];
+		final float[] row = new float[gx];
+		for (int z = 0; z < nz; z++)
+			for (int yy = 0; yy < ny; yy++) {
+				rowBackground(yy, z, row);
+				for (int x = 0, i = (z * ny + yy) * nx; x < nx; x++, i++) {
+					float v = 0f;
+					for (int j = 0; j < gx; j++) v += weightX(x, j) * row[j];
+					m[i] = v;
+				}
+			}
+		return m;
+	}
+
 	/** Hat weight of voxel x for node j along x. */
 	float weightX(final int x, final int j) {
 		return wx[x * gx + j];

@@ -30,4 +30,12 @@ public interface EstimateView {
 	default double background() {
 		return Double.NaN;
 	}
+
+	/**
+	 * With {@code background=fit-smooth}: the fitted background at every voxel of the image (a new array, x
+	 * fastest); null otherwise (then {@link #background()} is the whole model's background).
+	 */
+	default float[] backgroundMap() {
+		return null;
+	}
 }

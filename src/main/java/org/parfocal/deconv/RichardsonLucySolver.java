@@ -437,6 +437,11 @@ final class RichardsonLucySolver {
 			public double background() {
 				return fit != null ? b : Double.NaN;
 			}
+
+			@Override
+			public float[] backgroundMap() {
+				return varying ? fit.map() : null;
+			}
 		};
 	}
 

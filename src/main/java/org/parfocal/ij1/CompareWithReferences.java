@@ -53,9 +53,19 @@ public class CompareWithReferences implements PlugIn {
 	 * @param openReferences wildcard pattern of open image titles used as references ("" for none)
 	 * @param input the blurred recording the result came from, or {@link #NONE}
 	 * @param psf the PSF, or {@link #NONE} (χ² needs input and PSF)
+	 * @param estimateNoise the χ²'s gain and read noise estimated from the input ({@code estimate_noise}; absent
+	 *        from old macro lines: {@code photons} and {@code read_noise}, which stay the fallback)
 	 */
 	public record Options(String result, String referenceFolder, String openReferences, String input, String psf, Level offset, Level background,
-			double photons, double readNoise, int patchSize, int patches, int bootstrap, long seed, boolean ignoreCalibration) {
+			double photons, double readNoise, int patchSize, int patches, int bootstrap, long seed, boolean ignoreCalibration, boolean estimateNoise) {
+
+		/** Without the noise estimate. */
+		public Options(final String result, final String referenceFolder, final String openReferences, final String input, final String psf,
+				final Level offset, final Level background, final double photons, final double readNoise, final int patchSize, final int patches,
+				final int bootstrap, final long seed, final boolean ignoreCalibration) {
+			this(result, referenceFolder, openReferences, input, psf, offset, background, photons, readNoise, patchSize, patches, bootstrap, seed,
+					ignoreCalibration, false);
+		}
 
 		public Options {
 			if (referenceFolder.isBlank() && openReferences.isBlank())
@@ -69,12 +79,12 @@ public class CompareWithReferences implements PlugIn {
 					+ MacroOptions.quote(openReferences) + " input=" + MacroOptions.quote(input) + " psf=" + MacroOptions.quote(psf) + " offset="
 					+ Deconvolve.Options.level(offset) + " background=" + Deconvolve.Options.level(background) + " photons=" + MacroOptions.number(photons)
 					+ " read_noise=" + MacroOptions.number(readNoise) + " patch_size=" + patchSize + " patches=" + patches + " bootstrap=" + bootstrap
-					+ " seed=" + seed + (ignoreCalibration ? " ignore_calibration" : "");
+					+ " seed=" + seed + (ignoreCalibration ? " ignore_calibration" : "") + (estimateNoise ? " estimate_noise" : "");
 		}
 
 		Options withIgnoreCalibration(final boolean ignore) {
 			return new Options(result, referenceFolder, openReferences, input, psf, offset, background, photons, readNoise, patchSize, patches, bootstrap, seed,
-					ignore);
+					ignore, estimateNoise);
 		}
 
 		ReferenceComparison.Options comparison() {
@@ -128,6 +138,7 @@ public class CompareWithReferences implements PlugIn {
 		gd.addNumericField("Bootstrap:", 50, 0, 6, "resamples (0 = no intervals)");
 		gd.addNumericField("Seed:", 1, 0);
 		gd.addCheckbox("Ignore_calibration (compare voxel for voxel)", false);
+		gd.addCheckbox("Estimate_noise from the input (camera gain and read noise, instead of Photons and Read_noise)", !macro);
 		gd.addHelp(DialogHelp.compare().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
@@ -139,7 +150,7 @@ public class CompareWithReferences implements PlugIn {
 		final double photons = Commands.number(gd, "photons"), readNoise = Commands.number(gd, "read_noise");
 		final double size = Commands.number(gd, "patch_size"), patches = Commands.number(gd, "patches"), boot = Commands.number(gd, "bootstrap");
 		final double seed = Commands.number(gd, "seed");
-		final boolean ignore = gd.getNextBoolean();
+		final boolean ignore = gd.getNextBoolean(), estimate = gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		for (final double v : new double[] { size, patches, boot, seed })
 			if (v != Math.rint(v)) throw new IllegalArgumentException("Patch size, patches, bootstrap and seed must be whole numbers, got " + v);
@@ -148,7 +159,7 @@ public class CompareWithReferences implements PlugIn {
 			Prefs.set(PREFS + "pattern", pattern);
 		}
 		return new Options(result, folder, pattern, input, psf, offset, background, photons, readNoise, (int) size, (int) patches, (int) boot, (long) seed,
-				ignore);
+				ignore, estimate);
 	}
 
 	/** A reference image with the role it has in provenance. */
@@ -258,7 +269,10 @@ public class CompareWithReferences implements PlugIn {
 			ReblurConsistency.Result chi = null;
 			if (psf != null) {
 				final double[] lv = QualityWatch.Consistency.levels(input, o.offset(), o.background());
-				chi = new QualityWatch(null, QualityWatch.Consistency.forDeconvolution(input, psf, false, lv[0], lv[1], o.photons(), o.readNoise()), 1, false,
+				final List<String> noiseNotes = new ArrayList<>();
+				final double[] noise = new Deconvolve.Watch(1, "", "", o.photons(), o.readNoise(), false, false, o.estimateNoise()).noise(input, lv[0], noiseNotes);
+				for (final String note : noiseNotes) IJ.log(COMMAND + ": " + note.replaceFirst("^watch ", "chi-square "));
+				chi = new QualityWatch(null, QualityWatch.Consistency.forDeconvolution(input, psf, false, lv[0], lv[1], noise[0], noise[1]), 1, false,
 						result.voxelSize()).consistency(result);
 			}
 			return new Object[] { report, chi, MarginalQuantiles.of(prepared, result, 99) };

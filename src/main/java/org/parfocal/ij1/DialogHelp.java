@@ -285,6 +285,9 @@ final class DialogHelp {
 				.field("Bootstrap", "bootstrap", "resamples", "resamples for the intervals; 0 = no intervals")
 				.field("Seed", "seed", "", "seed of the sampling (same seed, same figures)")
 				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when calibrations are missing or differ")
+				.field("Estimate_noise", "estimate_noise", "", "take the chi-square's camera gain and read noise from the input itself "
+						+ "(Poisson&ndash;Gaussian fit, Foi et al., IEEE TIP 2008) instead of Photons and Read_noise (the fallback; values in the Log). "
+						+ "Absent from a macro line: the given values")
 				.note("<b>The table's columns.</b> <i>value</i>: the distance to the references (smaller is closer; for the re-blur rows, "
 						+ "the chi-square, about 1 when the result explains the data down to the noise, and the whiteness of the residual); "
 						+ "<i>95% low / 95% high</i>: the bootstrap interval of the distance; <i>noise floor</i>: the distance between two halves "

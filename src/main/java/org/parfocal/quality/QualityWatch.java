@@ -128,7 +128,8 @@ public final class QualityWatch implements IterationListener, WatchedRun {
 		final int it = report.iteration();
 		if (it % every != 0 && it != report.maxIterations()) return;
 		final Volume x = estimate.toVolume().withVoxelSize(voxelSize);
-		points.add(evaluate(it, x, estimate.background()));
+		final float[] map = estimate.backgroundMap();
+		points.add(map != null ? evaluate(it, x, 0, map) : evaluate(it, x, estimate.background()));
 		if (tracker.offer(points.get(points.size() - 1)) && keepBest) best = x;
 	}
 
@@ -142,6 +143,11 @@ public final class QualityWatch implements IterationListener, WatchedRun {
 	 * changes from iteration to iteration); NaN keeps the consistency model's.
 	 */
 	public StoppingRule.Point evaluate(final int iteration, final Volume x, final double background) {
+		return evaluate(iteration, x, background, null);
+	}
+
+	/** As {@link #evaluate(int, Volume, double)}, the background at each voxel also added from {@code backgroundMap} (or null). */
+	public StoppingRule.Point evaluate(final int iteration, final Volume x, final double background, final float[] backgroundMap) {
 		final double d = references == null ? Double.NaN : ReferenceComparison.patchDistance(references, x);
 		double chi = Double.NaN, white = Double.NaN;
 		if (consistency != null) {
@@ -149,7 +155,7 @@ public final class QualityWatch implements IterationListener, WatchedRun {
 			final ReblurConsistency.NoiseModel model = Double.isFinite(background) && background != m.background()
 					? new ReblurConsistency.NoiseModel(m.photonsPerUnit(), m.readNoise(), background, m.offset()) : m;
 			final ReblurConsistency.Result r = ReblurConsistency.evaluate(consistency.recording(), x, consistency.operator(), model,
-					consistency.margin());
+					consistency.margin(), backgroundMap);
 			chi = r.meanChiSquare();
 			white = r.whiteness();
 		}

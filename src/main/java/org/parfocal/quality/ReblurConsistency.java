@@ -84,6 +84,18 @@ public final class ReblurConsistency {
 	 * @param margin voxels excluded at each edge (x, y; and z for 3D), e.g. where the boundary model is unsure
 	 */
 	public static Result evaluate(final Volume y, final Volume x, final ConvolutionOperator h, final NoiseModel model, final int margin) {
+		return evaluate(y, x, h, model, margin, null);
+	}
+
+	/**
+	 * As {@link #evaluate(Volume, Volume, ConvolutionOperator, NoiseModel, int)} with a background that varies
+	 * over the image: {@code backgroundMap} (y's shape, x fastest) is added to the model's constant background
+	 * (null: none), as for a slowly varying background fitted with the object.
+	 */
+	public static Result evaluate(final Volume y, final Volume x, final ConvolutionOperator h, final NoiseModel model, final int margin,
+			final float[] backgroundMap) {
+		if (backgroundMap != null && backgroundMap.length != y.data().length)
+			throw new IllegalArgumentException("The background map has " + backgroundMap.length + " values, the recording " + y.data().length);
 		if (!y.sameShape(x))
 			throw new IllegalArgumentException("The estimate (" + shape(x) + ") and the recording (" + shape(y) + ") differ in size");
 		final int[] n = h.imageShape();
@@ -102,7 +114,7 @@ public final class ReblurConsistency {
 		final double minVar = MIN_VARIANCE_PHOTONS / (s * s);
 		final float[] r = new float[yd.length];
 		Parallel.forRange(yd.length, i -> {
-			final double mean = m[i] + b;
+			final double mean = m[i] + b + (backgroundMap == null ? 0 : backgroundMap[i]);
 			final double var = Math.max(Math.max(mean, 0) / s + s2, minVar);
 			r[i] = (float) ((yd[i] - o - mean) / Math.sqrt(var));
 		});

@@ -123,4 +123,25 @@ class QualityWatchTest {
 		assertTrue(w.points().get(0).chiSquare() > 1 && w.points().get(39).chiSquare() < w.points().get(0).chiSquare(), "χ² decreases from above 1");
 		assertTrue(Double.isNaN(w.points().get(0).distance()));
 	}
+
+	/**
+	 * With background=fit the watch judges each iterate with the background fitted so far, not the start: its
+	 * last χ² equals the re-blur check of the result with the result's fitted background (ReblurConsistency's
+	 * definition, evaluated directly).
+	 */
+	@Test
+	void withAFittedBackgroundTheWatchUsesTheFittedValue() {
+		final Volume psf = TestVolumes.gaussianPsf(9, 9, 7, 1.3, 1.3, 1.1);
+		final Volume truth = SampleScene.cell(32, 32, 12, 3);
+		final Volume y = new Acquisition(psf, truth.shape(), new Acquisition.Options(Boundary.MIRROR, true, 4, 1, 9, 0)).record(truth, Monitor.NONE);
+		final double[] lv = QualityWatch.Consistency.levels(y, Level.NONE, Level.FIT);
+		final QualityWatch.Consistency c = QualityWatch.Consistency.forDeconvolution(y, psf, false, lv[0], lv[1], 1, 0);
+		final QualityWatch w = new QualityWatch(null, c, 10, false, y.voxelSize());
+		final DeconvolutionResult r = Deconvolution.run(y, psf, DeconvolutionOptions.of(DeconvolutionMethod.RL, 20).withBackground(Level.FIT), null, Monitor.NONE, w);
+		assertTrue(Math.abs(r.background() - lv[1]) > 1e-3 * lv[1], "the fit moved b from its start " + lv[1] + " to " + r.background());
+		final double direct = ReblurConsistency.evaluate(y, r.estimate(), c.operator(), new ReblurConsistency.NoiseModel(1, 0, r.background(), 0), c.margin())
+				.meanChiSquare();
+		final List<StoppingRule.Point> pts = w.points();
+		assertEquals(direct, pts.get(pts.size() - 1).chiSquare(), 1e-6 * direct);
+	}
 }

@@ -80,6 +80,25 @@ class ReblurConsistencyTest {
 	}
 
 	/**
+	 * A background rising along x (5 to 45, as {@code background=fit-smooth} models one): with the map the true
+	 * object's χ² is 1 (E[r²] = 1, Poisson mean = variance); with only its mean as a constant it is well above.
+	 */
+	@Test
+	void aVaryingBackgroundMapIsModelled() {
+		final ConvolutionOperator h = ConvolutionOperator.create(PSF, TRUTH, Boundary.MIRROR);
+		final Volume mean = h.apply(TRUTH);
+		final float[] map = new float[mean.data().length];
+		for (int i = 0; i < map.length; i++) {
+			map[i] = (float) (5 + 40.0 * (i % TRUTH.nx()) / (TRUTH.nx() - 1));
+			mean.data()[i] = Math.max(0, mean.data()[i]) + map[i];
+		}
+		final Volume y = org.parfocal.core.Noise.poisson(mean, 1, 41);
+		final ReblurConsistency.Result r = ReblurConsistency.evaluate(y, TRUTH, h, ReblurConsistency.NoiseModel.photonCounts(0), 2, map);
+		assertEquals(1, r.meanChiSquare(), 0.05, r.toString());
+		assertTrue(ReblurConsistency.evaluate(y, TRUTH, h, ReblurConsistency.NoiseModel.photonCounts(25), 2).meanChiSquare() > 1.5);
+	}
+
+	/**
 	 * An estimate that is still blurred (truth convolved with a further σ = 2 Gaussian) leaves structure in the
 	 * residual: χ² ≫ 1 and positively correlated neighbours (at 50 photons per unit, where the structure lost is
 	 * well above the shot noise). An estimate that reproduces the data exactly (H = I, x = y) fits the noise: χ² = 0.
