@@ -79,6 +79,26 @@ class HoldOutStopTest {
 		}
 	}
 
+	/** The split is seeded and sequential, the engine thread-invariant: 1 and 2 threads stop at the same iterate with the same pixels. */
+	@Test
+	void oneAndTwoThreadsAgree() {
+		final Scene s = scene();
+		final DeconvolutionOptions o = options(DeconvolutionMethod.RL_ACCELERATED, Stopping.HELD_OUT).withIterations(40);
+		final DeconvolutionResult[] r = new DeconvolutionResult[2];
+		for (int t = 1; t <= 2; t++) {
+			final int i = t - 1;
+			net.imglib2.parallel.Parallelization.runWithNumThreads(t, () -> r[i] = Deconvolution.run(s.recording(), s.psf(), o, Monitor.NONE));
+		}
+		assertEquals(r[0].iterations(), r[1].iterations());
+		assertArrayEquals(r[0].estimate().data(), r[1].estimate().data(), 1e-5f * max(r[0].estimate().data()));
+	}
+
+	private static float max(final float[] a) {
+		float m = 0;
+		for (final float v : a) m = Math.max(m, v);
+		return m;
+	}
+
 	/** A cap below the peak: the run says it found no interior peak and returns the cap's iterate, not a choice. */
 	@Test
 	void aCapBeforeThePeakIsNotPresentedAsAChoice() {
