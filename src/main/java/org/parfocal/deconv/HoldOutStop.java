@@ -30,8 +30,8 @@ import org.parfocal.core.Volume;
  * <p>
  * Read noise: when the gain and read noise σ are estimated from the recording ({@link CameraNoise}; recordings
  * of integer camera values), σ²/g is added to the data before the split and to the model (the shifted-Poisson
- * approximation of Poisson–Gaussian noise, common practice), so the halves carry independent noise of the right
- * size. Other data are taken as photon counts (gain 1), with a note.
+ * approximation of Poisson–Gaussian noise, common practice), so that the halves' noise is closer to independent
+ * Poisson noise (read noise itself does not split into independent halves; not measured apart). Other data are taken as photon counts (gain 1), with a note.
  * <p>
  * A peak at the cap (still rising) or at the start (falling from the first iterate) is not an interior peak:
  * {@link Result#interior()} is false and the reason says so; the run then returns the cap's (or the first)
@@ -43,7 +43,7 @@ public final class HoldOutStop {
 	public static final long SEED = 0x5eed_14bL;
 	/** Iterations past the best held-out score after which the run on half A stops. */
 	public static final int PATIENCE = 8;
-	/** Folds of the cross-validation: the method runs on each half, scored by the other; the scores are summed. */
+	/** Folds of the cross-validation: 1, the method runs on A scored by B; 2, also on B scored by A, the scores summed. */
 	public static final int FOLDS = 1;
 	/** Iterations of the full data per iteration of the half at the held-out peak (measured, README). */
 	public static final double FULL_FACTOR = 1.0;
