@@ -13,9 +13,11 @@ import org.parfocal.core.Volume;
 import org.parfocal.deconv.Deconvolution;
 import org.parfocal.deconv.DeconvolutionOptions;
 import org.parfocal.deconv.DeconvolutionResult;
+import org.parfocal.deconv.HoldOutStop;
 import org.parfocal.deconv.IterationListener;
 import org.parfocal.deconv.Level;
 import org.parfocal.deconv.Preprocessing;
+import org.parfocal.deconv.Stopping;
 
 /**
  * Block-wise deconvolution: the stack is read, deconvolved and written one {@link BlockPlan} block at a time
@@ -160,6 +162,8 @@ public final class BlockDeconvolution {
 					+ BlockPlan.text(source.shape()));
 		try {
 			final Levels levels = levels(source, options, mon);
+			final List<String> stopNotes = new ArrayList<>();
+			final DeconvolutionOptions opts = plan.count() > 1 ? heldOutOnce(source, psf, options, plan, levels, mon, stopNotes) : options;
 			int min = Integer.MAX_VALUE, max = 0, empty = 0;
 			final int nb = plan.count();
 			final int[] it = new int[1];
@@ -176,7 +180,7 @@ public final class BlockDeconvolution {
 						return mon.isCancelled();
 					}
 				};
-				final Volume part = deconvolve(source, psf, options, plan, levels, b, sub, it);
+				final Volume part = deconvolve(source, psf, opts, plan, levels, b, sub, it);
 				sink.add(part, b.outOrigin());
 				if (it[0] == 0) empty++;
 				else {
@@ -187,12 +191,43 @@ public final class BlockDeconvolution {
 			sink.commit();
 			final List<String> notes = new ArrayList<>(levels.notes());
 			notes.addAll(plan.notes());
+			notes.addAll(stopNotes);
 			if (empty > 0) notes.add(empty + " block(s) at or below the background set to 0");
 			return new Result(plan, levels, min == Integer.MAX_VALUE ? 0 : min, max, empty, notes);
 		} catch (final IOException | RuntimeException | Error e) {
 			sink.abort();
 			throw e;
 		}
+	}
+
+	/**
+	 * With the held-out stop, the number of iterations is decided once, on the block holding the stack's centre
+	 * ({@link HoldOutStop}, with the shared levels), and every block runs that many: blocks that stopped on their own
+	 * would meet at seams after different numbers of iterations. Other options, and a dark centre block (then each
+	 * block decides for itself, with a note), are returned unchanged.
+	 */
+	public static DeconvolutionOptions heldOutOnce(final BlockSource source, final Volume psf, final DeconvolutionOptions options, final BlockPlan plan,
+			final Levels levels, final Monitor monitor, final List<String> notes) throws IOException {
+		if (options.stopping() != Stopping.HELD_OUT || !options.method().isIterative()) return options;
+		final int[] n = source.shape();
+		Block centre = plan.blocks().get(0);
+		for (final Block b : plan.blocks()) {
+			boolean inside = true;
+			for (int d = 0; d < 3; d++) inside &= b.outOrigin()[d] <= n[d] / 2 && n[d] / 2 < b.outOrigin()[d] + b.outSize()[d];
+			if (inside) centre = b;
+		}
+		final Volume data = source.read(centre.readOrigin(), centre.readSize());
+		float top = 0;
+		for (final float v : data.data()) top = Math.max(top, (float) (v - levels.offset()));
+		if (!(top > levels.background())) {
+			notes.add("held-out stop: the centre block is dark, so each block finds its own stopping point");
+			return options;
+		}
+		final HoldOutStop.Result h = HoldOutStop.suggest(data, psf, levels.apply(options), monitor);
+		notes.add("held-out stop decided once, on block " + (centre.index() + 1) + " (the stack's centre): " + h.reason() + "; every block ran "
+				+ h.fullIterations() + " iteration(s)");
+		return new DeconvolutionOptions(options.method(), h.fullIterations(), options.regularization(), Stopping.FIXED, options.changeThreshold(),
+				options.edges(), options.offset(), options.background());
 	}
 
 	/** Block-wise run of a stack in memory (tests, comparisons); the input is not modified. */

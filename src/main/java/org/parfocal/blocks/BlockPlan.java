@@ -364,8 +364,6 @@ public record BlockPlan(int[] shape, int[] psfShape, int[] tiles, int[] halo, in
 			notes.add("accelerated RL: each block computes its own extrapolation factor");
 		if (blocks.size() > 1 && o.stopping() == org.parfocal.deconv.Stopping.RELATIVE_CHANGE)
 			notes.add("relative-change stop: each block stops on its own change");
-		if (blocks.size() > 1 && o.stopping() == org.parfocal.deconv.Stopping.HELD_OUT)
-			notes.add("held-out stop: each block finds its own stopping point from its own photons");
 		return new BlockPlan(n.clone(), k.clone(), m.clone(), h, w, List.copyOf(blocks), worst, budget, List.copyOf(notes));
 	}
 

@@ -134,6 +134,6 @@ public final class Deconvolution {
 	public static long bytesNeeded(final int[] imageShape, final int[] psfShape, final DeconvolutionOptions options) {
 		return options.method() == DeconvolutionMethod.WIENER ? WienerFilter.bytesNeeded(imageShape, psfShape, options.edges()) + 8L * imageShape[0] * imageShape[1] * imageShape[2]
 				: RichardsonLucySolver.bytesNeeded(imageShape, psfShape, options.edges(), options.method())
-						+ (options.stopping() == Stopping.HELD_OUT ? HoldOutStop.bytesNeeded(imageShape) : 0);
+						+ (options.stopping() == Stopping.HELD_OUT ? HoldOutStop.bytesNeeded(imageShape, psfShape, options) : 0);
 	}
 }

@@ -21,7 +21,7 @@ import org.parfocal.core.Volume;
  */
 class HoldOutStopTest {
 
-	/** Margin (dB) of the held-out suggestion against the best iterate, on this scene. */
+	/** Margin (dB) of the held-out suggestion against the best iterate, on this scene (measured: 0.57 dB for RL, 0.95 dB for accelerated RL). */
 	static final double MARGIN_DB = 1.0;
 	static final int CAP = 120;
 
@@ -77,6 +77,26 @@ class HoldOutStopTest {
 			assertArrayEquals(f.estimate().data(), r.estimate().data());
 			assertTrue(r.notes().stream().anyMatch(n -> n.startsWith("Held-out stop (Coakley 1991): held-out likelihood peaked")), r.notes().toString());
 		}
+	}
+
+	/** The split is seeded and sequential, the engine thread-invariant: 1 and 2 threads stop at the same iterate with the same pixels. */
+	@Test
+	void oneAndTwoThreadsAgree() {
+		final Scene s = scene();
+		final DeconvolutionOptions o = options(DeconvolutionMethod.RL_ACCELERATED, Stopping.HELD_OUT).withIterations(40);
+		final DeconvolutionResult[] r = new DeconvolutionResult[2];
+		for (int t = 1; t <= 2; t++) {
+			final int i = t - 1;
+			net.imglib2.parallel.Parallelization.runWithNumThreads(t, () -> r[i] = Deconvolution.run(s.recording(), s.psf(), o, Monitor.NONE));
+		}
+		assertEquals(r[0].iterations(), r[1].iterations());
+		assertArrayEquals(r[0].estimate().data(), r[1].estimate().data(), 1e-5f * max(r[0].estimate().data()));
+	}
+
+	private static float max(final float[] a) {
+		float m = 0;
+		for (final float v : a) m = Math.max(m, v);
+		return m;
 	}
 
 	/** A cap below the peak: the run says it found no interior peak and returns the cap's iterate, not a choice. */

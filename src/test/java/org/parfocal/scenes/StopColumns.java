@@ -35,7 +35,11 @@ final class StopColumns {
 	}
 
 	static HoldOutStop.Result held(final Scene s, final DeconvolutionOptions o) {
-		return SUGGESTIONS.computeIfAbsent(s.name() + " " + o, k -> HoldOutStop.suggest(s.recording(), s.psf(), o, Monitor.NONE));
+		return held(s, o, HoldOutStop.FOLDS);
+	}
+
+	static HoldOutStop.Result held(final Scene s, final DeconvolutionOptions o, final int folds) {
+		return SUGGESTIONS.computeIfAbsent(s.name() + " " + folds + " " + o, k -> HoldOutStop.suggest(s.recording(), s.psf(), o, Monitor.NONE, folds));
 	}
 
 	static double gain(final Scene s, final double psnr) {
@@ -49,7 +53,11 @@ final class StopColumns {
 
 	/** The held-out suggestion of options o: gain at round(f·k*) and its distance to the curve's best; "k*" and an edge flag. */
 	static String heldOut(final Scene s, final SceneRuns r, final DeconvolutionOptions o, final double factor) {
-		final HoldOutStop.Result h = held(s, o);
+		return heldOut(s, r, o, factor, HoldOutStop.FOLDS);
+	}
+
+	static String heldOut(final Scene s, final SceneRuns r, final DeconvolutionOptions o, final double factor, final int folds) {
+		final HoldOutStop.Result h = held(s, o, folds);
 		final SceneRuns.Curve c = r.curve(s, o);
 		final int n = Math.max(1, Math.min(CAP, (int) Math.round(factor * h.peak())));
 		return SceneBenchmark.db(gain(s, c.at(n))) + " (" + SceneBenchmark.db(c.at(n) - c.best()) + ", k*=" + h.peak() + (h.interior() ? "" : " edge") + ")";
@@ -89,6 +97,10 @@ final class StopColumns {
 				cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "%s held-out x%.2f", name, f),
 						(s, r) -> heldOut(s, r, opts(s, m, 0, SceneBenchmark.trueBackground(s)), f)));
 		}
+		for (final int folds : new int[] { 1, 2 })
+			for (final double f : folds == 1 ? new double[] { 1 } : new double[] { 1, 1.25, 1.5 })
+				cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "fold%d acc held-out x%.2f", folds, f),
+						(s, r) -> heldOut(s, r, opts(s, acc, 0, SceneBenchmark.trueBackground(s)), f, folds)));
 		cols.add(SceneBenchmark.column("tv 0.002 best", (s, r) -> best(s, r.curve(s, opts(s, tv, 0.002, SceneBenchmark.trueBackground(s))))));
 		cols.add(SceneBenchmark.column("tv 0.002 held-out x1.0", (s, r) -> heldOut(s, r, opts(s, tv, 0.002, SceneBenchmark.trueBackground(s)), 1)));
 		cols.add(SceneBenchmark.column("tv weights (best iterate each)", (s, r) -> {
