@@ -154,19 +154,25 @@ public final class BlindSceneBenchmark {
 		final double[] sorted = ratio.clone();
 		java.util.Arrays.sort(sorted);
 		return String.format(Locale.ROOT,
-				"cost on %s, %dx%dx%d, PSF box %dx%dx%d: blind outer iteration (1 object + 1 PSF update) %.3f s vs non-blind RL iteration %.3f s; ratio per round %s, median %.2fx (goal <= 2.5x; %d iterations, %d rounds)",
+				"cost on %s, %dx%dx%d, PSF box %dx%dx%d: blind outer iteration (1 object + 1 PSF update) %.3f s vs non-blind RL iteration %.3f s; ratio per round %s, median %.2fx (goal <= 2.5x; %d iterations, %d rounds, %s)",
 				s.name(), s.recording().nx(), s.recording().ny(), s.recording().nz(), k[0], k[1], k[2], bl[rounds / 2], nb[rounds / 2],
-				java.util.Arrays.toString(java.util.Arrays.stream(ratio).map(v -> Math.round(v * 100) / 100.0).toArray()), sorted[rounds / 2], n, rounds);
+				java.util.Arrays.toString(java.util.Arrays.stream(ratio).map(v -> Math.round(v * 100) / 100.0).toArray()), sorted[rounds / 2], n, rounds,
+				Boolean.getBoolean("parfocal.cpuTime") ? "CPU time of the calling thread" : "wall time");
 	}
 
-	/** (time of the long run − time of the short run) / n. */
+	/**
+	 * (time of the long run − time of the short run) / n: wall time, or with {@code -Dparfocal.cpuTime=true} the
+	 * calling thread's CPU time (for 1 thread, where the work runs on the calling thread: robust to a loaded machine).
+	 */
 	private static double perIteration(final Runnable lng, final Runnable shrt, final int n) {
-		long t = System.nanoTime();
+		final boolean cpu = Boolean.getBoolean("parfocal.cpuTime");
+		final java.lang.management.ThreadMXBean mx = java.lang.management.ManagementFactory.getThreadMXBean();
+		long t = cpu ? mx.getCurrentThreadCpuTime() : System.nanoTime();
 		shrt.run();
-		final double a = (System.nanoTime() - t) * 1e-9;
-		t = System.nanoTime();
+		final double a = ((cpu ? mx.getCurrentThreadCpuTime() : System.nanoTime()) - t) * 1e-9;
+		t = cpu ? mx.getCurrentThreadCpuTime() : System.nanoTime();
 		lng.run();
-		final double c = (System.nanoTime() - t) * 1e-9;
+		final double c = ((cpu ? mx.getCurrentThreadCpuTime() : System.nanoTime()) - t) * 1e-9;
 		return (c - a) / n;
 	}
 
