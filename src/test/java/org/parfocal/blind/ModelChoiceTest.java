@@ -48,6 +48,24 @@ class ModelChoiceTest {
 		assertEquals(1, p.sum(), 1e-5);
 	}
 
+	/** The per-row held-out log-likelihoods of the paired test add up to the score they belong to (direct summation). */
+	@Test
+	void heldOutRowsAddUpToTheScore() {
+		final int[] box = { 9, 9, 7 };
+		final Volume truth = SampleScene.cell(24, 24, 10, 3);
+		final Volume psf = BlindDeconvolution.gaussian(box, new double[] { V.dx(), V.dy(), V.dz() }, 0.3, 0.8).withVoxelSize(V);
+		final Volume rec = record(psf, truth);
+		final float[] y = rec.data().clone();
+		for (int i = 0; i < y.length; i++) y[i] = Math.max(0, y[i]);
+		final float[][] halves = ModelFit.split(y, 1);
+		final ModelFit.Score sc = ModelFit.peakHeldOutRows(ModelFit.solver(psf, rec.shape(), org.parfocal.deconv.EdgeMode.NON_CIRCULANT, halves, 3, 0), 60, () -> {});
+		assertEquals(24 * 10, sc.rows().length);
+		double sum = 0;
+		for (final double v : sc.rows()) sum += v;
+		assertEquals(sc.value(), sum, 1e-9 * Math.abs(sum));
+		assertEquals(0, ModelFit.pairedT(sc.rows(), sc.rows()), 0, "no difference, t = 0");
+	}
+
 	/** The paired t over blocks of rows equals Commons Math's paired t of the block sums. */
 	@Test
 	void pairedTestMatchesCommonsMath() {
