@@ -98,6 +98,10 @@ class DeconvolveChoicesTest {
 		for (final Stopping s : Stopping.values()) assertEquals(s.key(), ChoiceWords.value("stop", ChoiceWords.word("stop", s.key())));
 		for (final String k : EdgeMode.keys()) assertEquals(k, ChoiceWords.value("edges", ChoiceWords.word("edges", k)));
 		for (final String k : OutputDepth.keys()) assertEquals(k, ChoiceWords.value("output", ChoiceWords.word("output", k)));
+		for (final String k : org.parfocal.psf.PsfModels.keys()) assertEquals(k, ChoiceWords.value("model", ChoiceWords.word("model", k)));
+		for (final String k : org.parfocal.psf.Modality.keys()) assertEquals(k, ChoiceWords.value("modality", ChoiceWords.word("modality", k)));
+		assertEquals("model=gibson-lanni na=1.2 psf=[a b.tif]", ChoiceWords.valuesForWords("model=[" + ChoiceWords.word("model", "gibson-lanni")
+				+ "] na=1.2 psf=[a b.tif]"), "a macro may give the words");
 		assertFalse(ChoiceWords.word("method", "richardson-lucy-tv").equals("richardson-lucy-tv"), "shown in words");
 		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif"), psf = ImageBridge.toImagePlus(DeconvolveCommandTest.gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
 		ImageJHarness.open(img, psf);
