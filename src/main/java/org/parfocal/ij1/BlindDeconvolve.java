@@ -286,7 +286,7 @@ public class BlindDeconvolve implements PlugIn {
 			optics = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
 			if (optics == null) return null;
 		} else if (band) {
-			bandOptics = showBandDialog();
+			bandOptics = showBandDialog(bandDefaults(image, psf));
 			if (bandOptics == null) return null;
 		}
 		Deconvolve.Watch w = null;
@@ -322,13 +322,22 @@ public class BlindDeconvolve implements PlugIn {
 				edges, off, bg, optics, bandOptics, w, estimate, trust);
 	}
 
+	/**
+	 * Interactive defaults of the band-limit optics: those of the starting PSF's record, else of the image's (or
+	 * of their inputs' records, {@link OpticsDefaults}); empty in a macro.
+	 */
+	static java.util.Map<String, String> bandDefaults(final String image, final String psf) {
+		final java.util.Map<String, String> fromPsf = GAUSSIAN.equals(psf) ? java.util.Map.of() : OpticsDefaults.of(WindowManager.getImage(psf));
+		return fromPsf.isEmpty() ? OpticsDefaults.of(WindowManager.getImage(image)) : fromPsf;
+	}
+
 	/** The optics the band limit needs, asked for when the start is not computed from them; null if cancelled. */
-	private static BandOptics showBandDialog() {
+	private static BandOptics showBandDialog(final java.util.Map<String, String> rec) {
 		final GenericDialog gd = new GenericDialog(COMMAND + ": optics for the band limit");
 		gd.addMessage("The band-limit constraint needs the widefield optics:");
-		gd.addNumericField("NA:", Commands.remembered(PREFS + "na", 1.4), 3);
-		gd.addNumericField("Immersion_index:", Commands.remembered(PREFS + "immersion_index", 1.518), 4);
-		gd.addNumericField("Emission:", Commands.remembered(PREFS + "emission", 0.52), 3, 6, "µm");
+		gd.addNumericField("NA:", OpticsDefaults.number(rec, "na", Commands.remembered(PREFS + "na", 1.4)), 3);
+		gd.addNumericField("Immersion_index:", OpticsDefaults.number(rec, "immersion_index", Commands.remembered(PREFS + "immersion_index", 1.518)), 4);
+		gd.addNumericField("Emission:", OpticsDefaults.number(rec, "emission", Commands.remembered(PREFS + "emission", 0.52)), 3, 6, "µm");
 		gd.addHelp(DialogHelp.band().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;

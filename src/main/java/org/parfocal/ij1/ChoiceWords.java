@@ -35,6 +35,11 @@ final class ChoiceWords {
 		words("edges", "extended", "object extends past the stack", "periodic", "stack repeats itself (fast)", "zero",
 				"nothing outside (for comparisons)");
 		words("psf", Deconvolve.FROM_OPTICS, "compute from the optics (next dialog)");
+		// PSF models found through SciJava that are not listed here are shown by their key
+		words("model", "gaussian", "Gaussian approximation", "born-wolf", "Born & Wolf (in focus, matched sample)", "gibson-lanni",
+				"Gibson & Lanni (aberrations with depth)", "richards-wolf", "Richards & Wolf (vectorial, high NA)");
+		words("modality", "widefield", "widefield", "confocal", "confocal (pinhole)", "two-photon", "two-photon (excitation only)", "light-sheet",
+				"light sheet (sheet thickness)");
 		words("output", OutputDepth.FLOAT.key(), OutputDepth.FLOAT.words(), OutputDepth.SCALED_16.key(), OutputDepth.SCALED_16.words());
 	}
 

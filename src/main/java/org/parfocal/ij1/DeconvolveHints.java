@@ -18,7 +18,7 @@ import org.parfocal.deconv.Stopping;
  * (Stop = after all the iterations) or at most (the change stop), or that the Wiener filter has none;
  * Regularization names what it weighs for the chosen method or says it is not used; Threshold says whether it
  * is used. Reads the components (choices method = 3rd, stop = 4th; numbers iterations, regularization,
- * threshold), never through {@code getNext…}.
+ * threshold), never through {@code getNext…}. Also PSF from Beads' box hints, which follow its Optics choice.
  */
 final class DeconvolveHints {
 
@@ -66,6 +66,33 @@ final class DeconvolveHints {
 		update.accept(false); // showDialog packs
 		method.addItemListener(e -> update.accept(true));
 		stop.addItemListener(e -> update.accept(true));
+	}
+
+	/** PSF from Beads' box hints: 0 means "from the optics" only when optics are chosen. */
+	static String[] beadBoxHints(final boolean optics) {
+		return optics ? new String[] { "µm; 0 = from the optics", "µm; 0 = 2D image, or from the optics" }
+				: new String[] { "µm (no optics chosen below: enter it)", "µm; 0 = 2D image, else enter it" };
+	}
+
+	/**
+	 * Keeps PSF from Beads' box hints true to its Optics choice (the 4th choice; numbers box_xy, box_z first);
+	 * nothing without a display or in a macro.
+	 */
+	static void followBeads(final GenericDialog gd, final String none) {
+		if (GraphicsEnvironment.isHeadless() || Commands.isMacro()) return;
+		final Vector<?> ch = gd.getChoices(), num = gd.getNumericFields();
+		if (ch == null || ch.size() < 4 || num == null || num.size() < 2) return;
+		final Choice optics = (Choice) ch.get(3);
+		final java.util.function.Consumer<Boolean> update = pack -> {
+			final String[] h = beadBoxHints(!none.equals(optics.getSelectedItem()));
+			for (int i = 0; i < 2; i++) {
+				final Label l = unitLabel((TextField) num.get(i));
+				if (l != null) l.setText(" " + h[i]);
+			}
+			if (pack) gd.pack();
+		};
+		update.accept(false);
+		optics.addItemListener(e -> update.accept(true));
 	}
 
 	/** The units label GenericDialog puts beside a numeric field, if it has one. */

@@ -258,7 +258,7 @@ final class DialogHelp {
 
 	static Page band() {
 		return new Page("Optics for the band limit", "The band limit removes PSF frequencies above 2&middot;NA/&lambda;, which no objective "
-				+ "transmits. Defaults come from the image's or PSF's record when they have one.")
+				+ "transmits. Opened from the menu, the fields start from the starting PSF's record, else the image's (or their inputs' records); a macro gets the defaults.")
 				.field("NA", "na", "", "numerical aperture of the objective")
 				.field("Immersion_index", "immersion_index", "", "immersion medium index (oil 1.518, water 1.333)")
 				.field("Emission", "emission", "&micro;m", "emission wavelength");

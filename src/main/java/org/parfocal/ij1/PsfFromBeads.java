@@ -139,6 +139,7 @@ public class PsfFromBeads implements PlugIn {
 		gd.addNumericField("Pinhole:", 1, 2, 6, "Airy units (confocal)");
 		gd.addNumericField("Sheet_thickness:", 2, 2, 6, "µm FWHM (light-sheet)");
 		gd.addHelp(DialogHelp.beads().html());
+		DeconvolveHints.followBeads(gd, NONE); // "0 = from the optics" only when optics are chosen
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");

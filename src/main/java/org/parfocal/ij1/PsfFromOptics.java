@@ -136,6 +136,7 @@ public class PsfFromOptics implements PlugIn {
 		gd.addNumericField("Size_z:", 0, 0, 6, "voxels, odd; 0 = from the optics");
 		if (withProfiles) gd.addCheckbox("Show_profiles and FWHM table", true);
 		gd.addHelp(DialogHelp.psfFromOptics(withProfiles).html());
+		ChoiceWords.show(gd, "model", "modality"); // shown in words, recorded as the macro values
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String model = Commands.checkChoice("model", gd.getNextChoice(), "PSF model (" + String.join(", ", PsfModels.keys()) + ")");

@@ -98,6 +98,10 @@ class DeconvolveChoicesTest {
 		for (final Stopping s : Stopping.values()) assertEquals(s.key(), ChoiceWords.value("stop", ChoiceWords.word("stop", s.key())));
 		for (final String k : EdgeMode.keys()) assertEquals(k, ChoiceWords.value("edges", ChoiceWords.word("edges", k)));
 		for (final String k : OutputDepth.keys()) assertEquals(k, ChoiceWords.value("output", ChoiceWords.word("output", k)));
+		for (final String k : org.parfocal.psf.PsfModels.keys()) assertEquals(k, ChoiceWords.value("model", ChoiceWords.word("model", k)));
+		for (final String k : org.parfocal.psf.Modality.keys()) assertEquals(k, ChoiceWords.value("modality", ChoiceWords.word("modality", k)));
+		assertEquals("model=gibson-lanni na=1.2 psf=[a b.tif]", ChoiceWords.valuesForWords("model=[" + ChoiceWords.word("model", "gibson-lanni")
+				+ "] na=1.2 psf=[a b.tif]"), "a macro may give the words");
 		assertFalse(ChoiceWords.word("method", "richardson-lucy-tv").equals("richardson-lucy-tv"), "shown in words");
 		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif"), psf = ImageBridge.toImagePlus(DeconvolveCommandTest.gaussianPsf().withVoxelSize(VOXEL), "psf.tif");
 		ImageJHarness.open(img, psf);
@@ -162,6 +166,11 @@ class DeconvolveChoicesTest {
 		assertNull(found.get("voxel_xy"), "sampling comes from the image, not from the record");
 		assertTrue(OpticsDefaults.of(obj).isEmpty(), "no record, no optics");
 		assertEquals(1.1, OpticsDefaults.number(found, "na", 1.4));
+		// Blind Deconvolve's band-limit optics: the starting PSF's record first, else the image's
+		ImageJHarness.open(blurred);
+		assertEquals("1.1", BlindDeconvolve.bandDefaults("cell.tif", psf.getTitle()).get("na"));
+		assertEquals("1.1", BlindDeconvolve.bandDefaults(blurred.getTitle(), BlindDeconvolve.GAUSSIAN).get("na"));
+		assertTrue(BlindDeconvolve.bandDefaults("cell.tif", BlindDeconvolve.GAUSSIAN).isEmpty());
 		assertEquals(1.4, OpticsDefaults.number(found, "no_such_key", 1.4));
 	}
 

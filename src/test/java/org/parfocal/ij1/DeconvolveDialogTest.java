@@ -143,6 +143,25 @@ class DeconvolveDialogTest {
 		assertFalse(all.contains("preview"), all);
 	}
 
+	@Test
+	void beadBoxHintsSayZeroMeansFromTheOpticsOnlyWhenOpticsAreChosen() {
+		ImageJHarness.assumeDisplay();
+		final ImagePlus img = DeconvolveCommandTest.recorded("beads.tif");
+		ImageJHarness.open(img);
+		final String[] hints = new String[2];
+		final String text = ImageJHarness.recorderTextOf(img, "PSF from Beads...", dialog -> {
+			final Choice optics = (Choice) dialog.getChoices().get(3);
+			final TextField box = (TextField) dialog.getNumericFields().get(0);
+			pick(optics, PsfFromBeads.NONE);
+			hints[0] = DeconvolveHints.unitLabel(box).getText().trim();
+			pick(optics, "born-wolf");
+			hints[1] = DeconvolveHints.unitLabel(box).getText().trim();
+		}, true, null);
+		assertEquals("µm (no optics chosen below: enter it)", hints[0]);
+		assertEquals("µm; 0 = from the optics", hints[1]);
+		assertFalse(text.contains("PSF from Beads"), "a cancelled dialog records nothing: " + text);
+	}
+
 	/** Screenshots of the whole virtual screen with ImageMagick's import (Debian imagemagick), when asked for. */
 	static final class Screens {
 		static void grab(final java.nio.file.Path png) {

@@ -97,8 +97,8 @@ class PsfFromOpticsCommandTest {
 		ImageJHarness.assumeDisplay();
 		final ImageJHarness.Recording rec = ImageJHarness.record(null, CMD, dialog -> {
 			final List<Choice> choices = dialog.getChoices().stream().map(Choice.class::cast).toList();
-			choices.get(0).select("gibson-lanni");
-			choices.get(1).select("widefield");
+			choices.get(0).select(ChoiceWords.word("model", "gibson-lanni")); // the dialog shows words
+			choices.get(1).select(ChoiceWords.word("modality", "widefield"));
 			final List<TextField> f = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
 			f.get(0).setText("1.3"); // na
 			f.get(1).setText("1.518"); // immersion
