@@ -57,6 +57,9 @@ public class CompareWithReferencesCommand extends MenuCommand {
 	@Parameter(persist = false)
 	private boolean ignore_calibration;
 
+	@Parameter(persist = false)
+	private boolean estimate_noise;
+
 	@Override
 	public String menuLabel() {
 		return "Compare with Sharp References...";

@@ -22,16 +22,16 @@ public class DeconvolveCommand extends WatchedInputs {
 	private ImagePlus psf;
 
 	@Parameter(description = "richardson-lucy, richardson-lucy-tv, accelerated-richardson-lucy, wiener", persist = false)
-	private String method = "richardson-lucy-tv";
+	private String method = "accelerated-richardson-lucy"; // the default run (DefaultRun), as a macro line without method
 
 	@Parameter(min = "1", persist = false)
-	private Integer iterations = 30;
+	private Integer iterations = 100;
 
 	@Parameter(min = "0", persist = false)
 	private Double regularization = 0.002;
 
-	@Parameter(persist = false)
-	private String stop = "fixed";
+	@Parameter(description = "fixed, relative-change, held-out", persist = false)
+	private String stop = "held-out";
 
 	@Parameter(min = "0", persist = false)
 	private Double threshold = 0.001;
@@ -53,6 +53,9 @@ public class DeconvolveCommand extends WatchedInputs {
 
 	@Parameter(persist = false)
 	private boolean recentre;
+
+	@Parameter(description = "32-bit or 16-bit (offset and scale recorded)", persist = false)
+	private String output = "32-bit";
 
 	@Parameter(type = ItemIO.OUTPUT)
 	private ImagePlus result;

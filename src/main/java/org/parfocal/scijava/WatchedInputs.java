@@ -38,6 +38,9 @@ public abstract class WatchedInputs extends OpticsInputs {
 	@Parameter(persist = false)
 	private boolean ignore_calibration;
 
+	@Parameter(persist = false)
+	private boolean estimate_noise;
+
 	/** True when the command computes its PSF from the optics (no PSF image given). */
 	protected abstract boolean fromOptics();
 

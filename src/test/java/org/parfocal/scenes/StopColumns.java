@@ -77,6 +77,13 @@ final class StopColumns {
 			final HoldOutStop.Result h = held(s, o);
 			return SceneBenchmark.db(gain(s, r.curve(s, o).at(h.fullIterations()))) + " @" + h.fullIterations();
 		}));
+		for (final String bg : List.of("dark", "fit", "fit-smooth"))
+			cols.add(SceneBenchmark.column("default run, bg " + bg, (s, r) -> {
+				final Level b = bg.equals("dark") ? SceneBenchmark.darkBackground(s) : bg.equals("fit") ? Level.FIT : Level.FIT_SMOOTH;
+				final DeconvolutionOptions o = opts(s, acc, 0, b);
+				final HoldOutStop.Result h = held(s, o);
+				return SceneBenchmark.db(gain(s, r.curve(s, o).at(h.fullIterations()))) + " @" + h.fullIterations() + (h.interior() ? "" : " edge");
+			}));
 		cols.add(SceneBenchmark.column("best iterate (methods x TV weights, bg true)", (s, r) -> {
 			SceneRuns.Curve bc = null;
 			String what = null;
