@@ -85,7 +85,8 @@ public final class BlockDeconvolution {
 		}
 		// y = max(0, (float)(v - offset)): its sum (in stack order, as the engine sums it), maximum and sample
 		final double[] stats = new double[3]; // sum, max, clipped
-		final float[] ys = sampleY(source, step, offset, stats, mon);
+		final DarkBoxes dark = options.background().kind() == Level.Kind.DARK ? new DarkBoxes(n) : null;
+		final float[] ys = sampleY(source, step, offset, stats, dark, mon);
 		if (!(stats[0] > 0))
 			throw new IllegalArgumentException(offset == 0 ? "The image is all zero (or negative): nothing to deconvolve"
 					: String.format(Locale.ROOT, "The image is at or below the camera offset (%.4g) everywhere: nothing to deconvolve", offset));
@@ -99,7 +100,10 @@ public final class BlockDeconvolution {
 			background = Preprocessing.estimateBackground(ys);
 			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (sigma-clipped median)", background));
 		}
-		case DARK -> throw new IllegalArgumentException("background=dark is not available block by block yet: give a number (e.g. from a run on a crop) or auto");
+		case DARK -> {
+			background = dark.level();
+			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (darkest region)", background));
+		}
 		case FIT, FIT_SMOOTH -> throw new IllegalArgumentException("background=fit is not available block by block yet: give a number (e.g. the fitted value of a run on a crop) or auto");
 		default -> background = 0;
 		}
@@ -311,6 +315,44 @@ public final class BlockDeconvolution {
 
 	private static float[] sampleY(final BlockSource source, final long step, final double offset, final double[] stats, final Monitor mon)
 			throws IOException {
+		return sampleY(source, step, offset, stats, null, mon);
+	}
+
+	/**
+	 * Sums of y over the boxes of {@link Preprocessing#estimateDarkBackground} (about 8×8×4 voxels, whole boxes
+	 * only, x fastest), so that {@code background=dark} gives the whole-stack run's value from the one streaming
+	 * pass (a double per box: 1/32 of the input's bytes).
+	 */
+	static final class DarkBoxes {
+		final int bx, by, bz, gx, gy, gz;
+		final double[] sums;
+
+		DarkBoxes(final int[] n) {
+			bx = Math.min(8, n[0]);
+			by = Math.min(8, n[1]);
+			bz = Math.min(4, n[2]);
+			gx = n[0] / bx;
+			gy = n[1] / by;
+			gz = n[2] / bz;
+			sums = new double[Math.multiplyExact(Math.multiplyExact(gx, gy), gz)];
+		}
+
+		void add(final int x, final int y, final int z, final float v) {
+			final int cx = x / bx, cy = y / by, cz = z / bz;
+			if (cx < gx && cy < gy && cz < gz) sums[(cz * gy + cy) * gx + cx] += v;
+		}
+
+		/** The 2 % quantile of the box means, as {@link Preprocessing#estimateDarkBackground}. */
+		double level() {
+			final double[] means = new double[sums.length];
+			for (int i = 0; i < means.length; i++) means[i] = sums[i] / (bx * by * bz);
+			java.util.Arrays.sort(means);
+			return means[(int) Math.floor(0.02 * (means.length - 1))];
+		}
+	}
+
+	private static float[] sampleY(final BlockSource source, final long step, final double offset, final double[] stats, final DarkBoxes dark,
+			final Monitor mon) throws IOException {
 		final int[] n = source.shape();
 		final long total = (long) n[0] * n[1] * n[2];
 		final float[] s = new float[(int) ((total + step - 1) / step)];
@@ -331,6 +373,7 @@ public final class BlockDeconvolution {
 				acc[0] += yv;
 				if (yv > acc[1]) acc[1] = yv;
 				if (i % step == 0) s[(int) (i / step)] = yv;
+				if (dark != null) dark.add(x, y, z, yv);
 			});
 			stats[0] = acc[0];
 			stats[1] = acc[1];
@@ -357,6 +400,7 @@ public final class BlockDeconvolution {
 					s[j++] = y;
 					next += step;
 				}
+				if (dark != null) dark.add(i % n[0], i / n[0], z, y);
 			}
 		}
 		stats[0] = sum;

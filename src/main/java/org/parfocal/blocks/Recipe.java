@@ -100,7 +100,7 @@ public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf opt
 		final EdgeMode edges = EdgeMode.parse(get(o, "edges", EdgeMode.NON_CIRCULANT.key()));
 		final DeconvolutionOptions d = new DeconvolutionOptions(method, iterations, regularization, stop,
 				stop == Stopping.RELATIVE_CHANGE ? threshold : threshold > 0 && threshold < 1 ? threshold : 0.001, edges,
-				level("offset", get(o, "offset", "auto")), level("background", get(o, "background", "auto")));
+				level("offset", get(o, "offset", "auto")), level("background", get(o, "background", org.parfocal.deconv.DefaultRun.BACKGROUND)));
 		final String psf = get(o, "psf", "");
 		final String text = MacroOptions.format(o);
 		if (FROM_OPTICS.equalsIgnoreCase(psf)) return new Recipe(d, null, optics(o), text);

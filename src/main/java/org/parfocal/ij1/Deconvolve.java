@@ -233,7 +233,7 @@ public class Deconvolve implements PlugIn {
 		gd.addNumericField("Threshold:", Commands.remembered(PREFS + "threshold", 0.001), 5, 8, "relative change that stops");
 		gd.addChoice("Edges:", EdgeMode.keys(), Commands.remembered(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
 		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
-		gd.addStringField("Background:", Commands.remembered(PREFS + "background", "auto"), 8);
+		gd.addStringField("Background:", Commands.remembered(PREFS + "background", DefaultRun.BACKGROUND), 8);
 		gd.addChoice("Output:", OutputDepth.keys(), Commands.remembered(PREFS + "output", OutputDepth.FLOAT.key()));
 		gd.addCheckbox("Plot convergence", true);
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);

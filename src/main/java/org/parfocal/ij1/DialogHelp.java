@@ -161,6 +161,7 @@ final class DialogHelp {
 		return p.field("Offset", "offset", "intensity units", "camera offset subtracted first: " + LEVEL + "; auto = the 0.1 % quantile")
 				.field("Background", "background", "intensity units", "constant b in the image model H&middot;x + b: " + LEVEL
 						+ "; auto = sigma-clipped median after the offset; <code>dark</code> = the darkest region"
+						+ (fit ? " (the default in Deconvolve: <code>auto</code> takes out-of-focus light for background)" : "")
 						+ (fit ? "; <code>fit</code> = fitted with the object inside Richardson&ndash;Lucy (maximum-likelihood EM step, "
 								+ "Shepp &amp; Vardi 1982; the fitted value goes into the Log and the provenance); <code>fit-smooth</code> = a slowly varying "
 								+ "background fitted the same way (piecewise linear over a 3 &times; 3 &times; 2 grid)" : ""));

@@ -42,8 +42,8 @@ public class DeconvolveCommand extends WatchedInputs {
 	@Parameter(description = "auto or a number", persist = false)
 	private String offset = "auto";
 
-	@Parameter(description = "auto or a number", persist = false)
-	private String background = "auto";
+	@Parameter(description = "dark, auto, fit, fit-smooth or a number", persist = false)
+	private String background = "dark"; // DefaultRun.BACKGROUND
 
 	@Parameter(persist = false)
 	private boolean plot;

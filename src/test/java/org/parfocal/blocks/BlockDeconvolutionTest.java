@@ -78,6 +78,17 @@ class BlockDeconvolutionTest {
 		assertEquals(whole.background(), l.background(), 0, "background");
 	}
 
+	/** The whole-stack run is the reference: background=dark block by block gives its value (the default of a Deconvolve line without background). */
+	@Test
+	void darkBackgroundBlockwiseIsTheWholeStackValue() throws Exception {
+		final DeconvolutionOptions o = DeconvolutionOptions.of(DeconvolutionMethod.RL, 1).withOffset(Level.ESTIMATED).withBackground(Level.DARK);
+		final DeconvolutionResult whole = Deconvolution.run(REC, PSF, o, null);
+		final BlockDeconvolution.Levels l = BlockDeconvolution.levels(BlockSource.of(REC), o, null);
+		assertTrue(whole.background() > 0, "the dark level of a recording with background is positive: " + whole.background());
+		assertEquals(whole.background(), l.background(), 1e-9 * whole.background(), "dark background");
+		compare(DeconvolutionOptions.of(DeconvolutionMethod.RL, 20).withOffset(Level.ESTIMATED).withBackground(Level.DARK));
+	}
+
 	@Test
 	void weightsArePartitionOfUnityAndBlocksCoverTheStack() {
 		final DeconvolutionOptions o = DeconvolutionOptions.of(DeconvolutionMethod.RL, 5);
