@@ -69,10 +69,14 @@ saveAs("Tiff", path);
 print("wrote " + path);
 info = getMetadata("Info");
 lines = split(info, "\n;");
+seen = "";
 for (i = 0; i < lines.length; i++)
-    if (startsWith(String.trim(lines[i]), "Noise model") || startsWith(String.trim(lines[i]), "run notes")
-            || indexOf(lines[i], "Held-out") >= 0 || indexOf(lines[i], "held-out") >= 0 || indexOf(lines[i], "Background estimated") >= 0)
-        print("deconvolve: " + String.trim(lines[i]));
+    if (startsWith(String.trim(lines[i]), "Noise model") || startsWith(String.trim(lines[i]), "Held-out stop")
+            || startsWith(String.trim(lines[i]), "Background estimated"))
+        if (indexOf(seen, "|" + String.trim(lines[i]) + "|") < 0) {
+            print("deconvolve: " + String.trim(lines[i]));
+            seen = seen + "|" + String.trim(lines[i]) + "|";
+        }
 Stack.getStatistics(voxels, mean, min, max);
 print("deconvolved: mean " + d2s(mean, 3) + ", max " + d2s(max, 1) + " (estimates: deconvolution can show artefacts that look like structure)");
 
@@ -85,9 +89,9 @@ run("Export Provenance as Macro...", "macro=[" + path + "] replace"); // likewis
 print("wrote " + path);
 
 // 5. Where to stop: the same deconvolution watched every 5 iterations against the recording alone (re-blur
-//    chi-square, discrepancy principle; the bundled recording is in photons). Prints the suggestion, or says
-//    that the curve gave none inside the evaluated range.
-run("Deconvolve...", "image=quillwort-widefield.tif psf=" + psf + " method=richardson-lucy-tv iterations=40 regularization=0.002 stop=fixed threshold=0.001 edges=non-circulant offset=100 background=auto watch every=5 references=[] open_references=[] photons=1 read_noise=0");
+//    chi-square with the noise model estimated from the recording, discrepancy principle). Prints the
+//    suggestion, or says that the curve gave none inside the evaluated range.
+run("Deconvolve...", "image=quillwort-widefield.tif psf=" + psf + " method=richardson-lucy-tv iterations=40 regularization=0.002 stop=fixed threshold=0.001 edges=non-circulant offset=100 background=dark watch every=5 references=[] open_references=[] photons=1 read_noise=0 estimate_noise");
 lines = split(getMetadata("Info"), "\n");
 for (i = 0; i < lines.length; i++)
     if (indexOf(lines[i], "suggest") >= 0 && indexOf(lines[i], "{") < 0) print("stopping point (watch mode, no references): " + replace(String.trim(lines[i]), "^run ", ""));
