@@ -74,8 +74,15 @@ public class BlindDeconvolve implements PlugIn {
 	static final String COMMAND = "Blind Deconvolve";
 	/** Starting-PSF choices besides the open images. */
 	public static final String FROM_OPTICS = Deconvolve.FROM_OPTICS, GAUSSIAN = "gaussian";
-	/** Values of {@code estimate=}: free-form updates (the behaviour of macros recorded before the key), a model fit, a model fit then a trust-region refinement. */
-	public static final String FREE_FORM = "free-form", MODEL_FIT = "model-fit", MODEL_FIT_REFINED = "model-fit-refined";
+	/**
+	 * Values of {@code estimate=}: free-form updates (the behaviour of macros recorded before the key), a model fit,
+	 * a model fit then a trust-region refinement; the two widefield words fit a Gaussian start as a widefield shape
+	 * (Born &amp; Wolf of the start's widths, which holds the out-of-focus cone a Gaussian lacks; the plain fit words
+	 * keep fitting a Gaussian, as recorded lines did).
+	 */
+	public static final String FREE_FORM = "free-form", MODEL_FIT = "model-fit", MODEL_FIT_REFINED = "model-fit-refined",
+			WIDEFIELD_FIT = "widefield-fit", WIDEFIELD_FIT_REFINED = "widefield-fit-refined";
+	private static final java.util.List<String> ESTIMATES = java.util.List.of(FREE_FORM, MODEL_FIT, MODEL_FIT_REFINED, WIDEFIELD_FIT, WIDEFIELD_FIT_REFINED);
 	/** Units of the support box. */
 	public static final String VOXELS = "voxels", MICRONS = "microns";
 	private static final String PREFS = "parfocal.blind.";
@@ -121,12 +128,14 @@ public class BlindDeconvolve implements PlugIn {
 
 		/**
 		 * The model-fit plan, or null for free-form. A Gaussian start fits the Gaussian family, as recorded lines
-		 * of this command always did (the core's default is the widefield shape; no key selects it yet).
+		 * of this command always did; {@code estimate=widefield-fit(-refined)} selects the widefield shape.
 		 */
 		public FitPlan plan() {
 			if (FREE_FORM.equals(estimate)) return null;
-			return (MODEL_FIT_REFINED.equals(estimate) ? FitPlan.refined() : FitPlan.model()).withTrustRadius(trustRadius)
-					.withGaussianStart(FitPlan.GaussianStart.GAUSSIAN);
+			final boolean refined = MODEL_FIT_REFINED.equals(estimate) || WIDEFIELD_FIT_REFINED.equals(estimate);
+			final boolean widefield = WIDEFIELD_FIT.equals(estimate) || WIDEFIELD_FIT_REFINED.equals(estimate);
+			return (refined ? FitPlan.refined() : FitPlan.model()).withTrustRadius(trustRadius)
+					.withGaussianStart(widefield ? FitPlan.GaussianStart.WIDEFIELD : FitPlan.GaussianStart.GAUSSIAN);
 		}
 
 		/** Without watch mode. */
@@ -146,8 +155,8 @@ public class BlindDeconvolve implements PlugIn {
 
 		public Options {
 			if (estimate == null) estimate = FREE_FORM;
-			if (!FREE_FORM.equals(estimate) && !MODEL_FIT.equals(estimate) && !MODEL_FIT_REFINED.equals(estimate))
-				throw new IllegalArgumentException("'" + estimate + "' is not a valid PSF estimate (" + FREE_FORM + ", " + MODEL_FIT + " or " + MODEL_FIT_REFINED + ") (estimate=)");
+			if (!ESTIMATES.contains(estimate))
+				throw new IllegalArgumentException("'" + estimate + "' is not a valid PSF estimate (" + String.join(", ", ESTIMATES) + ") (estimate=)");
 			if (!(trustRadius > 0 && trustRadius <= 1))
 				throw new IllegalArgumentException("The trust radius must be above 0 and at most 1, got " + trustRadius + " (trust_radius=)");
 			if (!FREE_FORM.equals(estimate) && !FROM_OPTICS.equals(psf) && !GAUSSIAN.equals(psf))
@@ -258,7 +267,7 @@ public class BlindDeconvolve implements PlugIn {
 		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
 		gd.addStringField("Background:", Commands.remembered(PREFS + "background", "auto"), 8);
 		gd.addMessage("How the PSF is estimated");
-		gd.addChoice("Estimate:", new String[] { FREE_FORM, MODEL_FIT, MODEL_FIT_REFINED }, Commands.remembered(PREFS + "estimate", FREE_FORM));
+		gd.addChoice("Estimate:", ESTIMATES.toArray(new String[0]), Commands.remembered(PREFS + "estimate", FREE_FORM));
 		gd.addNumericField("Trust_radius:", Commands.remembered(PREFS + "trust_radius", FitPlan.DEFAULT_TRUST_RADIUS), 3, 6, "largest distance of a refined PSF to the fitted model");
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
 		gd.addHelp(DialogHelp.blind().html());
@@ -275,7 +284,7 @@ public class BlindDeconvolve implements PlugIn {
 		final double snapshot = Commands.number(gd, "snapshot_interval");
 		final EdgeMode edges = EdgeMode.parse(Commands.checkChoice("edges", gd.getNextChoice(), "edge mode"));
 		final String offset = gd.getNextString().trim(), background = gd.getNextString().trim();
-		final String estimate = Commands.checkChoice("estimate", gd.getNextChoice(), "PSF estimate (" + FREE_FORM + ", " + MODEL_FIT + " or " + MODEL_FIT_REFINED + ")");
+		final String estimate = Commands.checkChoice("estimate", gd.getNextChoice(), "PSF estimate (" + String.join(", ", ESTIMATES) + ")");
 		final double trust = Commands.number(gd, "trust_radius");
 		final boolean watch = gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");

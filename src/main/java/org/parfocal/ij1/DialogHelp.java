@@ -241,7 +241,9 @@ final class DialogHelp {
 				.field("Object_TV", "object_tv", "", "total-variation weight of the object (against noise)")
 				.field("PSF_TV", "psf_tv", "", "total-variation weight of the PSF (0 = none)")
 				.field("Estimate", "estimate", "", "<code>free-form</code> (voxel by voxel), <code>model-fit</code> (fit the PSF model's parameters, "
-						+ "scored on held-out data) or <code>model-fit-refined</code> (then free-form within the trust radius)")
+						+ "scored on held-out data), <code>model-fit-refined</code> (then free-form within the trust radius); "
+						+ "<code>widefield-fit</code> / <code>widefield-fit-refined</code>: the same, but a Gaussian start is fitted as a widefield shape "
+						+ "(Born &amp; Wolf of the start's widths, which holds the out-of-focus cone a Gaussian lacks)")
 				.field("Trust_radius", "trust_radius", "", "largest relative distance of a refined PSF to the fitted model")
 				.group("PSF constraints")
 				.field("Band_limit", "band_limit", "", "remove PSF frequencies above the widefield cutoff 2&middot;NA/&lambda; (asks for NA, "

@@ -226,6 +226,30 @@ class BlindDeconvolveCommandTest {
 		}
 	}
 
+	/**
+	 * estimate=widefield-fit by menu name: the core's result with the widefield shape for the Gaussian start (the
+	 * plan differs from model-fit's only there), the word recorded, and a fitted PSF other than model-fit's.
+	 */
+	@Test
+	void widefieldFitByMenuNameEqualsTheCoreWithTheWidefieldShape() {
+		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
+		DeconvolveCommandTest.open(img);
+		final String opt = OPTIONS.replace("estimate=free-form trust_radius=0.2", "estimate=widefield-fit trust_radius=0.15");
+		final ImageJHarness.Result run = ImageJHarness.run(img, CMD, opt);
+		final BlindOptions o = new BlindOptions(4, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5), true, false, true, BAND, 2,
+				EdgeMode.NON_CIRCULANT, Level.of(100), Level.ESTIMATED);
+		final BlindResult wide = BlindDeconvolution.run(ImageBridge.toCore(img).first(), o, org.parfocal.blind.FitPlan.model().withTrustRadius(0.15)
+				.withGaussianStart(org.parfocal.blind.FitPlan.GaussianStart.WIDEFIELD), Monitor.NONE, null);
+		final BlindResult gauss = BlindDeconvolution.run(ImageBridge.toCore(img).first(), o, org.parfocal.blind.FitPlan.model().withTrustRadius(0.15)
+				.withGaussianStart(org.parfocal.blind.FitPlan.GaussianStart.GAUSSIAN), Monitor.NONE, null);
+		assertClose(wide.estimate().data(), ImageBridge.toCore(created(run, "cell-blind.tif")).first().data(), "command = core with the widefield shape");
+		assertEquals("widefield-fit", Provenance.of(created(run, "cell-blind.tif")).orElseThrow().options().get("estimate"));
+		double d = 0;
+		final float[] a = wide.psf().data(), b = gauss.psf().data();
+		for (int i = 0; i < Math.min(a.length, b.length); i++) d += Math.abs(a[i] - b[i]);
+		assertTrue(a.length != b.length || d > 1e-3, "the widefield shape is another PSF than the Gaussian fit (L1 difference " + d + ")");
+	}
+
 	@Test
 	void badInputIsRefusedInOneLineAndNothingIsCreated() {
 		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
