@@ -253,14 +253,14 @@ public class Deconvolve implements PlugIn {
 		final String psf = Commands.checkChoice("psf", gd.getNextChoice(), "PSF (an open image or " + FROM_OPTICS + ")");
 		final DeconvolutionMethod method = DeconvolutionMethod.parse(Commands.checkChoice("method", gd.getNextChoice(), "method"));
 		final double iterations = Commands.number(gd, "iterations"), regularization = Commands.number(gd, "regularization");
-		final Stopping stop = Stopping.parse(Commands.checkChoice("stop", gd.getNextChoice(), "stopping rule"));
+		final Stopping stop = Stopping.parse(Commands.checkChoice("stop", gd.getNextChoice(), "stopping rule (fixed, relative-change or held-out)"));
 		final double threshold = Commands.number(gd, "threshold");
 		final EdgeMode edges = EdgeMode.parse(Commands.checkChoice("edges", gd.getNextChoice(), "edge mode"));
 		final String offset = gd.getNextString().trim(), background = gd.getNextString().trim();
 		final boolean plot = gd.getNextBoolean();
 		final boolean watch = gd.getNextBoolean();
 		final boolean recentre = gd.getNextBoolean();
-		final OutputDepth output = OutputDepth.parse(Commands.checkChoice("output", gd.getNextChoice(), "output depth"));
+		final OutputDepth output = OutputDepth.parse(Commands.checkChoice("output", gd.getNextChoice(), "output depth (32-bit or 16-bit)"));
 		if (output == OutputDepth.FLOAT) ChoiceWords.forgetRecorded("output"); // the default is left out, as in lines recorded before the key
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		if (iterations != Math.rint(iterations)) throw new IllegalArgumentException("Iterations must be a whole number, got " + iterations);
