@@ -133,7 +133,7 @@ class DeconvolveChoicesTest {
 		ImageJHarness.open(img, psf);
 		final var opts = org.parfocal.deconv.DeconvolutionOptions.of(DeconvolutionMethod.RL, DeconvolvePreview.MAX_ITERATIONS)
 				.withOffset(org.parfocal.deconv.Level.of(100)).withBackground(org.parfocal.deconv.Level.of(2));
-		final DeconvolvePreview.Result r = DeconvolvePreview.compute(new DeconvolvePreview.Settings("cell.tif", "psf.tif", opts, false), () -> false);
+		final PreviewRun.Result r = PreviewRun.compute(new PreviewRun.Settings("cell.tif", "psf.tif", opts, false), () -> false);
 		assertEquals(2, r.z0());
 		assertEquals(8, r.z1());
 		assertEquals(DeconvolvePreview.MAX_ITERATIONS, r.iterations());
