@@ -68,6 +68,7 @@ final class DeconvolveInBlocks {
 		final BlockDeconvolution.Result first = runs.get(0);
 		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", imp));
 		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		if (o.optics() != null) PsfFromOptics.recordIgnored(COMMAND, o.optics(), prov); // fields the chosen model and modality do not use
 		prov.run("iterations", first.maxIterations()).run("stop_reason", "block by block (" + plan.count() + " blocks); each block ran "
 				+ (first.minIterations() == first.maxIterations() ? first.maxIterations() : first.minIterations() + " to " + first.maxIterations()) + " iteration(s)")
 				.run("offset", first.levels().offset()).run("background", first.levels().background()).run("block_plan", plan.describe());

@@ -111,6 +111,7 @@ final class DeconvolveRun {
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);
 		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", imp));
 		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		if (o.optics() != null) PsfFromOptics.recordIgnored(COMMAND, o.optics(), prov); // fields the chosen model and modality do not use
 		final DeconvolutionResult first = results.get(0);
 		prov.run("iterations", first.iterations()).run("stop_reason", stopReason(o.deconvolution(), first) + (o.watch() != null && o.watch().stopAtSuggestion() && !watches.isEmpty()
 				&& watches.get(0).best() != null ? "; the suggested iterate " + watches.get(0).suggestion().iteration() + " was returned (watch mode)" : "")).run("offset", first.offset())

@@ -7,6 +7,7 @@ import ij.gui.GenericDialog;
 import org.parfocal.core.VoxelSize;
 import org.parfocal.psf.Modality;
 import org.parfocal.psf.Optics;
+import org.parfocal.psf.OpticsFields.Group;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
 
@@ -41,24 +42,27 @@ final class OpticsDialog {
 		final GenericDialog gd = new GenericDialog(COMMAND);
 		gd.addChoice("Model:", PsfModels.keys(), OpticsDefaults.word(rec, "model", PsfModels.keys(), Commands.remembered(PREFS + "model", "gibson-lanni")));
 		gd.addChoice("Modality:", Modality.keys(), OpticsDefaults.word(rec, "modality", Modality.keys(), Commands.remembered(PREFS + "modality", "widefield")));
-		gd.addMessage("Objective and sample (lengths in µm)");
+		gd.addMessage(Group.OBJECTIVE.heading());
 		gd.addNumericField("NA:", OpticsDefaults.number(rec, "na", Commands.remembered(PREFS + "na", 1.4)), 3);
 		gd.addNumericField("Immersion_index:", OpticsDefaults.number(rec, "immersion_index", Commands.remembered(PREFS + "ni", 1.518)), 4, 8, "medium in use");
 		gd.addNumericField("Sample_index:", OpticsDefaults.number(rec, "sample_index", Commands.remembered(PREFS + "ns", 1.518)), 4);
+		gd.addMessage(Group.LAYERS.heading());
 		gd.addNumericField("Coverslip_index:", OpticsDefaults.number(rec, "coverslip_index", 1.522), 4, 8, "glass in use");
 		gd.addNumericField("Coverslip_thickness:", OpticsDefaults.number(rec, "coverslip_thickness", 170), 1, 8, "µm, glass in use");
 		gd.addNumericField("Depth:", OpticsDefaults.number(rec, "depth", Commands.remembered(PREFS + "depth", 0)), 2, 8, "µm below the coverslip");
-		gd.addMessage("What the objective is corrected for (Gibson & Lanni only)");
+		gd.addMessage(Group.DESIGN.heading());
 		gd.addNumericField("Immersion_index_design:", OpticsDefaults.number(rec, "immersion_index_design", Commands.remembered(PREFS + "nid", 1.518)), 4, 8, "on the objective");
 		gd.addNumericField("Coverslip_index_design:", OpticsDefaults.number(rec, "coverslip_index_design", 1.522), 4);
 		gd.addNumericField("Coverslip_thickness_design:", OpticsDefaults.number(rec, "coverslip_thickness_design", 170), 1, 8, "µm, on the barrel");
 		gd.addNumericField("Working_distance:", OpticsDefaults.number(rec, "working_distance", 150), 1, 8, "µm");
-		gd.addMessage("Light");
+		gd.addMessage(Group.LIGHT.heading());
 		gd.addNumericField("Emission:", OpticsDefaults.number(rec, "emission", Commands.remembered(PREFS + "emission", 0.52)), 3, 6, "µm");
-		gd.addNumericField("Excitation:", OpticsDefaults.number(rec, "excitation", Commands.remembered(PREFS + "excitation", 0.488)), 3, 6, "µm (confocal, two-photon)");
-		gd.addNumericField("Pinhole:", OpticsDefaults.number(rec, "pinhole", 1), 2, 6, "Airy units (confocal)");
-		gd.addNumericField("Sheet_thickness:", OpticsDefaults.number(rec, "sheet_thickness", 2), 2, 6, "µm FWHM (light-sheet)");
-		gd.addMessage("Sampling");
+		gd.addMessage(Group.SCANNING.heading());
+		gd.addNumericField("Excitation:", OpticsDefaults.number(rec, "excitation", Commands.remembered(PREFS + "excitation", 0.488)), 3, 6, "µm (laser line; two-photon: the laser wavelength)");
+		gd.addNumericField("Pinhole:", OpticsDefaults.number(rec, "pinhole", 1), 2, 6, "Airy units (confocal only)");
+		gd.addMessage(Group.SHEET.heading());
+		gd.addNumericField("Sheet_thickness:", OpticsDefaults.number(rec, "sheet_thickness", 2), 2, 6, "µm FWHM along z");
+		gd.addMessage(Group.SAMPLING.heading());
 		gd.addNumericField("Voxel_xy:", dxy, 4, 8, "µm (from the current image)");
 		gd.addNumericField("Voxel_z:", dz, 4, 8, "µm");
 		gd.addNumericField("Size_xy:", 0, 0, 6, "voxels, odd; 0 = from the optics");
@@ -66,6 +70,7 @@ final class OpticsDialog {
 		if (withProfiles) gd.addCheckbox("Show_profiles and FWHM table", true);
 		gd.addHelp(DialogHelp.psfFromOptics(withProfiles).html());
 		ChoiceWords.show(gd, "model", "modality"); // shown in words, recorded as the macro values
+		OpticsGreying.follow(gd); // fields the chosen model and modality do not use are greyed out
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String model = Commands.checkChoice("model", gd.getNextChoice(), "PSF model (" + String.join(", ", PsfModels.keys()) + ")");

@@ -1,6 +1,6 @@
 package org.parfocal.ij1;
 
-import java.util.List;
+import java.util.Map;
 import java.util.Locale;
 
 import ij.IJ;
@@ -13,9 +13,9 @@ import ij.plugin.PlugIn;
 import org.parfocal.core.Volume;
 import org.parfocal.provenance.MacroOptions;
 import org.parfocal.psf.Fwhm;
-import org.parfocal.psf.Modality;
 import org.parfocal.psf.Nyquist;
 import org.parfocal.psf.Optics;
+import org.parfocal.psf.OpticsFields;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
 
@@ -66,6 +66,11 @@ public class PsfFromOptics implements PlugIn {
 					+ (showProfiles ? " show_profiles" : "");
 		}
 
+		/** The fields the model and modality do not use, with the reasons, in dialog order. */
+		public Map<String, String> ignored() {
+			return OpticsFields.ignored(PsfModels.get(model), optics.modality(), sizeXY != 0 && sizeZ != 0);
+		}
+
 		private static String n(final double v) {
 			return Double.isNaN(v) ? "0" : MacroOptions.number(v);
 		}
@@ -110,23 +115,20 @@ public class PsfFromOptics implements PlugIn {
 		final var builder = Provenance.start(COMMAND, o.macroOptions()).run("grid", grid.nx() + "x" + grid.ny() + "x" + grid.nz())
 				.run("fwhm_x_um", fx).run("fwhm_y_um", fy).run("fwhm_z_um", fz);
 		if (warning != null) builder.warning(warning);
-		final String ignored = ignored(o.model(), o.optics().modality());
-		if (!ignored.isEmpty()) builder.run("ignored", ignored);
+		recordIgnored(COMMAND, o, builder);
 		Provenance.attach(imp, builder, start);
 		IJ.showStatus(COMMAND + String.format(Locale.ROOT, ": FWHM %.3f x %.3f x %.3f µm", fx, fy, fz));
 		return new Result(imp, PsfSummaries.profiles(psf, o), PsfSummaries.table(o, fx, fy, fz), warning);
 	}
 
 	/**
-	 * The dialog's fields that this model and modality do not use, as one sentence for the record (they are kept
-	 * as entered, so the record repeats the dialog, and are marked here as not used).
+	 * Fields this model and modality do not use ({@link OpticsFields#ignored}): kept as entered, so the record
+	 * repeats the dialog, and listed in the record under {@code ignored} with the reason; the Log says so once.
 	 */
-	static String ignored(final String model, final Modality modality) {
-		final List<String> keys = new java.util.ArrayList<>();
-		if (!modality.usesExcitation()) keys.add("excitation");
-		if (modality != Modality.CONFOCAL) keys.add("pinhole");
-		if (modality != Modality.LIGHT_SHEET) keys.add("sheet_thickness");
-		if (!"gibson-lanni".equals(model)) keys.addAll(List.of("immersion_index_design", "coverslip_index_design", "coverslip_thickness_design", "working_distance"));
-		return keys.isEmpty() ? "" : String.join(", ", keys) + ": not used by " + model + " " + modality.key();
+	static void recordIgnored(final String command, final Options o, final org.parfocal.provenance.Provenance.Builder prov) {
+		final Map<String, String> ignored = o.ignored();
+		if (ignored.isEmpty()) return;
+		prov.run("ignored", ignored);
+		IJ.log(command + ": not used by " + o.model() + " " + o.optics().modality().key() + ", ignored: " + OpticsFields.sentence(ignored));
 	}
 }

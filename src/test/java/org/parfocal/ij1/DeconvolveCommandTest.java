@@ -98,7 +98,8 @@ class DeconvolveCommandTest {
 				+ "coverslip_thickness=170 depth=0 immersion_index_design=1.333 coverslip_index_design=1.522 coverslip_thickness_design=170 "
 				+ "working_distance=150 emission=0.52 excitation=0.488 pinhole=1 sheet_thickness=2 voxel_xy=0.08 voxel_z=0.2 size_xy=15 size_z=7";
 		final String options = OPTIONS.replace("psf=psf.tif", "psf=from_optics").replace("iterations=12", "iterations=5") + " " + optics;
-		final ImagePlus out = ImageJHarness.run(img, CMD, options).onlyCreated();
+		final ImageJHarness.Result run = ImageJHarness.run(img, CMD, options);
+		final ImagePlus out = run.onlyCreated();
 		final Volume psf = PsfModels.get("born-wolf").compute(Optics.builder().na(1.2).immersionIndex(1.333).emissionWavelength(0.52).build(),
 				new PsfGrid(15, 15, 7, 0.08, 0.08, 0.2));
 		final DeconvolutionOptions d = new DeconvolutionOptions(DeconvolutionMethod.RL_TV, 5, 0.002, Stopping.FIXED, 0.001, EdgeMode.NON_CIRCULANT,
@@ -107,6 +108,11 @@ class DeconvolveCommandTest {
 		assertArrayEquals(core.data(), ImageBridge.toCore(out).first().data(), 1e-6f * max(core.data()));
 		final var keys = Provenance.of(out).orElseThrow().options().keySet();
 		assertTrue(keys.containsAll(List.of("na", "sample_index", "voxel_z", "size_xy")), keys.toString());
+		// issue 17: the pinhole was given but a widefield PSF has none: accepted, recorded, ignored, and said once
+		final java.util.Map<?, ?> ignored = (java.util.Map<?, ?>) Provenance.of(out).orElseThrow().run().get("ignored");
+		assertEquals("widefield modality has no pinhole", ignored.get("pinhole"), String.valueOf(ignored));
+		assertTrue(ignored.containsKey("working_distance") && !ignored.containsKey("na") && !ignored.containsKey("emission"), String.valueOf(ignored));
+		assertEquals(1, run.log().stream().filter(l -> l.startsWith("Deconvolve: not used by born-wolf widefield, ignored:")).count(), run.log()::toString);
 	}
 
 	/** A stack whose padded transform does not fit the memory budget is deconvolved block by block, and says so. */
