@@ -1,9 +1,13 @@
 package org.parfocal.ij1;
 
 import java.awt.Choice;
+import java.awt.Color;
 import java.awt.Component;
+import java.awt.Container;
 import java.awt.GraphicsEnvironment;
+import java.awt.Label;
 import java.awt.TextField;
+import java.awt.Window;
 import java.util.Vector;
 
 import ij.gui.GenericDialog;
@@ -43,10 +47,7 @@ final class OpticsGreying {
 			final boolean sizesGiven = nonZero(sizeXY) && nonZero(sizeZ);
 			for (int i = 0; i < OpticsFields.FIELDS.size(); i++) {
 				final boolean used = OpticsFields.relevant(OpticsFields.FIELDS.get(i).key(), m, mod, sizesGiven);
-				final TextField f = (TextField) num.get(i);
-				f.setEnabled(used);
-				final Component unit = DeconvolveHints.unitLabel(f);
-				if (unit != null) unit.setEnabled(used);
+				grey((TextField) num.get(i), used);
 			}
 		};
 		update.run();
@@ -54,6 +55,26 @@ final class OpticsGreying {
 		modality.addItemListener(e -> update.run());
 		sizeXY.addTextListener(e -> update.run());
 		sizeZ.addTextListener(e -> update.run());
+	}
+
+	/**
+	 * Enables or greys one field, its label on the left and its units on the right. AWT on X11 draws a disabled
+	 * text field like an enabled one, so a greyed field also takes the dialog's background and grey text.
+	 */
+	private static void grey(final TextField f, final boolean used) {
+		f.setEnabled(used);
+		f.setForeground(used ? Color.BLACK : Color.GRAY);
+		Component top = f;
+		while (top.getParent() != null && !(top.getParent() instanceof Window)) top = top.getParent();
+		final Container dialog = top.getParent();
+		f.setBackground(used || dialog == null ? Color.WHITE : dialog.getBackground());
+		if (dialog == null) return;
+		// a field with units sits in a panel with its units label; one without is added to the dialog directly
+		final Component unit = top != f ? DeconvolveHints.unitLabel(f) : null;
+		if (unit != null) unit.setEnabled(used);
+		// GenericDialog adds the field's label just before the field (or before the panel holding field and units)
+		final Component[] all = dialog.getComponents();
+		for (int i = 1; i < all.length; i++) if (all[i] == top && all[i - 1] instanceof Label l) l.setEnabled(used);
 	}
 
 	/** The state of every optics field now: true = in use (tests). */

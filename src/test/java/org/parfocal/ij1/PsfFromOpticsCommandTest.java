@@ -156,6 +156,10 @@ class PsfFromOpticsCommandTest {
 			greyed.put("gibson-lanni widefield", disabled(dialog));
 			pick(choices.get(0), ChoiceWords.word("model", "born-wolf"));
 			greyed.put("born-wolf widefield, automatic box", disabled(dialog));
+			// only the fields' own labels grey: the Model label (the dialog's first) stays as it is
+			final java.awt.Label first = java.util.Arrays.stream(((java.awt.Container) (Object) dialog).getComponents()).filter(java.awt.Label.class::isInstance)
+					.map(java.awt.Label.class::cast).findFirst().orElseThrow();
+			greyed.put("model label enabled", List.of(first.getText() + " " + first.isEnabled()));
 			final List<TextField> f = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
 			f.get(14).setText("0.1");
 			f.get(15).setText("0.25");
@@ -165,6 +169,7 @@ class PsfFromOpticsCommandTest {
 				for (final java.awt.event.TextListener l : t.getTextListeners()) l.textValueChanged(new java.awt.event.TextEvent(t, java.awt.event.TextEvent.TEXT_VALUE_CHANGED));
 			greyed.put("born-wolf widefield, box given", disabled(dialog));
 		});
+		assertEquals(List.of("Model: true"), greyed.get("model label enabled"));
 		assertEquals(List.of("sheet_thickness"), greyed.get("gibson-lanni confocal"));
 		assertEquals(List.of("excitation", "pinhole", "sheet_thickness"), greyed.get("gibson-lanni widefield"));
 		assertEquals(List.of("coverslip_index", "coverslip_thickness", "immersion_index_design", "coverslip_index_design", "coverslip_thickness_design",
