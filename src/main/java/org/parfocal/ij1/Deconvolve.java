@@ -49,9 +49,7 @@ public class Deconvolve implements PlugIn {
 	/** PSF choice that computes the PSF from the optics instead of taking an open image. */
 	public static final String FROM_OPTICS = "from_optics";
 
-	/**
-	 * What the dialogs decide. {@code optics} is set when {@code psf} is {@link #FROM_OPTICS}.
-	 */
+	/** What the dialogs decide. {@code optics} is set when {@code psf} is {@link #FROM_OPTICS}. */
 	public record Options(String image, String psf, PsfFromOptics.Options optics, DeconvolutionOptions deconvolution, boolean plot, Watch watch,
 			boolean recentre, OutputDepth output) {
 
@@ -173,33 +171,30 @@ public class Deconvolve implements PlugIn {
 	/** System property (bytes) that overrides the memory budget deciding when to work block by block. */
 	public static final String BUDGET_PROPERTY = "parfocal.blocks.budget";
 
+	// Shared with Blind Deconvolve and Compare with References, which call them here.
+
 	/** The watch-mode dialog; in a macro, values not given take the defaults (never remembered ones). */
 	static Watch showWatchDialog() {
 		return DeconvolveDialog.showWatch();
 	}
 
-	/** "auto" = estimated, "0" or "" = none, "dark", else a number ({@link Level#parse}, without the fits). */
 	static Level level(final String key, final String text) {
 		return Level.parse(key, text, false);
 	}
 
-	/** One PSF per channel, resampled to the image's voxel size if needed, with a note ({@link DeconvolvePsfs}). */
 	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes) {
 		return DeconvolvePsfs.psfsFor(in, psfImp, optics, notes, false);
 	}
 
-	/** Watch-mode facts for the record ({@link WatchFacts#record}). */
 	static void watchProvenance(final org.parfocal.provenance.Provenance.Builder prov, final Watch w, final List<? extends WatchedRun> watches,
 			final List<CompareWithReferences.Reference> refs) {
 		WatchFacts.record(prov, w, watches, refs);
 	}
 
-	/** The quality plot with the axis and χ² legend named by the caller ({@link DeconvolvePlots#quality}). */
 	static Plot qualityPlot(final List<? extends WatchedRun> watches, final String title, final String xLabel, final String chiLabel) {
 		return DeconvolvePlots.quality(watches, title, xLabel, chiLabel);
 	}
 
-	/** Four significant digits, no trailing zeros. */
 	static String fmt(final double v) {
 		return PsfPreparation.fmt(v);
 	}
