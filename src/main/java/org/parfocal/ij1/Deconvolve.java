@@ -420,8 +420,8 @@ public class Deconvolve implements PlugIn {
 		final String title = WindowManager.makeUniqueName(ConvolveWithPsf.stripExtension(imp.getTitle()) + "-deconvolved.tif");
 		final ImagePlus out = ImageBridge.toImagePlus(new Hyperstack(in.channels(), in.frames(), vols), title, imp.getCalibration());
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);
-		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", imp));
-		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		final var prov = ImageProvenance.start(COMMAND, o.macroOptions()).input(ImageProvenance.input("image", imp));
+		if (psfImp != null) prov.input(ImageProvenance.input("psf", psfImp));
 		final DeconvolutionResult first = results.get(0);
 		prov.run("iterations", first.iterations()).run("stop_reason", stopReason(o.deconvolution(), first) + (o.watch() != null && o.watch().stopAtSuggestion() && !watches.isEmpty()
 				&& watches.get(0).best() != null ? "; the suggested iterate " + watches.get(0).suggestion().iteration() + " was returned (watch mode)" : "")).run("offset", first.offset())
@@ -434,7 +434,7 @@ public class Deconvolve implements PlugIn {
 		if (o.watch() != null) watchProvenance(prov, o.watch(), watches, refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		outputDepth(o, out, prov);
-		Provenance.attach(out, prov, start);
+		ImageProvenance.attach(out, prov, start);
 		monitor.done(String.format(Locale.ROOT, "%d iteration(s), %.1f s", first.iterations(), (System.nanoTime() - start) / 1e9));
 		final Plot plot = o.plot() && !first.history().isEmpty() ? convergencePlot(results, title) : null;
 		final Plot quality = o.watch() == null ? null : qualityPlot(watches, title);
@@ -492,15 +492,15 @@ public class Deconvolve implements PlugIn {
 		final ImagePlus out = ImageBridge.toImagePlus(new Hyperstack(in.channels(), in.frames(), vols), title, imp.getCalibration());
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);
 		final BlockDeconvolution.Result first = runs.get(0);
-		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", imp));
-		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		final var prov = ImageProvenance.start(COMMAND, o.macroOptions()).input(ImageProvenance.input("image", imp));
+		if (psfImp != null) prov.input(ImageProvenance.input("psf", psfImp));
 		prov.run("iterations", first.maxIterations()).run("stop_reason", "block by block (" + plan.count() + " blocks); each block ran "
 				+ (first.minIterations() == first.maxIterations() ? first.maxIterations() : first.minIterations() + " to " + first.maxIterations()) + " iteration(s)")
 				.run("offset", first.levels().offset()).run("background", first.levels().background()).run("block_plan", plan.describe());
 		if (n > 1) prov.run("volumes", n);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		outputDepth(o, out, prov);
-		Provenance.attach(out, prov, start);
+		ImageProvenance.attach(out, prov, start);
 		monitor.done("block by block, " + plan.count() + " blocks");
 		return new Output(out, null, List.of());
 	}
@@ -509,7 +509,7 @@ public class Deconvolve implements PlugIn {
 	static void watchProvenance(final org.parfocal.provenance.Provenance.Builder prov, final Watch w, final List<? extends WatchedRun> watches,
 			final List<CompareWithReferences.Reference> refs) {
 		prov.run("watch_rule", StoppingRule.DESCRIPTION).run("watch_references", refs.size());
-		for (final CompareWithReferences.Reference r : refs) prov.input(Provenance.input("reference", r.image()));
+		for (final CompareWithReferences.Reference r : refs) prov.input(ImageProvenance.input("reference", r.image()));
 		final int n = watches.size();
 		for (int i = 0; i < n; i++) {
 			final WatchedRun q = watches.get(i);

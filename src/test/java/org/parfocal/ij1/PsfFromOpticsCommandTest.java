@@ -52,7 +52,7 @@ class PsfFromOpticsCommandTest {
 		final Volume got = ImageBridge.toVolume(psf, "psf");
 		org.junit.jupiter.api.Assertions.assertArrayEquals(core.data(), got.data(), 1e-9f);
 		assertEquals(1.0, got.sum(), 1e-5, "unit sum");
-		final var p = Provenance.of(psf).orElseThrow();
+		final var p = ImageProvenance.of(psf).orElseThrow();
 		assertEquals(KEYS.subList(0, KEYS.size() - 1), List.copyOf(p.options().keySet()), "every key but the unchecked flag");
 		assertEquals(Fwhm.lateral(core), ((Number) p.run().get("fwhm_x_um")).doubleValue(), 1e-12);
 	}
@@ -60,7 +60,7 @@ class PsfFromOpticsCommandTest {
 	/** Issue 17: a widefield run recorded excitation=0 and sheet_thickness=0 where the dialog showed 0.488 and 2. */
 	@Test
 	void theRecordKeepsWhatWasEnteredAndSaysWhichFieldsTheModalityIgnored() {
-		final var p = Provenance.of(ImageJHarness.run(null, CMD, OPTIONS).onlyCreated()).orElseThrow();
+		final var p = ImageProvenance.of(ImageJHarness.run(null, CMD, OPTIONS).onlyCreated()).orElseThrow();
 		assertEquals("0.488", p.options().get("excitation"));
 		assertEquals("2", p.options().get("sheet_thickness"));
 		final String ignored = String.valueOf(p.run().get("ignored"));
@@ -73,7 +73,7 @@ class PsfFromOpticsCommandTest {
 		final String coarse = OPTIONS.replace("voxel_xy=0.08", "voxel_xy=0.2");
 		final ImageJHarness.Result r = ImageJHarness.run(null, CMD, coarse);
 		assertTrue(String.join("\n", r.log()).contains("lateral step 0.2 µm is coarser than Nyquist"), () -> String.join("\n", r.log()));
-		assertTrue(Provenance.of(r.onlyCreated()).orElseThrow().warnings().get(0).startsWith("Undersampled"));
+		assertTrue(ImageProvenance.of(r.onlyCreated()).orElseThrow().warnings().get(0).startsWith("Undersampled"));
 	}
 
 	@Test
@@ -116,7 +116,7 @@ class PsfFromOpticsCommandTest {
 		final ImagePlus recorded = rec.result().created().stream().filter(i -> i.getTitle().startsWith("psf-")).findFirst().orElseThrow();
 		assertEquals(2, rec.result().created().size(), "the PSF and its profile plot");
 		assertEquals(List.copyOf(org.parfocal.provenance.MacroOptions.parse(opts).keySet()),
-				List.copyOf(Provenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
+				List.copyOf(ImageProvenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
 		ImageJHarness.assertSamePixels(recorded, ImageJHarness.replayInHeadlessJvm(rec.line()), 0);
 	}
 }
