@@ -115,7 +115,7 @@ public class ConvolveWithPsf implements PlugIn {
 		final var prov = ImageProvenance.start(COMMAND, o.macroOptions()).input(ImageProvenance.input("image", object)).input(ImageProvenance.input("psf", psfImp))
 				.run("volumes", in.volumes().size());
 		if (o.recentre()) prov.run("psf_centre_of_mass_offset", Arrays.toString(Psfs.centroidOffset(given)));
-		else if (offCentre != null) prov.run("warning", offCentre);
+		else if (offCentre != null) prov.warning(offCentre);
 		ImageProvenance.attach(result, prov, start);
 		monitor.done("done");
 		return result;
