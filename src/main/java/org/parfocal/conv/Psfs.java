@@ -24,11 +24,6 @@ public final class Psfs {
 		return out;
 	}
 
-	/** True if the PSF sums to 1 within {@code tol}. */
-	public static boolean isNormalized(final Volume psf, final double tol) {
-		return Math.abs(psf.sum() - 1) <= tol;
-	}
-
 	/** Copy with negative values set to zero; the count of clipped values is returned in {@code clipped[0]}. */
 	public static Volume clipNegative(final Volume psf, final int[] clipped) {
 		final Volume out = psf.copy();

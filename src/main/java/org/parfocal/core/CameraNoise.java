@@ -48,11 +48,6 @@ public record CameraNoise(double gain, double readNoise, double intercept, int b
 		return 1 / gain;
 	}
 
-	/** Read noise in photons, σ/g (NaN if unknown). */
-	public double readNoisePhotons() {
-		return readNoise / gain;
-	}
-
 	/** One line for the Log. */
 	public String describe() {
 		return String.format(Locale.ROOT, "gain %.4g units per photon (%.4g photons per unit), read noise %s", gain, 1 / gain,
