@@ -66,8 +66,8 @@ final class DeconvolveInBlocks {
 		final ImagePlus out = ImageBridge.toImagePlus(new Hyperstack(in.channels(), in.frames(), vols), title, imp.getCalibration());
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);
 		final BlockDeconvolution.Result first = runs.get(0);
-		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", imp));
-		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		final var prov = ImageProvenance.start(COMMAND, o.macroOptions()).input(ImageProvenance.input("image", imp));
+		if (psfImp != null) prov.input(ImageProvenance.input("psf", psfImp));
 		if (o.optics() != null) PsfFromOptics.recordIgnored(COMMAND, o.optics(), prov); // fields the chosen model and modality do not use
 		prov.run("iterations", first.maxIterations()).run("stop_reason", "block by block (" + plan.count() + " blocks); each block ran "
 				+ (first.minIterations() == first.maxIterations() ? first.maxIterations() : first.minIterations() + " to " + first.maxIterations()) + " iteration(s)")
@@ -75,7 +75,7 @@ final class DeconvolveInBlocks {
 		if (n > 1) prov.run("volumes", n);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		DeconvolveRun.outputDepth(o, out, prov);
-		Provenance.attach(out, prov, start);
+		ImageProvenance.attach(out, prov, start);
 		monitor.done("block by block, " + plan.count() + " blocks");
 		return new Output(out, null, List.of());
 	}

@@ -169,11 +169,6 @@ final class DeconvolvePreview {
 		return window == null ? null : window.window();
 	}
 
-	/** Runs the preview now with the dialog's current fields (tests). */
-	void refresh() {
-		changed();
-	}
-
 	/** The number of runs started (tests: a change must start one). */
 	int generation() {
 		return generation.get();

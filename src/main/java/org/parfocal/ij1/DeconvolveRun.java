@@ -109,8 +109,8 @@ final class DeconvolveRun {
 		final String title = WindowManager.makeUniqueName(ConvolveWithPsf.stripExtension(imp.getTitle()) + "-deconvolved.tif");
 		final ImagePlus out = ImageBridge.toImagePlus(new Hyperstack(in.channels(), in.frames(), vols), title, imp.getCalibration());
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);
-		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", imp));
-		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		final var prov = ImageProvenance.start(COMMAND, o.macroOptions()).input(ImageProvenance.input("image", imp));
+		if (psfImp != null) prov.input(ImageProvenance.input("psf", psfImp));
 		if (o.optics() != null) PsfFromOptics.recordIgnored(COMMAND, o.optics(), prov); // fields the chosen model and modality do not use
 		final DeconvolutionResult first = results.get(0);
 		prov.run("iterations", first.iterations()).run("stop_reason", stopReason(o.deconvolution(), first) + (o.watch() != null && o.watch().stopAtSuggestion() && !watches.isEmpty()
@@ -124,7 +124,7 @@ final class DeconvolveRun {
 		if (o.watch() != null) WatchFacts.record(prov, o.watch(), watches, refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		outputDepth(o, out, prov);
-		Provenance.attach(out, prov, start);
+		ImageProvenance.attach(out, prov, start);
 		monitor.done(String.format(Locale.ROOT, "%d iteration(s), %.1f s", first.iterations(), (System.nanoTime() - start) / 1e9));
 		final Plot plot = o.plot() && !first.history().isEmpty() ? DeconvolvePlots.convergence(results, title) : null;
 		final Plot quality = o.watch() == null ? null : DeconvolvePlots.quality(watches, title);

@@ -112,11 +112,11 @@ public class PsfFromOptics implements PlugIn {
 		final double fx = Fwhm.lateral(psf), fy = Fwhm.lateralY(psf), fz = Fwhm.axial(psf);
 		final String warning = Nyquist.check(o.optics(), o.voxelXY(), o.voxelXY(), o.voxelZ());
 		if (warning != null) IJ.log(COMMAND + ": " + warning);
-		final var builder = Provenance.start(COMMAND, o.macroOptions()).run("grid", grid.nx() + "x" + grid.ny() + "x" + grid.nz())
+		final var builder = ImageProvenance.start(COMMAND, o.macroOptions()).run("grid", grid.nx() + "x" + grid.ny() + "x" + grid.nz())
 				.run("fwhm_x_um", fx).run("fwhm_y_um", fy).run("fwhm_z_um", fz);
 		if (warning != null) builder.warning(warning);
 		recordIgnored(COMMAND, o, builder);
-		Provenance.attach(imp, builder, start);
+		ImageProvenance.attach(imp, builder, start);
 		IJ.showStatus(COMMAND + String.format(Locale.ROOT, ": FWHM %.3f x %.3f x %.3f µm", fx, fy, fz));
 		return new Result(imp, PsfSummaries.profiles(psf, o), PsfSummaries.table(o, fx, fy, fz), warning);
 	}

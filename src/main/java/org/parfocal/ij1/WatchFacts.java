@@ -42,7 +42,7 @@ final class WatchFacts {
 	static void record(final org.parfocal.provenance.Provenance.Builder prov, final Watch w, final List<? extends WatchedRun> watches,
 			final List<CompareWithReferences.Reference> refs) {
 		prov.run("watch_rule", StoppingRule.DESCRIPTION).run("watch_references", refs.size());
-		for (final CompareWithReferences.Reference r : refs) prov.input(Provenance.input("reference", r.image()));
+		for (final CompareWithReferences.Reference r : refs) prov.input(ImageProvenance.input("reference", r.image()));
 		final int n = watches.size();
 		for (int i = 0; i < n; i++) {
 			final WatchedRun q = watches.get(i);

@@ -53,7 +53,7 @@ public class WriteReport implements PlugIn {
 		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.WRITE_REPORT, () -> {
 			final ImagePlus imp = WindowManager.getCurrentImage();
 			if (imp == null) throw new IllegalArgumentException("No image is open");
-			if (Provenance.of(imp).isEmpty())
+			if (ImageProvenance.of(imp).isEmpty())
 				throw new IllegalArgumentException("'" + imp.getTitle() + "' has no Parfocal provenance to report (Image > Show Info shows what ImageJ knows)");
 			final GenericDialog gd = new GenericDialog(COMMAND);
 			gd.addStringField("File:", defaultFile(imp), 50);
@@ -75,7 +75,7 @@ public class WriteReport implements PlugIn {
 
 	/** Writes the report of {@code imp}; returns the file. */
 	public static File write(final ImagePlus imp, final Options o) {
-		final var p = Provenance.of(imp).orElseThrow(() -> new IllegalArgumentException("'" + imp.getTitle() + "' has no Parfocal provenance"));
+		final var p = ImageProvenance.of(imp).orElseThrow(() -> new IllegalArgumentException("'" + imp.getTitle() + "' has no Parfocal provenance"));
 		if (o.file().isEmpty()) throw new IllegalArgumentException("No report file given (file=)");
 		final File f = new File(o.file());
 		if (f.exists() && !o.replace()) throw new IllegalArgumentException("'" + f.getPath() + "' exists; give another name or add 'replace'");

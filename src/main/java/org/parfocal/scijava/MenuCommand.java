@@ -90,13 +90,6 @@ public abstract class MenuCommand extends ContextCommand {
 		if (current != null && created.contains(current)) set("result", current);
 	}
 
-	/** The first made image whose title ends with {@code suffix}, or null. */
-	protected static ImagePlus titled(final List<ImagePlus> created, final String suffix) {
-		for (final ImagePlus imp : created)
-			if (imp.getTitle().endsWith(suffix)) return imp;
-		return null;
-	}
-
 	@Override
 	public void run() {
 		final String options = macroOptions();

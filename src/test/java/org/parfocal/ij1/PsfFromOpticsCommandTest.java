@@ -53,7 +53,7 @@ class PsfFromOpticsCommandTest {
 		final Volume got = ImageBridge.toVolume(psf, "psf");
 		org.junit.jupiter.api.Assertions.assertArrayEquals(core.data(), got.data(), 1e-9f);
 		assertEquals(1.0, got.sum(), 1e-5, "unit sum");
-		final var p = Provenance.of(psf).orElseThrow();
+		final var p = ImageProvenance.of(psf).orElseThrow();
 		assertEquals(KEYS.subList(0, KEYS.size() - 1), List.copyOf(p.options().keySet()), "every key but the unchecked flag");
 		assertEquals(Fwhm.lateral(core), ((Number) p.run().get("fwhm_x_um")).doubleValue(), 1e-12);
 	}
@@ -62,7 +62,7 @@ class PsfFromOpticsCommandTest {
 	@Test
 	void theRecordKeepsWhatWasEnteredAndSaysWhichFieldsTheModalityIgnored() {
 		final ImageJHarness.Result r = ImageJHarness.run(null, CMD, OPTIONS);
-		final var p = Provenance.of(r.onlyCreated()).orElseThrow();
+		final var p = ImageProvenance.of(r.onlyCreated()).orElseThrow();
 		assertEquals("0.488", p.options().get("excitation"));
 		assertEquals("2", p.options().get("sheet_thickness"));
 		assertEquals("1", p.options().get("pinhole"), "accepted and recorded as given");
@@ -75,17 +75,17 @@ class PsfFromOpticsCommandTest {
 		assertEquals(1, said.size(), r.log()::toString);
 		assertTrue(said.get(0).contains("pinhole (widefield modality has no pinhole)"), said.get(0));
 		// the record read back from the image's Info (JSON) keeps the entry
-		assertEquals("widefield modality has no pinhole", ((Map<?, ?>) Provenance.of(r.onlyCreated()).orElseThrow().run().get("ignored")).get("pinhole"));
+		assertEquals("widefield modality has no pinhole", ((Map<?, ?>) ImageProvenance.of(r.onlyCreated()).orElseThrow().run().get("ignored")).get("pinhole"));
 	}
 
 	@Test
 	void fieldsTheModalityUsesAreNotListedIgnored() {
 		final String confocal = OPTIONS.replace("model=born-wolf", "model=gibson-lanni").replace("modality=widefield", "modality=confocal");
-		final var p = Provenance.of(ImageJHarness.run(null, CMD, confocal).onlyCreated()).orElseThrow();
+		final var p = ImageProvenance.of(ImageJHarness.run(null, CMD, confocal).onlyCreated()).orElseThrow();
 		final Map<?, ?> ignored = (Map<?, ?>) p.run().get("ignored");
 		assertEquals(List.of("sheet_thickness"), List.copyOf(ignored.keySet()), "gibson-lanni confocal uses every field but the sheet");
 		final String sheet = OPTIONS.replace("model=born-wolf", "model=gibson-lanni").replace("modality=widefield", "modality=light-sheet");
-		final var q = Provenance.of(ImageJHarness.run(null, CMD, sheet).onlyCreated()).orElseThrow();
+		final var q = ImageProvenance.of(ImageJHarness.run(null, CMD, sheet).onlyCreated()).orElseThrow();
 		assertEquals(List.of("excitation", "pinhole"), List.copyOf(((Map<?, ?>) q.run().get("ignored")).keySet()));
 	}
 
@@ -94,7 +94,7 @@ class PsfFromOpticsCommandTest {
 		final String coarse = OPTIONS.replace("voxel_xy=0.08", "voxel_xy=0.2");
 		final ImageJHarness.Result r = ImageJHarness.run(null, CMD, coarse);
 		assertTrue(String.join("\n", r.log()).contains("lateral step 0.2 µm is coarser than Nyquist"), () -> String.join("\n", r.log()));
-		assertTrue(Provenance.of(r.onlyCreated()).orElseThrow().warnings().get(0).startsWith("Undersampled"));
+		assertTrue(ImageProvenance.of(r.onlyCreated()).orElseThrow().warnings().get(0).startsWith("Undersampled"));
 	}
 
 	@Test
@@ -137,7 +137,7 @@ class PsfFromOpticsCommandTest {
 		final ImagePlus recorded = rec.result().created().stream().filter(i -> i.getTitle().startsWith("psf-")).findFirst().orElseThrow();
 		assertEquals(2, rec.result().created().size(), "the PSF and its profile plot");
 		assertEquals(List.copyOf(org.parfocal.provenance.MacroOptions.parse(opts).keySet()),
-				List.copyOf(Provenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
+				List.copyOf(ImageProvenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
 		ImageJHarness.assertSamePixels(recorded, ImageJHarness.replayInHeadlessJvm(rec.line()), 0);
 	}
 
@@ -177,7 +177,7 @@ class PsfFromOpticsCommandTest {
 		assertTrue(greyed.get("born-wolf widefield, box given").containsAll(List.of("sample_index", "depth")), greyed.toString());
 		final String opts = ImageJHarness.parseRunLine(rec.line())[1];
 		assertTrue(opts.contains("pinhole=1") && opts.contains("excitation="), "greyed fields are still recorded: " + rec.line());
-		final Map<?, ?> ignored = (Map<?, ?>) Provenance.of(rec.result().created().stream().filter(i -> i.getTitle().startsWith("psf-")).findFirst().orElseThrow())
+		final Map<?, ?> ignored = (Map<?, ?>) ImageProvenance.of(rec.result().created().stream().filter(i -> i.getTitle().startsWith("psf-")).findFirst().orElseThrow())
 				.orElseThrow().run().get("ignored");
 		assertEquals(greyed.get("born-wolf widefield, box given"), List.copyOf(ignored.keySet()), "the dialog greys what the record lists");
 	}
