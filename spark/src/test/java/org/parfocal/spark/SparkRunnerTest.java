@@ -249,6 +249,11 @@ class SparkRunnerTest {
 			assertEquals(2, SparkRunner.runMain(new String[] { "stacks", "psf=from_optics" }));
 			assertEquals(2, SparkRunner.runMain(new String[] { "sideways", "a", "b", "c" }));
 			buf.reset();
+			// the one parser of the block runners (org.parfocal.cli.RunArgs): BlockRunner prints this same line (RunArgsTest)
+			assertEquals(2, SparkRunner.runMain(new String[] { "blocks", "r", "a.tif", "b.tif", "--blok", "8" }));
+			assertEquals("Error: unknown option --blok (the options are --budget MB, --block X,Y,Z, --psf FILE[,FILE per channel], --threads N)",
+					buf.toString().strip());
+			buf.reset();
 			write(psf(5, 3, 1, 1), dir.resolve("psf.tif"));
 			assertEquals(1, SparkRunner.runMain(new String[] { "stacks", recipe(dir.resolve("psf.tif"), 2), dir.resolve("missing").toString(),
 					dir.resolve("out").toString() }));
