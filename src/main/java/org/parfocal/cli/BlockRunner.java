@@ -17,6 +17,7 @@ import org.parfocal.blocks.BlockPlan;
 import org.parfocal.blocks.Recipe;
 import org.parfocal.conv.Psfs;
 import org.parfocal.core.Monitor;
+import org.parfocal.core.SixteenBit;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 import org.parfocal.ij1.ImageBridge;
@@ -121,8 +122,8 @@ public final class BlockRunner {
 			final Volume psf = loadPsf(recipe, source.voxelSize(), source.shape()[2]);
 			final BlockPlan plan = tile != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), tile)
 					: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), budget > 0 ? budget : BlockPlan.heapBudget());
-			final Provenance.Builder prov = provenance(recipe, input, source.shape(), psf, plan, "BlockRunner", Parallelization.getTaskExecutor().getParallelism());
-			final TiffBlockSink sink = new TiffBlockSink(output, source.shape(), source.voxelSize(), prov.build().toInfoText());
+			final TiffBlockSink sink = sink(output, source.shape(), source.voxelSize(), recipe,
+					provenance(recipe, input, source.shape(), psf, plan, "BlockRunner", Parallelization.getTaskExecutor().getParallelism()));
 			final BlockDeconvolution.Result r = BlockDeconvolution.run(source, psf, recipe.options(), plan, sink, monitor);
 			return new Outcome(plan, r, sink.output());
 		}
@@ -139,6 +140,24 @@ public final class BlockRunner {
 				psf.nx() + "x" + psf.ny() + "x" + psf.nz(), null));
 		return prov.versions(BlockRunner.class.getPackage().getImplementationVersion(), IJ.getVersion(), System.getProperty("java.version"))
 				.timing(0, threads, Instant.now().toString());
+	}
+
+	/**
+	 * The TIFF output of a block-wise run, 32-bit, or 16-bit for {@code output=16-bit}: then its Info is
+	 * {@link #sixteenBitInfo}, with the scaling decided at commit for the whole volume.
+	 */
+	public static TiffBlockSink sink(final Path output, final int[] shape, final VoxelSize voxelSize, final Recipe recipe, final Provenance.Builder prov) {
+		final TiffBlockSink sink = new TiffBlockSink(output, shape, voxelSize, prov.build().toInfoText());
+		return recipe.sixteenBit() ? sink.sixteenBit(s -> sixteenBitInfo(prov, s)) : sink;
+	}
+
+	/**
+	 * The Info of a 16-bit output as the menu command writes it: the scaling line, then the record with
+	 * {@code output_depth}, {@code output_offset} and {@code output_scale} in its run facts.
+	 */
+	public static String sixteenBitInfo(final Provenance.Builder prov, final SixteenBit.Scaling s) {
+		prov.run("output_depth", SixteenBit.KEY).run("output_offset", s.offset()).run("output_scale", s.scale());
+		return s.infoLine() + "\n" + prov.build().toInfoText();
 	}
 
 	/** Recipe from a file (options text or provenance JSON) or from the argument itself. */

@@ -41,6 +41,17 @@ public final class ZarrBlockRunner {
 		return OmeZarr.isZarr(input) || OmeZarr.isZarr(output);
 	}
 
+	/**
+	 * Refuses {@code output=16-bit} for an OME-Zarr output, in one line: OME-Zarr (NGFF 0.4) has no field for a
+	 * value scale and offset that its readers apply, so stored 16-bit values would be read as the result's values.
+	 * A TIFF output holds them (ImageJ's calibration function, {@link BlockRunner#sink}).
+	 */
+	public static void requireStorable(final Recipe recipe, final Path output) {
+		if (recipe.sixteenBit() && OmeZarr.isZarr(output))
+			throw new IllegalArgumentException("output=16-bit cannot be written to an OME-Zarr output (it has no place for the scale and offset its readers"
+					+ " apply): use output=32-bit, or a .tif output");
+	}
+
 	/** What an input holds: frames, channels, {nx, ny, nz}, voxel size, chunk shape {x, y, z} for the output. */
 	public record Layout(int frames, int channels, int[] shape, VoxelSize voxelSize, int[] chunk) {}
 
@@ -118,7 +129,7 @@ public final class ZarrBlockRunner {
 	}
 
 	/** The provenance record of a Zarr run (as the TIFF runs record it, with the plan of each channel). */
-	public static Provenance provenance(final Recipe recipe, final List<String> psfFiles, final Path input, final Layout l, final List<BlockPlan> plans,
+	public static Provenance.Builder provenance(final Recipe recipe, final List<String> psfFiles, final Path input, final Layout l, final List<BlockPlan> plans,
 			final String runner, final int threads) {
 		final Provenance.Builder prov = Provenance.of("Deconvolve", recipe.text())
 				.input(new Provenance.Input("image", input.getFileName().toString(), input.toAbsolutePath().toString(), null,
@@ -135,7 +146,7 @@ public final class ZarrBlockRunner {
 		}
 		return prov.run("runner", runner).run("frames", l.frames()).run("channels", l.channels())
 				.versions(BlockRunner.class.getPackage().getImplementationVersion(), IJ.getVersion(), System.getProperty("java.version"))
-				.timing(0, threads, Instant.now().toString()).build();
+				.timing(0, threads, Instant.now().toString());
 	}
 
 	/**
@@ -145,6 +156,7 @@ public final class ZarrBlockRunner {
 	public static BlockRunner.Outcome run(final Recipe recipe, final List<String> psfFiles, final Path input, final Path output, final long budget,
 			final int[] tile, final Monitor monitor) throws IOException {
 		if (psfFiles == null || psfFiles.isEmpty()) recipe.requirePsf();
+		requireStorable(recipe, output);
 		if (input.toAbsolutePath().normalize().equals(output.toAbsolutePath().normalize()))
 			throw new IllegalArgumentException("The output must differ from the input (inputs are never written)");
 		final Layout in = layout(input);
@@ -153,13 +165,14 @@ public final class ZarrBlockRunner {
 		final Layout l = pl.output();
 		final List<BlockPlan> plans = pl.plans();
 		final int threads = Parallelization.getTaskExecutor().getParallelism();
-		final String prov = provenance(recipe, psfFiles, input, l, plans, "BlockRunner", threads).toJson();
+		final String prov = provenance(recipe, psfFiles, input, l, plans, "BlockRunner", threads).build().toJson();
 		if (!OmeZarr.isZarr(output)) {
 			if (l.frames() * l.channels() != 1)
 				throw new IllegalArgumentException(input.getFileName() + " has " + l.frames() + " frame(s) and " + l.channels()
 						+ " channel(s): write them to a .zarr output (a TIFF output takes one frame and channel)");
 			try (BlockSource s = openSource(input, 0, 0)) {
-				final TiffBlockSink sink = new TiffBlockSink(output, l.shape(), l.voxelSize(), Provenance.fromJson(prov).toInfoText());
+				final TiffBlockSink sink = BlockRunner.sink(output, l.shape(), l.voxelSize(), recipe,
+						provenance(recipe, psfFiles, input, l, plans, "BlockRunner", threads));
 				final BlockDeconvolution.Result r = BlockDeconvolution.run(s, psf.get(0), recipe.options(), plans.get(0), sink, monitor);
 				return new BlockRunner.Outcome(plans.get(0), r, output);
 			}

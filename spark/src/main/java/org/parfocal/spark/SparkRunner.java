@@ -40,7 +40,6 @@ import org.parfocal.cli.TiffBlockSource;
 import org.parfocal.core.Monitor;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
-import org.parfocal.provenance.Provenance;
 import org.parfocal.cli.ZarrBlockRunner;
 import org.parfocal.zarr.OmeZarr;
 import org.parfocal.zarr.ZarrBlockSink;
@@ -256,8 +255,8 @@ public final class SparkRunner {
 					final Volume psf = BlockRunner.loadPsf(recipe, source.voxelSize(), source.shape()[2]);
 					final BlockPlan p = s.tile() != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), s.tile())
 							: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), taskBudget(s));
-					final TiffBlockSink sink = new TiffBlockSink(tmp, source.shape(), source.voxelSize(),
-							provenance(recipe, in, source.shape(), psf, p, "SparkRunner stacks", s.threads()).toInfoText());
+					final TiffBlockSink sink = BlockRunner.sink(tmp, source.shape(), source.voxelSize(), recipe,
+							BlockRunner.provenance(recipe, in, source.shape(), psf, p, "SparkRunner stacks", s.threads()));
 					final BlockDeconvolution.Result r = BlockDeconvolution.run(source, psf, recipe.options(), p, sink, Monitor.NONE);
 					plan[0] = p.toString();
 					it[0] = r.maxIterations();
@@ -345,8 +344,8 @@ public final class SparkRunner {
 			final BlockPlan plan = s.tile() != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), s.tile())
 					: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), driverBudget(sc, s));
 			final BlockDeconvolution.Levels levels = BlockDeconvolution.levels(source, recipe.options(), Monitor.NONE);
-			final TiffBlockSink sink = new TiffBlockSink(out, source.shape(), source.voxelSize(),
-					provenance(recipe, in, source.shape(), psf, plan, "SparkRunner blocks", s.threads()).toInfoText());
+			final TiffBlockSink sink = BlockRunner.sink(out, source.shape(), source.voxelSize(), recipe,
+					BlockRunner.provenance(recipe, in, source.shape(), psf, plan, "SparkRunner blocks", s.threads()));
 			final Path parts = out.resolveSibling("." + out.getFileName() + ".parts-" + sc.sc().applicationId() + "-" + System.nanoTime());
 			try {
 				Files.createDirectory(parts);
@@ -454,6 +453,7 @@ public final class SparkRunner {
 		if (in.equals(out)) throw new IllegalArgumentException("The output must differ from the input (inputs are never written)");
 		if (!OmeZarr.isZarr(out))
 			throw new IllegalArgumentException("A Zarr input is written to a .zarr output in Spark blocks mode: name the output *.zarr");
+		ZarrBlockRunner.requireStorable(recipe, out);
 		if (Files.exists(out)) throw new IllegalArgumentException("Output " + output + " exists: choose a new name (outputs are never replaced)");
 		final TaskSettings s = resolved(sc, settings);
 		final ZarrBlockRunner.Layout li = ZarrBlockRunner.layout(in);
@@ -469,7 +469,7 @@ public final class SparkRunner {
 					levels.add(BlockDeconvolution.levels(src, recipe.options(), Monitor.NONE));
 				}
 		TASK_NANOS.addAndGet(4, System.nanoTime() - lv);
-		final String prov = ZarrBlockRunner.provenance(recipe, psfFiles, in, l, plans, "SparkRunner blocks", s.threads()).toJson();
+		final String prov = ZarrBlockRunner.provenance(recipe, psfFiles, in, l, plans, "SparkRunner blocks", s.threads()).build().toJson();
 		final OmeZarr.Writer w = OmeZarr.create(out, l.frames(), l.channels(), l.shape(), l.chunk(), l.voxelSize());
 		final Path fragments = w.hidden().resolveSibling(w.hidden().getFileName() + ".fragments");
 		final List<PsfData> psfData = new ArrayList<>();
@@ -704,11 +704,6 @@ public final class SparkRunner {
 		return Math.max(1, (heap - (300L << 20)) / 2 / s.heapShare());
 	}
 
-	static Provenance provenance(final Recipe recipe, final Path input, final int[] shape, final Volume psf, final BlockPlan plan, final String runner,
-			final int threads) {
-		return BlockRunner.provenance(recipe, input, shape, psf, plan, runner, threads).build();
-	}
-
 	/** Moves a complete file to its final name, never replacing a file there. */
 	static void publish(final Path tmp, final Path out) throws IOException {
 		try {
@@ -826,6 +821,7 @@ public final class SparkRunner {
 			if (pos.get(0).equals("stacks")) inputs = stacksIn(Path.of(pos.get(2)));
 			else {
 				inputs = List.of(Path.of(pos.get(2)));
+				ZarrBlockRunner.requireStorable(recipe, Path.of(pos.get(3)));
 				if (Files.exists(Path.of(pos.get(3))))
 					throw new IllegalArgumentException("Output " + pos.get(3) + " exists: choose a new name (outputs are never replaced)");
 			}

@@ -1,0 +1,121 @@
+package org.parfocal.blocks;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.io.ByteArrayOutputStream;
+import java.io.PrintStream;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.List;
+import java.util.stream.Stream;
+
+import ij.IJ;
+import ij.ImagePlus;
+import ij.measure.Calibration;
+
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import org.parfocal.cli.BlockRunner;
+import org.parfocal.core.Monitor;
+import org.parfocal.core.SixteenBit;
+import org.parfocal.core.Volume;
+import org.parfocal.provenance.Provenance;
+
+/**
+ * {@code output=16-bit} in the block-wise runs (issue 17, item 9): the TIFF output is 16-bit, with one scale and
+ * offset for the whole volume (decided when every block is in), recorded in the provenance, the Info and ImageJ's
+ * calibration function, and mapping back to the 32-bit result of the same run within half a step (uniform
+ * quantisation: |value − (offset + scale · round((value − offset) / scale))| ≤ scale / 2). An OME-Zarr output
+ * refuses it in one line.
+ */
+class SixteenBitBlocksTest {
+
+	@TempDir
+	Path dir;
+
+	static final Volume PSF = BlockScenes.psf(7, 5, 1.2, 1.0);
+
+	@Test
+	void blockRunnerWrites16BitWithOneRecordedScaleThatMapsBackWithinHalfAStep() throws Exception {
+		final Volume rec = BlockScenes.recording(7, 48, 44, 20, PSF);
+		BlockRunnerFilesTest.write(rec, dir.resolve("in.tif"));
+		BlockRunnerFilesTest.write(PSF, dir.resolve("psf.tif"));
+		final String recipe = "psf=" + dir.resolve("psf.tif") + " method=richardson-lucy iterations=6 stop=fixed offset=auto background=auto";
+		final int[] tile = { 20, 20, 10 };
+		final BlockRunner.Outcome f = BlockRunner.run(Recipe.parse(recipe), dir.resolve("in.tif"), dir.resolve("f.tif"), 0, tile, Monitor.NONE);
+		final BlockRunner.Outcome s = BlockRunner.run(Recipe.parse(recipe + " output=16-bit"), dir.resolve("in.tif"), dir.resolve("s.tif"), 0, tile,
+				Monitor.NONE);
+		assertTrue(s.plan().count() > 1, "several blocks: " + s.plan());
+		final ImagePlus a = IJ.openImage(f.output().toString()), b = IJ.openImage(s.output().toString());
+		assertEquals(ImagePlus.GRAY32, a.getType());
+		assertEquals(ImagePlus.GRAY16, b.getType());
+		final Provenance p = Provenance.findIn((String) b.getProperty("Info")).orElseThrow();
+		assertEquals("16-bit", p.options().get("output"));
+		assertEquals("16-bit", p.run().get("output_depth"));
+		final double offset = ((Number) p.run().get("output_offset")).doubleValue(), scale = ((Number) p.run().get("output_scale")).doubleValue();
+		assertTrue(((String) b.getProperty("Info")).contains(new SixteenBit.Scaling(offset, scale).infoLine()));
+		final Calibration cal = b.getCalibration();
+		assertEquals(Calibration.STRAIGHT_LINE, cal.getFunction(), "ImageJ reads the calibration function back from the TIFF");
+		double worst = 0, min = Double.MAX_VALUE, max = -Double.MAX_VALUE;
+		int lo = Integer.MAX_VALUE, hi = 0;
+		for (int z = 1; z <= a.getStackSize(); z++) {
+			final float[] v = (float[]) a.getStack().getPixels(z);
+			final short[] q = (short[]) b.getStack().getPixels(z);
+			for (int i = 0; i < v.length; i++) {
+				final int stored = q[i] & 0xffff;
+				final double back = offset + scale * stored;
+				worst = Math.max(worst, Math.abs(back - v[i]) / scale);
+				assertEquals(back, cal.getCValue(stored), 1e-9 * Math.abs(back) + 1e-12, "ImageJ shows the real value");
+				lo = Math.min(lo, stored);
+				hi = Math.max(hi, stored);
+				min = Math.min(min, v[i]);
+				max = Math.max(max, v[i]);
+			}
+		}
+		System.out.printf("blocks 16-bit: %d blocks, scale %.6g, offset %.6g, largest error %.6f step(s)%n", s.plan().count(), scale, offset, worst);
+		assertTrue(worst <= 0.5 + 1e-6, "within half a step: " + worst);
+		// one scaling for the whole volume, from its own extremes (not per block): the range fills 0 … 65535
+		assertEquals(0, lo);
+		assertEquals(SixteenBit.MAX_STORED, hi);
+		assertEquals(min, offset, 1e-6 * Math.abs(max));
+		assertEquals((max - min) / SixteenBit.MAX_STORED, scale, 1e-6 * scale);
+	}
+
+	@Test
+	void anOmeZarrOutputRefuses16BitInOneLineAndWritesNothing() throws Exception {
+		final Volume rec = BlockScenes.recording(8, 24, 20, 8, PSF);
+		BlockRunnerFilesTest.write(rec, dir.resolve("in.tif"));
+		BlockRunnerFilesTest.write(PSF, dir.resolve("psf.tif"));
+		final String recipe = "psf=" + dir.resolve("psf.tif") + " method=richardson-lucy iterations=2 stop=fixed output=16-bit";
+		final PrintStream err = System.err;
+		final ByteArrayOutputStream buf = new ByteArrayOutputStream();
+		System.setErr(new PrintStream(buf, true));
+		final int code;
+		try {
+			final var m = BlockRunner.class.getDeclaredMethod("runMain", String[].class);
+			m.setAccessible(true);
+			code = (int) m.invoke(null, (Object) new String[] { recipe, dir.resolve("in.tif").toString(), dir.resolve("out.zarr").toString() });
+		} finally {
+			System.setErr(err);
+		}
+		assertEquals(1, code);
+		assertTrue(buf.toString().startsWith("Error: output=16-bit cannot be written to an OME-Zarr output"), buf.toString());
+		assertEquals(1, buf.toString().strip().lines().count());
+		try (Stream<Path> s = Files.list(dir)) {
+			assertEquals(List.of("in.tif", "psf.tif"), s.map(p -> p.getFileName().toString()).sorted().toList());
+		}
+	}
+
+	@Test
+	void theRecipeReadsOutputAsTheMenuCommandDoes() {
+		assertFalse(Recipe.parse("psf=from_optics voxel_xy=0.1 voxel_z=0.2").sixteenBit(), "no key: 32-bit, as lines recorded before the key");
+		assertFalse(Recipe.parse("psf=a/b.tif output=32-bit").sixteenBit());
+		assertTrue(Recipe.parse("psf=a/b.tif output=16-bit").sixteenBit());
+		assertTrue(Recipe.parse("psf=a/b.tif output=16-bit").withPsfFile("c.tif").sixteenBit());
+		assertEquals("Unknown output depth '8-bit': use 32-bit or 16-bit (output=)",
+				assertThrows(IllegalArgumentException.class, () -> Recipe.parse("psf=a/b.tif output=8-bit")).getMessage());
+	}
+}
