@@ -12,6 +12,7 @@ import org.parfocal.deconv.DeconvolutionOptions;
 import org.parfocal.deconv.EdgeMode;
 import org.parfocal.deconv.Level;
 import org.parfocal.deconv.Stopping;
+import org.parfocal.provenance.CommandKeys;
 import org.parfocal.provenance.MacroOptions;
 import org.parfocal.provenance.Provenance;
 import org.parfocal.psf.Modality;
@@ -29,8 +30,9 @@ import org.parfocal.psf.PsfModels;
  * immersion_index immersion_index_design sample_index coverslip_index coverslip_index_design
  * coverslip_thickness coverslip_thickness_design working_distance depth emission excitation pinhole
  * sheet_thickness voxel_xy voxel_z size_xy size_z}; {@code output} (32-bit or 16-bit). Missing keys take the dialog's first-use defaults (without
- * {@code method}, {@code iterations} and {@code stop}: the default run, {@link org.parfocal.deconv.DefaultRun}). Other
- * keys ({@code image plot}) are ignored. Immutable. Not serialisable (the option records it holds are not):
+ * {@code method}, {@code iterations} and {@code stop}: the default run, {@link org.parfocal.deconv.DefaultRun}). The
+ * other keys of {@code Deconvolve...} ({@code image plot watch recentre}, the watch keys) are ignored; a key it
+ * does not have is refused in one line naming the closest ({@link CommandKeys#requireKnown}), in every runner. Immutable. Not serialisable (the option records it holds are not):
  * it travels to cluster tasks as its options text, from which {@link #parse} makes it again.
  *
  * @param options the deconvolution options
@@ -95,6 +97,8 @@ public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf opt
 	 * @param psfFromRecord the PSF file recorded with the options, used when {@code psf=} is not itself a file
 	 */
 	public static Recipe fromOptions(final Map<String, String> o, final String psfFromRecord) {
+		// the keys of Deconvolve... (a typo is refused as in a macro, not run with the default)
+		for (final String key : o.keySet()) CommandKeys.requireKnown(CommandKeys.DECONVOLVE, key);
 		final DeconvolutionMethod method = DeconvolutionMethod.parse(get(o, "method", org.parfocal.deconv.DefaultRun.METHOD.key()));
 		final int iterations = (int) whole(o, "iterations", org.parfocal.deconv.DefaultRun.CAP);
 		final double regularization = number(o, "regularization", 0.002);

@@ -290,6 +290,10 @@ class SparkRunnerTest {
 			assertEquals("Error: unknown option --blok (the options are --budget MB, --block X,Y,Z, --psf FILE[,FILE per channel], --threads N)",
 					buf.toString().strip());
 			buf.reset();
+			// a recipe key Deconvolve... does not have: the line BlockRunner prints (BlockRunnerMessagesTest)
+			assertEquals(1, SparkRunner.runMain(new String[] { "blocks", "psf=/a/p.tif iteration=2", "a.tif", "b.tif" }));
+			assertEquals("Error: Unknown key 'iteration' — did you mean 'iterations'?", buf.toString().strip());
+			buf.reset();
 			write(psf(5, 3, 1, 1), dir.resolve("psf.tif"));
 			assertEquals(1, SparkRunner.runMain(new String[] { "stacks", recipe(dir.resolve("psf.tif"), 2), dir.resolve("missing").toString(),
 					dir.resolve("out").toString() }));
