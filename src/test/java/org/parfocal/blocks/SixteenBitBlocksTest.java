@@ -38,12 +38,16 @@ class SixteenBitBlocksTest {
 
 	static final Volume PSF = BlockScenes.psf(7, 5, 1.2, 1.0);
 
+	/** Writes in.tif (a recording of the given seed and size) and psf.tif; returns an RL recipe with {@code rest}. */
+	private String recipe(final long seed, final int[] size, final String rest) throws Exception {
+		BlockRunnerFilesTest.write(BlockScenes.recording(seed, size[0], size[1], size[2], PSF), dir.resolve("in.tif"));
+		BlockRunnerFilesTest.write(PSF, dir.resolve("psf.tif"));
+		return "psf=" + dir.resolve("psf.tif") + " method=richardson-lucy " + rest;
+	}
+
 	@Test
 	void blockRunnerWrites16BitWithOneRecordedScaleThatMapsBackWithinHalfAStep() throws Exception {
-		final Volume rec = BlockScenes.recording(7, 48, 44, 20, PSF);
-		BlockRunnerFilesTest.write(rec, dir.resolve("in.tif"));
-		BlockRunnerFilesTest.write(PSF, dir.resolve("psf.tif"));
-		final String recipe = "psf=" + dir.resolve("psf.tif") + " method=richardson-lucy iterations=6 stop=fixed offset=auto background=auto";
+		final String recipe = recipe(7, new int[] { 48, 44, 20 }, "iterations=6 stop=fixed offset=auto background=auto");
 		final int[] tile = { 20, 20, 10 };
 		final BlockRunner.Outcome f = BlockRunner.run(Recipe.parse(recipe), dir.resolve("in.tif"), dir.resolve("f.tif"), 0, tile, Monitor.NONE);
 		final BlockRunner.Outcome s = BlockRunner.run(Recipe.parse(recipe + " output=16-bit"), dir.resolve("in.tif"), dir.resolve("s.tif"), 0, tile,
@@ -86,10 +90,7 @@ class SixteenBitBlocksTest {
 
 	@Test
 	void anOmeZarrOutputRefuses16BitInOneLineAndWritesNothing() throws Exception {
-		final Volume rec = BlockScenes.recording(8, 24, 20, 8, PSF);
-		BlockRunnerFilesTest.write(rec, dir.resolve("in.tif"));
-		BlockRunnerFilesTest.write(PSF, dir.resolve("psf.tif"));
-		final String recipe = "psf=" + dir.resolve("psf.tif") + " method=richardson-lucy iterations=2 stop=fixed output=16-bit";
+		final String recipe = recipe(8, new int[] { 24, 20, 8 }, "iterations=2 stop=fixed output=16-bit");
 		final PrintStream err = System.err;
 		final ByteArrayOutputStream buf = new ByteArrayOutputStream();
 		System.setErr(new PrintStream(buf, true));
