@@ -156,8 +156,12 @@ public final class BlockRunner {
 	 * {@code output_depth}, {@code output_offset} and {@code output_scale} in its run facts.
 	 */
 	public static String sixteenBitInfo(final Provenance.Builder prov, final SixteenBit.Scaling s) {
-		prov.run("output_depth", SixteenBit.KEY).run("output_offset", s.offset()).run("output_scale", s.scale());
-		return s.infoLine() + "\n" + prov.build().toInfoText();
+		return s.infoLine() + "\n" + sixteenBitRecord(prov, s).build().toInfoText();
+	}
+
+	/** {@code prov} with the 16-bit run facts the menu command records: {@code output_depth output_offset output_scale}. */
+	public static Provenance.Builder sixteenBitRecord(final Provenance.Builder prov, final SixteenBit.Scaling s) {
+		return prov.run("output_depth", SixteenBit.KEY).run("output_offset", s.offset()).run("output_scale", s.scale());
 	}
 
 	/** Recipe from a file (options text or provenance JSON) or from the argument itself. */

@@ -42,14 +42,13 @@ public final class ZarrBlockRunner {
 	}
 
 	/**
-	 * Refuses {@code output=16-bit} for an OME-Zarr output, in one line: OME-Zarr (NGFF 0.4) has no field for a
-	 * value scale and offset that its readers apply, so stored 16-bit values would be read as the result's values.
-	 * A TIFF output holds them (ImageJ's calibration function, {@link BlockRunner#sink}).
+	 * Completes an OME-Zarr output with its record: 32-bit as written, or for {@code output=16-bit} converted to
+	 * uint16 with one scaling for the whole image, recorded ({@link OmeZarr.Writer#completeSixteenBit}).
 	 */
-	public static void requireStorable(final Recipe recipe, final Path output) {
-		if (recipe.sixteenBit() && OmeZarr.isZarr(output))
-			throw new IllegalArgumentException("output=16-bit cannot be written to an OME-Zarr output (it has no place for the scale and offset its readers"
-					+ " apply): use output=32-bit, or a .tif output");
+	public static void complete(final OmeZarr.Writer w, final VoxelSize voxelSize, final Recipe recipe, final Provenance.Builder record)
+			throws IOException {
+		if (recipe.sixteenBit()) w.completeSixteenBit(voxelSize, s -> BlockRunner.sixteenBitRecord(record, s).build().toJson());
+		else w.complete(voxelSize, record.build().toJson());
 	}
 
 	/** What an input holds: frames, channels, {nx, ny, nz}, voxel size, chunk shape {x, y, z} for the output. */
@@ -156,7 +155,6 @@ public final class ZarrBlockRunner {
 	public static BlockRunner.Outcome run(final Recipe recipe, final List<String> psfFiles, final Path input, final Path output, final long budget,
 			final int[] tile, final Monitor monitor) throws IOException {
 		if (psfFiles == null || psfFiles.isEmpty()) recipe.requirePsf();
-		requireStorable(recipe, output);
 		if (input.toAbsolutePath().normalize().equals(output.toAbsolutePath().normalize()))
 			throw new IllegalArgumentException("The output must differ from the input (inputs are never written)");
 		final Layout in = layout(input);
@@ -165,14 +163,13 @@ public final class ZarrBlockRunner {
 		final Layout l = pl.output();
 		final List<BlockPlan> plans = pl.plans();
 		final int threads = Parallelization.getTaskExecutor().getParallelism();
-		final String prov = provenance(recipe, psfFiles, input, l, plans, "BlockRunner", threads).build().toJson();
+		final Provenance.Builder record = provenance(recipe, psfFiles, input, l, plans, "BlockRunner", threads);
 		if (!OmeZarr.isZarr(output)) {
 			if (l.frames() * l.channels() != 1)
 				throw new IllegalArgumentException(input.getFileName() + " has " + l.frames() + " frame(s) and " + l.channels()
 						+ " channel(s): write them to a .zarr output (a TIFF output takes one frame and channel)");
 			try (BlockSource s = openSource(input, 0, 0)) {
-				final TiffBlockSink sink = BlockRunner.sink(output, l.shape(), l.voxelSize(), recipe,
-						provenance(recipe, psfFiles, input, l, plans, "BlockRunner", threads));
+				final TiffBlockSink sink = BlockRunner.sink(output, l.shape(), l.voxelSize(), recipe, record);
 				final BlockDeconvolution.Result r = BlockDeconvolution.run(s, psf.get(0), recipe.options(), plans.get(0), sink, monitor);
 				return new BlockRunner.Outcome(plans.get(0), r, output);
 			}
@@ -187,7 +184,7 @@ public final class ZarrBlockRunner {
 						final ZarrBlockSink sink = new ZarrBlockSink(w, t, c, plans.get(c), fragments);
 						last = BlockDeconvolution.run(s, psf.get(c), recipe.options(), plans.get(c), sink, monitor);
 					}
-			w.complete(l.voxelSize(), prov);
+			complete(w, l.voxelSize(), recipe, record);
 			return new BlockRunner.Outcome(plans.get(0), last, output);
 		} catch (final IOException | RuntimeException | Error e) {
 			w.abort();

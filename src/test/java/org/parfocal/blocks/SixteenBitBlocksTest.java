@@ -5,12 +5,8 @@ import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import java.io.ByteArrayOutputStream;
-import java.io.PrintStream;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.util.List;
-import java.util.stream.Stream;
 
 import ij.IJ;
 import ij.ImagePlus;
@@ -23,13 +19,15 @@ import org.parfocal.core.Monitor;
 import org.parfocal.core.SixteenBit;
 import org.parfocal.core.Volume;
 import org.parfocal.provenance.Provenance;
+import org.parfocal.zarr.OmeZarr;
+import org.parfocal.zarr.ZarrArray;
 
 /**
  * {@code output=16-bit} in the block-wise runs (issue 17, item 9): the TIFF output is 16-bit, with one scale and
  * offset for the whole volume (decided when every block is in), recorded in the provenance, the Info and ImageJ's
  * calibration function, and mapping back to the 32-bit result of the same run within half a step (uniform
- * quantisation: |value − (offset + scale · round((value − offset) / scale))| ≤ scale / 2). An OME-Zarr output
- * refuses it in one line.
+ * quantisation: |value − (offset + scale · round((value − offset) / scale))| ≤ scale / 2). An OME-Zarr output is
+ * uint16 with the scaling in the record and in the array's CF attributes.
  */
 class SixteenBitBlocksTest {
 
@@ -89,25 +87,35 @@ class SixteenBitBlocksTest {
 	}
 
 	@Test
-	void anOmeZarrOutputRefuses16BitInOneLineAndWritesNothing() throws Exception {
-		final String recipe = recipe(8, new int[] { 24, 20, 8 }, "iterations=2 stop=fixed output=16-bit");
-		final PrintStream err = System.err;
-		final ByteArrayOutputStream buf = new ByteArrayOutputStream();
-		System.setErr(new PrintStream(buf, true));
-		final int code;
-		try {
-			final var m = BlockRunner.class.getDeclaredMethod("runMain", String[].class);
-			m.setAccessible(true);
-			code = (int) m.invoke(null, (Object) new String[] { recipe, dir.resolve("in.tif").toString(), dir.resolve("out.zarr").toString() });
-		} finally {
-			System.setErr(err);
+	void anOmeZarrOutputIsUint16WithOneRecordedScaleThatMapsBackWithinHalfAStep() throws Exception {
+		final String recipe = recipe(8, new int[] { 40, 36, 12 }, "iterations=3 stop=fixed offset=auto background=auto");
+		final int[] tile = { 20, 20, 0 };
+		BlockRunner.run(Recipe.parse(recipe), dir.resolve("in.tif"), dir.resolve("f.zarr"), 0, tile, Monitor.NONE);
+		final BlockRunner.Outcome o = BlockRunner.run(Recipe.parse(recipe + " output=16-bit"), dir.resolve("in.tif"), dir.resolve("s.zarr"), 0, tile,
+				Monitor.NONE);
+		assertTrue(o.plan().count() > 1, o.plan().toString());
+		final OmeZarr f = OmeZarr.open(dir.resolve("f.zarr")), s = OmeZarr.open(dir.resolve("s.zarr"));
+		assertEquals(ZarrArray.UINT16, s.array().dtype());
+		final Provenance p = Provenance.fromJson(s.provenanceJson());
+		assertEquals("16-bit", p.run().get("output_depth"));
+		final double offset = ((Number) p.run().get("output_offset")).doubleValue(), scale = ((Number) p.run().get("output_scale")).doubleValue();
+		// the CF attributes (value = add_offset + scale_factor · stored) that xarray applies when it reads the array
+		final var attrs = com.google.gson.JsonParser.parseString(Files.readString(dir.resolve("s.zarr/0/.zattrs"))).getAsJsonObject();
+		assertEquals(scale, attrs.get("scale_factor").getAsDouble());
+		assertEquals(offset, attrs.get("add_offset").getAsDouble());
+		final int[] n = f.shape();
+		final Volume a = f.read(0, 0, new int[3], n), q = s.read(0, 0, new int[3], n);
+		double worst = 0, lo = Double.MAX_VALUE, hi = 0;
+		for (int i = 0; i < a.data().length; i++) {
+			final float stored = q.data()[i];
+			worst = Math.max(worst, Math.abs(offset + scale * stored - a.data()[i]) / scale);
+			lo = Math.min(lo, stored);
+			hi = Math.max(hi, stored);
 		}
-		assertEquals(1, code);
-		assertTrue(buf.toString().startsWith("Error: output=16-bit cannot be written to an OME-Zarr output"), buf.toString());
-		assertEquals(1, buf.toString().strip().lines().count());
-		try (Stream<Path> s = Files.list(dir)) {
-			assertEquals(List.of("in.tif", "psf.tif"), s.map(p -> p.getFileName().toString()).sorted().toList());
-		}
+		System.out.printf("Zarr 16-bit: %d blocks, scale %.6g, offset %.6g, largest error %.6f step(s)%n", o.plan().count(), scale, offset, worst);
+		assertTrue(worst <= 0.5 + 1e-6, "within half a step: " + worst);
+		assertEquals(0, lo, "one scaling for the whole image, from its own extremes (edge chunks' padding left out)");
+		assertEquals(SixteenBit.MAX_STORED, hi);
 	}
 
 	@Test

@@ -453,7 +453,6 @@ public final class SparkRunner {
 		if (in.equals(out)) throw new IllegalArgumentException("The output must differ from the input (inputs are never written)");
 		if (!OmeZarr.isZarr(out))
 			throw new IllegalArgumentException("A Zarr input is written to a .zarr output in Spark blocks mode: name the output *.zarr");
-		ZarrBlockRunner.requireStorable(recipe, out);
 		if (Files.exists(out)) throw new IllegalArgumentException("Output " + output + " exists: choose a new name (outputs are never replaced)");
 		final TaskSettings s = resolved(sc, settings);
 		final ZarrBlockRunner.Layout li = ZarrBlockRunner.layout(in);
@@ -469,7 +468,7 @@ public final class SparkRunner {
 					levels.add(BlockDeconvolution.levels(src, recipe.options(), Monitor.NONE));
 				}
 		TASK_NANOS.addAndGet(4, System.nanoTime() - lv);
-		final String prov = ZarrBlockRunner.provenance(recipe, psfFiles, in, l, plans, "SparkRunner blocks", s.threads()).build().toJson();
+		final var record = ZarrBlockRunner.provenance(recipe, psfFiles, in, l, plans, "SparkRunner blocks", s.threads());
 		final OmeZarr.Writer w = OmeZarr.create(out, l.frames(), l.channels(), l.shape(), l.chunk(), l.voxelSize());
 		final Path fragments = w.hidden().resolveSibling(w.hidden().getFileName() + ".fragments");
 		final List<PsfData> psfData = new ArrayList<>();
@@ -501,7 +500,7 @@ public final class SparkRunner {
 					TASK_NANOS.addAndGet(3, System.nanoTime() - a);
 				});
 			}
-			w.complete(l.voxelSize(), prov);
+			ZarrBlockRunner.complete(w, l.voxelSize(), recipe, record);
 			return BlocksOutcome.of(out, plans.get(0), levels.get(0), done, t0);
 		} catch (final IOException | RuntimeException | Error e) {
 			w.abort();
@@ -821,7 +820,6 @@ public final class SparkRunner {
 			if (pos.get(0).equals("stacks")) inputs = stacksIn(Path.of(pos.get(2)));
 			else {
 				inputs = List.of(Path.of(pos.get(2)));
-				ZarrBlockRunner.requireStorable(recipe, Path.of(pos.get(3)));
 				if (Files.exists(Path.of(pos.get(3))))
 					throw new IllegalArgumentException("Output " + pos.get(3) + " exists: choose a new name (outputs are never replaced)");
 			}
