@@ -241,10 +241,19 @@ public final class ZarrArray {
 	 * so replacing its chunk is harmless; a reader never sees half a chunk).
 	 */
 	public void writeChunk(final int[] index, final float[] values) throws IOException {
-		if (!FLOAT32.equals(dtype)) throw new IllegalStateException("Only float32 Zarr arrays are written");
-		if (values.length != chunkVoxels()) throw new IllegalArgumentException("A chunk has " + chunkVoxels() + " values, got " + values.length);
-		final ByteBuffer b = ByteBuffer.allocate(4 * values.length).order(ByteOrder.LITTLE_ENDIAN);
+		final ByteBuffer b = buffer(FLOAT32, values.length, 4);
 		b.asFloatBuffer().put(values);
+		write(index, b);
+	}
+
+	/** A little-endian buffer for one chunk of {@code count} values of {@code type}. */
+	private ByteBuffer buffer(final String type, final int count, final int item) {
+		if (!type.equals(dtype)) throw new IllegalStateException("This Zarr array is " + dtype + ", not " + type);
+		if (count != chunkVoxels()) throw new IllegalArgumentException("A chunk has " + chunkVoxels() + " values, got " + count);
+		return ByteBuffer.allocate(item * count).order(ByteOrder.LITTLE_ENDIAN);
+	}
+
+	private void write(final int[] index, final ByteBuffer b) throws IOException {
 		final Path file = chunkFile(index);
 		Files.createDirectories(file.getParent());
 		writeAtomically(file, encode(b.array()));
@@ -266,13 +275,9 @@ public final class ZarrArray {
 
 	/** Writes chunk {@code index} as uint16 (ImageJ's unsigned values in shorts), as {@link #writeChunk(int[], float[])} does. */
 	public void writeChunk(final int[] index, final short[] values) throws IOException {
-		if (!UINT16.equals(dtype)) throw new IllegalStateException("This Zarr array is not uint16");
-		if (values.length != chunkVoxels()) throw new IllegalArgumentException("A chunk has " + chunkVoxels() + " values, got " + values.length);
-		final ByteBuffer b = ByteBuffer.allocate(2 * values.length).order(ByteOrder.LITTLE_ENDIAN);
+		final ByteBuffer b = buffer(UINT16, values.length, 2);
 		b.asShortBuffer().put(values);
-		final Path file = chunkFile(index);
-		Files.createDirectories(file.getParent());
-		writeAtomically(file, encode(b.array()));
+		write(index, b);
 	}
 
 	private byte[] encode(final byte[] raw) {
