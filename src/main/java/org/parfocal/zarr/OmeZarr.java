@@ -367,7 +367,7 @@ public final class OmeZarr {
 		 * scaling of the whole image (every frame and channel) is taken from its smallest and largest value
 		 * ({@link SixteenBit}), every chunk is rewritten as uint16, and the array's {@code .zattrs} holds
 		 * {@code scale_factor} and {@code add_offset} (the CF convention, value = add_offset + scale_factor ·
-		 * stored, which xarray applies when it reads); {@code provenanceFor} gives the record with the scaling.
+		 * stored, which CF-aware readers such as xarray apply; from memory); {@code provenanceFor} gives the record with the scaling.
 		 */
 		public SixteenBit.Scaling completeSixteenBit(final VoxelSize v, final java.util.function.Function<SixteenBit.Scaling, String> provenanceFor)
 				throws IOException {
