@@ -8,6 +8,7 @@ import org.parfocal.core.Volume;
 import org.parfocal.deconv.EdgeMode;
 import org.parfocal.deconv.RichardsonLucyEngine;
 import org.parfocal.deconv.Sensitivity;
+import org.parfocal.deconv.TvRow;
 import org.parfocal.fft.RealFft;
 
 /**
@@ -43,7 +44,8 @@ import org.parfocal.fft.RealFft;
 final class BlindSolver {
 
 	private final RichardsonLucyEngine e;
-	private final int nx, ny, nz, mx, my, mz, px, py, pz, kx, ky, kz;
+	private final int[] n;
+	private final int mx, my, mz, px, py, pz, kx, ky, kz;
 	/** Floats per row of the in-place grids. */
 	private final int rs;
 	/** Shift of the PSF step (the PSF centre, or 0 when the grid has no room: periodic edges). */
@@ -74,16 +76,16 @@ final class BlindSolver {
 		this.h = psf.data().clone();
 		this.e = new RichardsonLucyEngine(h, k, n, mode, y, background, objectTv > 0 ? RichardsonLucyEngine.Update.TV : RichardsonLucyEngine.Update.RL,
 				objectTv, null, null, false);
-		final int[] m = e.objectShape(), w = e.windowStart(), p = e.gridShape();
-		nx = n[0]; ny = n[1]; nz = n[2];
-		mx = m[0]; my = m[1]; mz = m[2];
-		px = p[0]; py = p[1]; pz = p[2];
-		kx = k[0]; ky = k[1]; kz = k[2];
+		this.n = n.clone();
 		this.mode = mode;
 		this.constraints = constraints;
 		this.g = new float[h.length];
 		this.fft = e.fft();
-		this.rs = fft.rowStride();
+		final int[] m = e.objectShape(), w = e.windowStart(), p = e.gridShape();
+		kx = k[0]; ky = k[1]; kz = k[2];
+		mx = m[0]; my = m[1]; mz = m[2];
+		px = p[0]; py = p[1]; pz = p[2];
+		rs = fft.rowStride();
 		// the shifted window [w + c, w + c + n) and the PSF box [0, k) fit in the grid without wrap-around
 		// exactly when p ≥ n + k − 1, i.e. for zero and non-circulant edges
 		boolean room = true;
@@ -175,7 +177,7 @@ final class BlindSolver {
 		final float[] old = h.clone();
 		for (int j = 0; j < h.length; j++) {
 			float v = norm[j] > 0 ? (float) (old[j] * (double) g[j] / norm[j]) : 0f;
-			if (lambdaH > 0) v = v / (1f - lambdaH * psfDivergence(old, j));
+			if (lambdaH > 0) v = v / (1f - lambdaH * TvRow.divergence(old, j, j % kx, (j / kx) % ky, j / (kx * ky), kx, ky, kz, epsH));
 			h[j] = v > 0 ? v : 0f;
 		}
 		constraints.apply(h);
@@ -350,7 +352,7 @@ final class BlindSolver {
 	 * voxel that was held and is seen again restarts from the starting level.
 	 */
 	private void updateSensitivity() {
-		final float[] sens = Sensitivity.of(h, new int[] { kx, ky, kz }, new int[] { nx, ny, nz });
+		final float[] sens = Sensitivity.of(h, new int[] { kx, ky, kz }, n);
 		final float max = Sensitivity.max(sens);
 		final float min = (float) (EdgeMode.MIN_SENSITIVITY * max);
 		final float[] oldInv = e.sensitivity(), x = e.object();
@@ -374,29 +376,6 @@ final class BlindSolver {
 			specValid = false;
 			tHoldsX = false;
 		}
-	}
-
-	/** div(∇h/|∇h|) at box voxel j of {@code p} (forward differences, zero flux across the box edges). */
-	private float psfDivergence(final float[] p, final int j) {
-		final int i = j % kx, iy = (j / kx) % ky, iz = j / (kx * ky), plane = kx * ky;
-		final float v = p[j];
-		final float gn = psfGradNorm(p, j, i, iy, iz);
-		float div = 0;
-		if (i + 1 < kx) div += (p[j + 1] - v) / gn;
-		if (iy + 1 < ky) div += (p[j + kx] - v) / gn;
-		if (iz + 1 < kz) div += (p[j + plane] - v) / gn;
-		if (i > 0) div -= (v - p[j - 1]) / psfGradNorm(p, j - 1, i - 1, iy, iz);
-		if (iy > 0) div -= (v - p[j - kx]) / psfGradNorm(p, j - kx, i, iy - 1, iz);
-		if (iz > 0) div -= (v - p[j - plane]) / psfGradNorm(p, j - plane, i, iy, iz - 1);
-		return div;
-	}
-
-	private float psfGradNorm(final float[] p, final int j, final int i, final int iy, final int iz) {
-		final float v = p[j];
-		final float dx = i + 1 < kx ? p[j + 1] - v : 0f;
-		final float dy = iy + 1 < ky ? p[j + kx] - v : 0f;
-		final float dz = iz + 1 < kz ? p[j + kx * ky] - v : 0f;
-		return (float) Math.sqrt(epsH * epsH + dx * dx + dy * dy + dz * dz);
 	}
 
 	// -- output --
