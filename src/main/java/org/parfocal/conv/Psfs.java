@@ -13,6 +13,28 @@ public final class Psfs {
 
 	private Psfs() {}
 
+	/**
+	 * The one placement of a PSF on an FFT grid: PSF voxel (x, y, z) of a k[0] × k[1] × k[2] kernel (x fastest)
+	 * goes to grid voxel (x − c + s) mod p per axis, c = ⌊(k − 1)/2⌋ the PSF origin, s a shift (0: the origin
+	 * at grid voxel 0, wrapping around), on a grid of p[0] × p[1] × p[2] with {@code rowStride} floats per row
+	 * (p[0] for a plain real array, the in-place row length for {@code RealFft}'s grids). {@code gather}: the
+	 * other way, kernel ← the grid's values at those voxels; otherwise the kernel is added to the grid.
+	 */
+	public static void place(final float[] kernel, final int[] k, final float[] grid, final int[] p, final int rowStride, final int[] shift,
+			final boolean gather) {
+		for (int z = 0; z < k[2]; z++) {
+			final int qz = Math.floorMod(z - (k[2] - 1) / 2 + shift[2], p[2]);
+			for (int y = 0; y < k[1]; y++) {
+				final int qy = Math.floorMod(y - (k[1] - 1) / 2 + shift[1], p[1]);
+				for (int x = 0, j = k[0] * (y + k[1] * z); x < k[0]; x++, j++) {
+					final int q = Math.floorMod(x - (k[0] - 1) / 2 + shift[0], p[0]) + rowStride * (qy + p[1] * qz);
+					if (gather) kernel[j] = grid[q];
+					else grid[q] += kernel[j];
+				}
+			}
+		}
+	}
+
 	/** Copy scaled to unit sum. @throws IllegalArgumentException if the sum is not positive and finite */
 	public static Volume normalized(final Volume psf) {
 		final double s = psf.sum();
