@@ -116,7 +116,7 @@ class BlindDeconvolveCommandTest {
 		assertFalse(snaps.get(2).distanceToStart() == 0, "the PSF moved (PSF updates on)");
 
 		// table: one row per snapshot with the core's figures
-		final ResultsTable rt = BlindDeconvolve.table(snaps, "µm");
+		final ResultsTable rt = BlindOutputs.table(snaps, "µm");
 		assertEquals(3, rt.size());
 		for (int t = 0; t < 3; t++) {
 			assertEquals(snaps.get(t).iteration(), rt.getValue("Iteration", t), 0);
@@ -216,7 +216,7 @@ class BlindDeconvolveCommandTest {
 		final var prov = Provenance.of(created(run, "cell-blind.tif")).orElseThrow();
 		assertTrue(String.valueOf(prov.run().get("model_fit")).startsWith("gaussian: fwhm_xy = "), "fitted parameters recorded");
 		assertEquals("model-fit-refined", prov.options().get("estimate"));
-		final ResultsTable rt = BlindDeconvolve.table(core, "µm");
+		final ResultsTable rt = BlindOutputs.table(core, "µm");
 		assertEquals("start", rt.getStringValue("Stage", 0));
 		assertEquals("model fit", rt.getStringValue("Stage", 1));
 		assertEquals(core.refinement().size(), rt.size() - 2);
