@@ -8,7 +8,6 @@ import static org.parfocal.ij1.BlindDeconvolve.MICRONS;
 import static org.parfocal.ij1.BlindDeconvolve.PREFS;
 import static org.parfocal.ij1.BlindDeconvolve.VOXELS;
 
-import java.util.Locale;
 import java.util.Map;
 
 import ij.Prefs;
@@ -34,14 +33,14 @@ final class BlindDeconvolveDialog {
 	static BlindDeconvolveOptions show() {
 		final String[] titles = Commands.imageTitles();
 		if (titles.length == 0) throw new IllegalArgumentException("Open the image to deconvolve first");
-		final String[] starts = new String[titles.length + 2];
-		System.arraycopy(titles, 0, starts, 0, titles.length);
-		starts[titles.length] = FROM_OPTICS;
-		starts[titles.length + 1] = GAUSSIAN;
+		final String imageDefault = Commands.currentNonPsfTitle(titles);
+		// plausible PSFs as Deconvolve lists them (newest Parfocal PSF first), then the optics and the Gaussian
+		final String[] starts = PsfChoices.items(WindowManager.getImage(imageDefault), FROM_OPTICS, GAUSSIAN);
 		Commands.acceptOldValue("edges", EdgeMode.OLD_NON_CIRCULANT_KEY, EdgeMode.NON_CIRCULANT.key());
 		final GenericDialog gd = new GenericDialog(BlindDeconvolve.COMMAND);
-		gd.addChoice("Image:", titles, Commands.currentNonPsfTitle(titles));
-		gd.addChoice("PSF:", starts, guessStart(titles));
+		gd.addChoice("Image:", titles, imageDefault);
+		gd.addChoice("PSF:", starts, Commands.isMacro() ? GAUSSIAN
+				: defaultStart(starts, PsfChoices.madeAsPsf(starts[0]), Commands.remembered(PREFS + "start", GAUSSIAN), Commands.remembered(PREFS + "estimate", FREE_FORM)));
 		gd.addNumericField("FWHM_xy:", Commands.remembered(PREFS + "fwhm_xy", 0.25), 3, 6, "µm, lateral width of a gaussian start");
 		gd.addNumericField("FWHM_z:", Commands.remembered(PREFS + "fwhm_z", 0.7), 3, 6, "µm, axial width of a gaussian start");
 		gd.addMessage("Schedule");
@@ -68,6 +67,9 @@ final class BlindDeconvolveDialog {
 		gd.addNumericField("Trust_radius:", Commands.remembered(PREFS + "trust_radius", FitPlan.DEFAULT_TRUST_RADIUS), 3, 6, "largest distance of a refined PSF to the fitted model");
 		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
 		gd.addHelp(DialogHelp.blind().html());
+		ChoiceWords.show(gd, "image", "psf", "support_units", "edges", "estimate"); // in words, recorded as the macro values
+		PsfChoices.follow(gd, FROM_OPTICS, GAUSSIAN);
+		BlindHints.follow(gd);
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
@@ -164,10 +166,15 @@ final class BlindDeconvolveDialog {
 		return (int) v;
 	}
 
-	private static String guessStart(final String[] titles) {
-		final String last = Commands.remembered(PREFS + "start", GAUSSIAN);
-		if (FROM_OPTICS.equals(last) || GAUSSIAN.equals(last)) return last;
-		for (final String t : titles) if (t.toLowerCase(Locale.ROOT).contains("psf")) return t;
-		return GAUSSIAN;
+	/**
+	 * The start preselected interactively: the newest plausible PSF ({@code starts[0]} when it is an image) if
+	 * Parfocal made it or the last run started from an image, unless the last run fitted a model (which starts from
+	 * the optics or the Gaussian); else the last run's from_optics or gaussian, the Gaussian at first. A macro gets
+	 * the Gaussian, as before the list was filtered.
+	 */
+	static String defaultStart(final String[] starts, final boolean firstIsParfocalPsf, final String lastStart, final String lastEstimate) {
+		final boolean image = !FROM_OPTICS.equals(starts[0]) && !GAUSSIAN.equals(starts[0]);
+		if (image && FREE_FORM.equals(lastEstimate) && (firstIsParfocalPsf || "image".equals(lastStart))) return starts[0];
+		return FROM_OPTICS.equals(lastStart) ? FROM_OPTICS : GAUSSIAN;
 	}
 }

@@ -21,13 +21,15 @@ final class PsfFromBeadsDialog {
 
 	/** The dialog; null if cancelled. */
 	static PsfFromBeads.Options show() {
-		final String[] titles = Commands.imageTitles();
-		if (titles.length == 0) throw new IllegalArgumentException("Open a bead stack first");
+		final String[] titles = BeadStackChoices.items(); // recordings first, never RGB
+		if (titles.length == 0)
+			throw new IllegalArgumentException(Commands.imageTitles().length == 0 ? "Open a bead stack first"
+					: "No open image can be measured: open a bead stack (one channel, one time point, not RGB)");
 		final String[] models = new String[PsfModels.keys().length + 1];
 		models[0] = PsfFromBeads.NONE;
 		System.arraycopy(PsfModels.keys(), 0, models, 1, models.length - 1);
 		final GenericDialog gd = new GenericDialog(PsfFromBeads.COMMAND);
-		gd.addChoice("Image:", titles, Commands.currentTitle(titles));
+		gd.addChoice("Image:", titles, BeadStackChoices.preselected(titles));
 		gd.addMessage("PSF box and beads (µm)");
 		gd.addNumericField("Box_xy:", Commands.remembered(PREFS + "boxxy", 0), 3, 8, "µm; 0 = from the optics");
 		gd.addNumericField("Box_z:", Commands.remembered(PREFS + "boxz", 0), 3, 8, "µm; 0 = 2D image, or from the optics");
@@ -53,6 +55,7 @@ final class PsfFromBeadsDialog {
 		gd.addNumericField("Pinhole:", 1, 2, 6, "Airy units (confocal)");
 		gd.addNumericField("Sheet_thickness:", 2, 2, 6, "µm FWHM (light-sheet)");
 		gd.addHelp(DialogHelp.beads().html());
+		ChoiceWords.show(gd, "image", "background", "averaging", "optics", "modality"); // in words, recorded as the macro values
 		DeconvolveHints.followBeads(gd, PsfFromBeads.NONE); // "0 = from the optics" only when optics are chosen
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
