@@ -48,7 +48,15 @@ class SampleStacksCommandTest {
 		final List<String[]> m = menu();
 		assertEquals("Make Sample Stacks", m.get(0)[0]);
 		for (final String[] e : m) {
-			final String source = Files.readString(Path.of("src/main/java/" + e[1].replace('.', '/') + ".java"));
+			// the command's class and the classes beside it named after it (a command's dialog may live in CommandDialog)
+			final Path file = Path.of("src/main/java/" + e[1].replace('.', '/') + ".java");
+			final String name = file.getFileName().toString().replace(".java", "");
+			final StringBuilder sources = new StringBuilder();
+			try (var siblings = Files.list(file.getParent())) {
+				for (final Path f : siblings.filter(f -> f.getFileName().toString().matches(java.util.regex.Pattern.quote(name) + "[A-Za-z]*\\.java")).toList())
+					sources.append(Files.readString(f));
+			}
+			final String source = sources.toString();
 			final boolean dialog = source.contains("new GenericDialog(") || source.contains("showDialog(");
 			assertEquals(dialog, e[0].endsWith("..."), e[0] + " (" + e[1] + ")");
 		}
