@@ -33,6 +33,8 @@ import org.parfocal.testing.ImageJHarness;
 class BlindAndBeadsChoicesTest {
 
 	private static final VoxelSize VOXEL = VoxelSize.microns(0.08, 0.08, 0.2);
+	private static final PsfFromOptics.Options OPTICS = new PsfFromOptics.Options("born-wolf",
+			org.parfocal.psf.Optics.builder().na(1.2).immersionIndex(1.333).emissionWavelength(0.52).build(), 0.08, 0.2, 9, 5, false);
 
 	@AfterEach
 	void closeAll() {
@@ -93,6 +95,31 @@ class BlindAndBeadsChoicesTest {
 		assertEquals(PsfFromBeads.NONE, ChoiceWords.word("optics", PsfFromBeads.NONE), "none stays none (the box hints read it)");
 		assertEquals("compute from the optics (next dialog)", ChoiceWords.word("psf", Deconvolve.FROM_OPTICS), "Deconvolve's words unchanged");
 		assertEquals("background=auto offset=100", ChoiceWords.valuesForWords("background=auto offset=100"), "a typed level is not a bead choice");
+	}
+
+	/**
+	 * The hints agree with what the command accepts: FWHM_xy warns that a model fit needs another start exactly
+	 * when the options record refuses that start with that estimate, and Trust_radius is used exactly by the
+	 * refined estimates (those whose plan refines, {@link BlindDeconvolveOptions#plan}).
+	 */
+	@Test
+	void blindHintsAgreeWithWhatTheOptionsAccept() {
+		for (final String psf : List.of("psf.tif", BlindDeconvolve.FROM_OPTICS, BlindDeconvolve.GAUSSIAN))
+			for (final String estimate : BlindDeconvolve.ESTIMATES) {
+				final String[] h = BlindHints.hints(psf, BlindDeconvolve.VOXELS, estimate);
+				boolean refused = false;
+				BlindDeconvolveOptions o = null;
+				try {
+					o = new BlindDeconvolveOptions("cell.tif", psf, 0.3, 0.8, 2, 1, 1, 0.002, 0, false, false, true, 0, 0, BlindDeconvolve.VOXELS, 1, null,
+							null, null, BlindDeconvolve.FROM_OPTICS.equals(psf) ? OPTICS : null, null, null, estimate, 0.2);
+				} catch (final IllegalArgumentException e) {
+					refused = true;
+				}
+				assertEquals(refused, h[0].contains("needs the Gaussian or the optics"), psf + " / " + estimate + ": " + h[0]);
+				if (o != null) assertEquals(o.plan() != null && o.plan().refine(), !h[4].startsWith("not used"), estimate + ": " + h[4]);
+				assertEquals(BlindDeconvolve.GAUSSIAN.equals(psf), !h[1].startsWith("not used"), psf + ": " + h[1]);
+			}
+		assertTrue(BlindHints.hints(BlindDeconvolve.GAUSSIAN, BlindDeconvolve.MICRONS, BlindDeconvolve.FREE_FORM)[2].contains("µm"));
 	}
 
 	@Test
