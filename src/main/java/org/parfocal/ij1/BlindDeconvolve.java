@@ -154,9 +154,9 @@ public class BlindDeconvolve implements PlugIn {
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);
 		final var prov = BlindOutputs.provenance(o, imp, psfImp, image.nz() > 1, r, watch, refs, notes);
 		final PsfSnapshot last = r.snapshots().get(r.snapshots().size() - 1);
-		Provenance.attach(out, prov.run("output", "deblurred image"), t0);
-		Provenance.attach(psf, prov.run("output", "final PSF"), t0);
-		Provenance.attach(history, prov.run("output", "PSF history, one frame per snapshot"), t0);
+		ImageProvenance.attach(out, prov.run("output", "deblurred image"), t0);
+		ImageProvenance.attach(psf, prov.run("output", "final PSF"), t0);
+		ImageProvenance.attach(history, prov.run("output", "PSF history, one frame per snapshot"), t0);
 		monitor.done(String.format(Locale.ROOT, "%d iteration(s), %.1f s, PSF FWHM %s%s %s", o.iterations(), (System.nanoTime() - t0) / 1e9,
 				fmt(last.fwhmLateral()), image.nz() > 1 ? " x " + fmt(last.fwhmAxial()) : "", unit));
 		final Plot quality = watch == null ? null : Deconvolve.qualityPlot(List.of(watch), out.getTitle(), "Outer iteration", "chi-square (current PSF)");

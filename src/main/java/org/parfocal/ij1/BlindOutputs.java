@@ -34,8 +34,8 @@ final class BlindOutputs {
 	static org.parfocal.provenance.Provenance.Builder provenance(final BlindDeconvolveOptions o, final ImagePlus imp, final ImagePlus psfImp,
 			final boolean is3D, final BlindResult r, final BlindQualityWatch watch, final List<CompareWithReferences.Reference> refs,
 			final List<String> notes) {
-		final var prov = Provenance.start(BlindDeconvolve.COMMAND, o.macroOptions()).input(Provenance.input("image", imp));
-		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		final var prov = ImageProvenance.start(BlindDeconvolve.COMMAND, o.macroOptions()).input(ImageProvenance.input("image", imp));
+		if (psfImp != null) prov.input(ImageProvenance.input("psf", psfImp));
 		final PsfSnapshot last = r.snapshots().get(r.snapshots().size() - 1);
 		prov.run("iterations", o.iterations()).run("psf_box", r.psf().nx() + "x" + r.psf().ny() + "x" + r.psf().nz())
 				.run("snapshots", r.snapshots().size()).run("fwhm_lateral", last.fwhmLateral());

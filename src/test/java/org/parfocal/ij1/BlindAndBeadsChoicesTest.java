@@ -136,7 +136,7 @@ class BlindAndBeadsChoicesTest {
 		final ImageJHarness.Result a = ImageJHarness.run(img, "Blind Deconvolve...", values), b = ImageJHarness.run(img, "Blind Deconvolve...", words);
 		final ImagePlus ia = deblurred(a), ib = deblurred(b);
 		ImageJHarness.assertSamePixels(ia, ib, 0);
-		final var rec = Provenance.of(ib).orElseThrow().options();
+		final var rec = ImageProvenance.of(ib).orElseThrow().options();
 		assertEquals("gaussian", rec.get("psf"));
 		assertEquals("microns", rec.get("support_units"));
 		assertEquals("free-form", rec.get("estimate"));
@@ -177,7 +177,7 @@ class BlindAndBeadsChoicesTest {
 		final ImagePlus a = ImageJHarness.run(in, "PSF from Beads...", values).onlyCreated();
 		final ImagePlus b = ImageJHarness.run(in, "PSF from Beads...", words).onlyCreated();
 		ImageJHarness.assertSamePixels(a, b, 0);
-		final var rec = Provenance.of(b).orElseThrow().options();
+		final var rec = ImageProvenance.of(b).orElseThrow().options();
 		assertEquals("border", rec.get("background"));
 		assertEquals("median", rec.get("averaging"));
 	}
