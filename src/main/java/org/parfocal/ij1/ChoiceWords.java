@@ -34,13 +34,25 @@ final class ChoiceWords {
 				"held-out", "where held-out photons are predicted best");
 		words("edges", "extended", "object extends past the stack", "periodic", "stack repeats itself (fast)", "zero",
 				"nothing outside (for comparisons)");
-		words("psf", Deconvolve.FROM_OPTICS, "compute from the optics (next dialog)");
+		words("psf", Deconvolve.FROM_OPTICS, "compute from the optics (next dialog)", BlindDeconvolve.GAUSSIAN, "Gaussian of the widths below");
 		// PSF models found through SciJava that are not listed here are shown by their key
 		words("model", "gaussian", "Gaussian approximation", "born-wolf", "Born & Wolf (in focus, matched sample)", "gibson-lanni",
 				"Gibson & Lanni (aberrations with depth)", "richards-wolf", "Richards & Wolf (vectorial, high NA)");
 		words("modality", "widefield", "widefield", "confocal", "confocal (pinhole)", "two-photon", "two-photon (excitation only)", "light-sheet",
 				"light sheet (sheet thickness)");
 		words("output", OutputDepth.FLOAT.key(), OutputDepth.FLOAT.words(), OutputDepth.SCALED_16.key(), OutputDepth.SCALED_16.words());
+		// Blind Deconvolve
+		words("estimate", BlindDeconvolve.FREE_FORM, "free-form (voxel by voxel from the start)", BlindDeconvolve.MODEL_FIT,
+				"fit the model of the start", BlindDeconvolve.MODEL_FIT_REFINED, "fit the model of the start, then refine",
+				BlindDeconvolve.WIDEFIELD_FIT, "fit a widefield shape (Gaussian start)", BlindDeconvolve.WIDEFIELD_FIT_REFINED,
+				"fit a widefield shape, then refine");
+		words("support_units", BlindDeconvolve.VOXELS, "voxels (odd sizes)", BlindDeconvolve.MICRONS, "µm");
+		// PSF from Beads ("background" is a choice only there; elsewhere a level typed in, whose values have no words)
+		words("background", org.parfocal.beads.BackgroundMode.BORDER.key(), "per bead, from its box border", org.parfocal.beads.BackgroundMode.STACK.key(),
+				"one level for the whole stack");
+		words("averaging", org.parfocal.beads.Averaging.MEAN.key(), "mean of the aligned beads", org.parfocal.beads.Averaging.MEDIAN.key(),
+				"median of the aligned beads");
+		WORDS.put("optics", WORDS.get("model")); // the models to compare with; "none" stays "none"
 	}
 
 	private static void words(final String key, final String... valueWords) {

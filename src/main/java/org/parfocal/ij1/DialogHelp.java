@@ -162,7 +162,10 @@ final class DialogHelp {
 				.field("Excitation", "excitation", "&micro;m", "excitation wavelength (confocal, two-photon only)")
 				.field("Pinhole", "pinhole", "Airy units", "pinhole diameter (confocal only)")
 				.group(html(Group.SHEET))
-				.field("Sheet_thickness", "sheet_thickness", "&micro;m (FWHM)", "light-sheet thickness (light-sheet only)");
+				.field("Sheet_thickness", "sheet_thickness", "&micro;m (FWHM)", "light-sheet thickness (light-sheet only)")
+				.note("The Image list shows the images the command can measure (one channel, one time point, not RGB): recordings named "
+						+ "for beads first, then other recordings, then stacks as small as a PSF, newest first. Choices are shown in words; "
+						+ "the Recorder writes the values in <code>code</code> above, and macros may give either.");
 	}
 
 	private static Page levels(final Page p) {
@@ -268,7 +271,10 @@ final class DialogHelp {
 				.group("Output and data")
 				.field("Snapshot_interval", "snapshot_interval", "iterations", "iterations between frames of the PSF history")
 				.field("Edges", "edges", "", EDGES);
-		return levels(p).field("Watch quality", "watch", "", "the watch dialog of Deconvolve, on the object with the current PSF estimate");
+		return levels(p).field("Watch quality", "watch", "", "the watch dialog of Deconvolve, on the object with the current PSF estimate")
+				.note("The PSF list offers the open images that can be this image's PSF (Parfocal PSFs first, then small stacks with a "
+						+ "positive sum; never RGB or the image itself), then the optics and the Gaussian; the newest Parfocal PSF is preselected. "
+						+ "Choices are shown in words; the Recorder writes the values in <code>code</code> above, and macros may give either.");
 	}
 
 	static Page band() {

@@ -84,6 +84,12 @@ final class PsfChoices {
 		return normalisable(p) ? Kind.STACK : null;
 	}
 
+	/** True when the open image of this title was made by Parfocal as a PSF. */
+	static boolean madeAsPsf(final String title) {
+		final ImagePlus p = WindowManager.getImage(title);
+		return p != null && madeAsPsf(p);
+	}
+
 	/** True when the image's record says a Parfocal command made it as a PSF. */
 	static boolean madeAsPsf(final ImagePlus p) {
 		final var rec = ImageProvenance.of(p);
@@ -117,12 +123,17 @@ final class PsfChoices {
 
 	/** The items of the PSF choice for {@code image}: plausible titles, then {@link Deconvolve#FROM_OPTICS}. */
 	static String[] items(final ImagePlus image) {
+		return items(image, Deconvolve.FROM_OPTICS);
+	}
+
+	/** The items of a PSF choice for {@code image}: plausible titles, then {@code after} (choices that are not images). */
+	static String[] items(final ImagePlus image, final String... after) {
 		final List<String> t = new ArrayList<>();
 		if (Commands.isMacro()) {
 			// a macro names its PSF; the list is not shown, so it is not filtered (nor are the images scanned)
 			for (final String title : Commands.imageTitles()) t.add(title);
 		} else for (final Candidate c : candidates(image)) t.add(c.title());
-		t.add(Deconvolve.FROM_OPTICS);
+		t.addAll(List.of(after));
 		return t.toArray(new String[0]);
 	}
 
@@ -131,16 +142,25 @@ final class PsfChoices {
 	 * made again for it (the selection is kept when it is still plausible, else the first entry is taken).
 	 */
 	static void follow(final ij.gui.GenericDialog gd) {
+		follow(gd, Deconvolve.FROM_OPTICS);
+	}
+
+	/** As {@link #follow(ij.gui.GenericDialog)}, for a list that ends with {@code after} (see {@link #items(ImagePlus, String...)}). */
+	static void follow(final ij.gui.GenericDialog gd, final String... after) {
 		if (java.awt.GraphicsEnvironment.isHeadless() || Commands.isMacro() || gd.getChoices() == null || gd.getChoices().size() < 2) return;
-		follow((Choice) gd.getChoices().get(0), (Choice) gd.getChoices().get(1));
+		follow((Choice) gd.getChoices().get(0), (Choice) gd.getChoices().get(1), after);
 	}
 
 	/** See {@link #follow(ij.gui.GenericDialog)}: the image choice and the PSF choice. */
 	static void follow(final Choice imageChoice, final Choice psfChoice) {
+		follow(imageChoice, psfChoice, Deconvolve.FROM_OPTICS);
+	}
+
+	private static void follow(final Choice imageChoice, final Choice psfChoice, final String... after) {
 		imageChoice.addItemListener(e -> {
 			final ImagePlus imp = WindowManager.getImage(imageChoice.getSelectedItem());
 			final String selected = psfChoice.getSelectedItem();
-			final String[] items = items(imp);
+			final String[] items = items(imp, after);
 			psfChoice.removeAll();
 			for (final String it : items) psfChoice.add(ChoiceWords.word("psf", it));
 			if (selected != null) psfChoice.select(selected);

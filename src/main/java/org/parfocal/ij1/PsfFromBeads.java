@@ -1,6 +1,5 @@
 package org.parfocal.ij1;
 
-import java.awt.Color;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Locale;
@@ -8,24 +7,18 @@ import java.util.Map;
 
 import ij.IJ;
 import ij.ImagePlus;
-import ij.Prefs;
-import ij.gui.GenericDialog;
-import ij.gui.OvalRoi;
 import ij.gui.Overlay;
-import ij.gui.Roi;
 import ij.measure.ResultsTable;
 import ij.plugin.PlugIn;
 
 import org.parfocal.beads.Averaging;
 import org.parfocal.beads.BackgroundMode;
-import org.parfocal.beads.Bead;
 import org.parfocal.beads.BeadOptions;
 import org.parfocal.beads.BeadPsf;
 import org.parfocal.beads.BeadStatus;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 import org.parfocal.provenance.MacroOptions;
-import org.parfocal.psf.Modality;
 import org.parfocal.psf.Optics;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
@@ -36,9 +29,8 @@ import org.parfocal.psf.PsfModels;
  * bead (position, peak, fitted FWHM, accepted or why not), a table of the average's FWHM beside the optics model's
  * when optics are given, and ROIs of the beads in the input's overlay.
  * <p>
- * The ROIs go into the input image's overlay rather than onto a copy: an overlay does not touch pixels (the input's
- * SHA-256 in the provenance is unchanged), bead stacks are large and a copy would double the memory, and the user
- * sees the beads on the data they know. ROIs this command added before are replaced; other overlay ROIs are kept.
+ * The ROIs go into the input image's overlay, not onto a copy ({@link BeadOutputs}); the dialog is
+ * {@link PsfFromBeadsDialog}.
  * <p>
  * Macro keys (public API): {@code image box_xy box_z bead_diameter threshold reject_saturated outlier_z background
  * averaging symmetrize voxel_xy voxel_z optics modality na immersion_index sample_index depth emission excitation
@@ -47,11 +39,7 @@ import org.parfocal.psf.PsfModels;
 public class PsfFromBeads implements PlugIn {
 
 	static final String COMMAND = "PSF from Beads";
-	/** Overlay ROIs of this command are named with this prefix, so that a rerun replaces only them. */
-	static final String ROI_PREFIX = "parfocal-bead ";
 	static final String NONE = "none";
-	static final Color ACCEPTED = new Color(40, 200, 240), REJECTED = new Color(250, 120, 30);
-	private static final String PREFS = "parfocal.beads.";
 
 	/**
 	 * Everything the dialog decides. {@code boxXY}, {@code boxZ}, {@code voxelXY}, {@code voxelZ} may be 0 ("from the
@@ -97,7 +85,7 @@ public class PsfFromBeads implements PlugIn {
 	@Override
 	public void run(final String arg) {
 		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.PSF_FROM_BEADS, () -> {
-			final Options o = showDialog();
+			final Options o = PsfFromBeadsDialog.show();
 			if (o == null) throw Commands.cancelled();
 			final Result r = run(o);
 			Tables.show(r.beads(), "Beads");
@@ -106,81 +94,6 @@ public class PsfFromBeads implements PlugIn {
 		});
 	}
 
-	Options showDialog() {
-		final String[] titles = Commands.imageTitles();
-		if (titles.length == 0) throw new IllegalArgumentException("Open a bead stack first");
-		final String[] models = new String[PsfModels.keys().length + 1];
-		models[0] = NONE;
-		System.arraycopy(PsfModels.keys(), 0, models, 1, models.length - 1);
-		final GenericDialog gd = new GenericDialog(COMMAND);
-		gd.addChoice("Image:", titles, Commands.currentTitle(titles));
-		gd.addMessage("PSF box and beads (µm)");
-		gd.addNumericField("Box_xy:", Commands.remembered(PREFS + "boxxy", 0), 3, 8, "µm; 0 = from the optics");
-		gd.addNumericField("Box_z:", Commands.remembered(PREFS + "boxz", 0), 3, 8, "µm; 0 = 2D image, or from the optics");
-		gd.addNumericField("Bead_diameter:", Commands.remembered(PREFS + "diameter", 0.1), 3, 8, "µm; 0 = unknown");
-		gd.addMessage("Detection and rejection");
-		gd.addNumericField("Threshold:", Commands.remembered(PREFS + "threshold", 6), 2, 8, "× noise above the background");
-		gd.addCheckbox("Reject_saturated beads (peak at the bit-depth maximum)", Commands.remembered(PREFS + "saturated", true));
-		gd.addNumericField("Outlier_z:", Commands.remembered(PREFS + "outlier", 3.5), 2, 8, "robust z-score limit; 0 = off");
-		gd.addChoice("Background:", BackgroundMode.keys(), Commands.remembered(PREFS + "background", BackgroundMode.STACK.key()));
-		gd.addChoice("Averaging:", Averaging.keys(), Commands.remembered(PREFS + "averaging", Averaging.MEAN.key()));
-		gd.addCheckbox("Symmetrize radially", false);
-		gd.addNumericField("Voxel_xy:", 0, 4, 8, "µm; 0 = from the image");
-		gd.addNumericField("Voxel_z:", 0, 4, 8, "µm; 0 = from the image");
-		gd.addMessage("Optics for comparison (optional)");
-		gd.addChoice("Optics:", models, Commands.remembered(PREFS + "model", NONE));
-		gd.addChoice("Modality:", Modality.keys(), Commands.remembered(PREFS + "modality", "widefield"));
-		gd.addNumericField("NA:", Commands.remembered(PREFS + "na", 1.4), 3);
-		gd.addNumericField("Immersion_index:", Commands.remembered(PREFS + "ni", 1.518), 4);
-		gd.addNumericField("Sample_index:", Commands.remembered(PREFS + "ns", 1.518), 4);
-		gd.addNumericField("Depth:", 0, 2, 6, "µm below the coverslip");
-		gd.addNumericField("Emission:", Commands.remembered(PREFS + "emission", 0.52), 3, 6, "µm");
-		gd.addNumericField("Excitation:", Commands.remembered(PREFS + "excitation", 0.488), 3, 6, "µm (confocal, two-photon)");
-		gd.addNumericField("Pinhole:", 1, 2, 6, "Airy units (confocal)");
-		gd.addNumericField("Sheet_thickness:", 2, 2, 6, "µm FWHM (light-sheet)");
-		gd.addHelp(DialogHelp.beads().html());
-		DeconvolveHints.followBeads(gd, NONE); // "0 = from the optics" only when optics are chosen
-		gd.showDialog();
-		if (gd.wasCanceled()) return null;
-		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
-		final double boxXY = Commands.number(gd, "box_xy"), boxZ = Commands.number(gd, "box_z"), diameter = Commands.number(gd, "bead_diameter");
-		final double threshold = Commands.number(gd, "threshold");
-		final boolean saturated = gd.getNextBoolean();
-		final double outlier = Commands.number(gd, "outlier_z");
-		final BackgroundMode background = BackgroundMode.parse(Commands.checkChoice("background", gd.getNextChoice(), "background (border or stack)"));
-		final Averaging averaging = Averaging.parse(Commands.checkChoice("averaging", gd.getNextChoice(), "averaging (mean or median)"));
-		final boolean symmetrize = gd.getNextBoolean();
-		final double vxy = Commands.number(gd, "voxel_xy"), vz = Commands.number(gd, "voxel_z");
-		final String model = Commands.checkChoice("optics", gd.getNextChoice(), "optics model (none, " + String.join(", ", PsfModels.keys()) + ")");
-		final Modality modality = Modality.parse(Commands.checkChoice("modality", gd.getNextChoice(), "modality"));
-		final double na = Commands.number(gd, "na"), ni = Commands.number(gd, "immersion_index"), ns = Commands.number(gd, "sample_index");
-		final double depth = Commands.number(gd, "depth"), emission = Commands.number(gd, "emission"), excitation = Commands.number(gd, "excitation");
-		final double pinhole = Commands.number(gd, "pinhole"), sheet = Commands.number(gd, "sheet_thickness");
-		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
-		if (!Commands.isMacro()) {
-			Prefs.set(PREFS + "boxxy", boxXY);
-			Prefs.set(PREFS + "boxz", boxZ);
-			Prefs.set(PREFS + "diameter", diameter);
-			Prefs.set(PREFS + "threshold", threshold);
-			Prefs.set(PREFS + "saturated", saturated);
-			Prefs.set(PREFS + "outlier", outlier);
-			Prefs.set(PREFS + "background", background.key());
-			Prefs.set(PREFS + "averaging", averaging.key());
-			Prefs.set(PREFS + "model", model);
-			Prefs.set(PREFS + "modality", modality.key());
-			Prefs.set(PREFS + "na", na);
-			Prefs.set(PREFS + "ni", ni);
-			Prefs.set(PREFS + "ns", ns);
-			Prefs.set(PREFS + "emission", emission);
-			Prefs.set(PREFS + "excitation", excitation);
-		}
-		final Optics optics = NONE.equals(model) ? null
-				: Optics.builder().modality(modality).na(na).immersionIndex(ni).sampleIndex(ns).depth(depth)
-						.emissionWavelength(modality.usesEmission() || emission > 0 ? emission : Double.NaN)
-						.excitationWavelength(modality.usesExcitation() || excitation > 0 ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
-						.sheetThickness(modality == Modality.LIGHT_SHEET || sheet > 0 ? sheet : Double.NaN).build();
-		return new Options(image, boxXY, boxZ, diameter, threshold, saturated, outlier, background, averaging, symmetrize, vxy, vz, model, optics);
-	}
 
 	/** Measures the PSF of the beads in the open image {@code o.image()}; adds the bead ROIs to its overlay. */
 	public static Result run(final Options o) {
@@ -231,66 +144,9 @@ public class PsfFromBeads implements PlugIn {
 		for (final String w : warnings) builder.warning(w);
 		ImageProvenance.attach(psf, builder, start);
 
-		final Overlay overlay = overlay(imp, m.beads(), m.fwhm()[0] / (stack.voxelSize().dx() * um));
+		final Overlay overlay = BeadOutputs.overlay(imp, m.beads(), m.fwhm()[0] / (stack.voxelSize().dx() * um));
 		monitor.done(String.format(Locale.ROOT, "%d of %d beads averaged; FWHM %.3f x %.3f%s µm", counts.get(BeadStatus.ACCEPTED), m.beads().size(),
 				m.fwhm()[0], m.fwhm()[1], is3D ? String.format(Locale.ROOT, " x %.3f", m.fwhm()[2]) : ""));
-		return new Result(psf, beadTable(m.beads()), fwhmTable(m, model, o.beadDiameter(), is3D), overlay, m, List.copyOf(warnings));
-	}
-
-	/** One row per bead. */
-	static ResultsTable beadTable(final List<Bead> beads) {
-		final ResultsTable rt = new ResultsTable();
-		for (final Bead b : beads) {
-			rt.incrementCounter();
-			rt.addValue("Bead", b.id());
-			rt.addValue("X (µm)", b.xUm());
-			rt.addValue("Y (µm)", b.yUm());
-			rt.addValue("Z (µm)", b.zUm());
-			rt.addValue("Peak", b.peak());
-			rt.addValue("Background", b.background());
-			rt.addValue("FWHM x (µm)", b.fwhmX());
-			rt.addValue("FWHM y (µm)", b.fwhmY());
-			rt.addValue("FWHM z (µm)", b.fwhmZ());
-			rt.addValue("Status", b.status().key());
-			rt.addValue("Reason", b.reason());
-		}
-		return rt;
-	}
-
-	/** FWHM of the average, corrected for the bead size when that applies, beside the optics model's. */
-	static ResultsTable fwhmTable(final BeadPsf.Result m, final double[] model, final double diameter, final boolean is3D) {
-		final ResultsTable rt = new ResultsTable();
-		final String[] axes = { "lateral x", "lateral y", "axial z" };
-		for (int d = 0; d < (is3D ? 3 : 2); d++) {
-			rt.incrementCounter();
-			rt.addValue("Axis", axes[d]);
-			rt.addValue("Measured FWHM (µm)", m.fwhm()[d]);
-			if (diameter > 0) rt.addValue("Corrected for bead size (µm)", m.fwhmCorrected()[d]);
-			if (model != null) {
-				rt.addValue("Optics model FWHM (µm)", model[d]);
-				rt.addValue("Measured / model", m.fwhm()[d] / model[d]);
-			}
-		}
-		return rt;
-	}
-
-	/** Replaces this command's ROIs in the input's overlay (other ROIs stay): a circle per bead on its plane. */
-	static Overlay overlay(final ImagePlus imp, final List<Bead> beads, final double fwhmPixels) {
-		Overlay ov = imp.getOverlay();
-		if (ov == null) ov = new Overlay();
-		for (final Roi r : ov.toArray())
-			if (r.getName() != null && r.getName().startsWith(ROI_PREFIX)) ov.remove(r);
-		final double d = Math.max(6, 2 * (Double.isFinite(fwhmPixels) ? fwhmPixels : 3));
-		for (final Bead b : beads) {
-			final Roi roi = new OvalRoi(b.x() + 0.5 - d / 2, b.y() + 0.5 - d / 2, d, d);
-			roi.setName(ROI_PREFIX + b.id() + " " + b.status().key());
-			roi.setStrokeColor(b.accepted() ? ACCEPTED : REJECTED);
-			final int z = (int) Math.round(b.z()) + 1;
-			if (imp.isHyperStack()) roi.setPosition(0, z, 0);
-			else if (imp.getStackSize() > 1) roi.setPosition(z);
-			ov.add(roi);
-		}
-		imp.setOverlay(ov);
-		return ov;
+		return new Result(psf, BeadOutputs.beadTable(m.beads()), BeadOutputs.fwhmTable(m, model, o.beadDiameter(), is3D), overlay, m, List.copyOf(warnings));
 	}
 }

@@ -48,15 +48,16 @@ class SampleStacksCommandTest {
 		final List<String[]> m = menu();
 		assertEquals("Make Sample Stacks", m.get(0)[0]);
 		for (final String[] e : m) {
-			final String source = Files.readString(Path.of("src/main/java/" + e[1].replace('.', '/') + ".java"));
-			boolean dialog = source.contains("new GenericDialog(") || source.contains("showDialog(");
-			// a command whose dialog lives in a class of its own (DeconvolveDialog.show(), ...): read that class too
-			final java.util.regex.Matcher k = java.util.regex.Pattern.compile("\\b(\\w+Dialog)\\.show\\w*\\(").matcher(source);
-			final Path dir = Path.of("src/main/java/" + e[1].substring(0, e[1].lastIndexOf('.')).replace('.', '/'));
-			while (!dialog && k.find()) {
-				final Path other = dir.resolve(k.group(1) + ".java");
-				dialog = Files.exists(other) && Files.readString(other).contains("new GenericDialog(");
+			// the command's class and the classes beside it named after it (a command's dialog may live in CommandDialog)
+			final Path file = Path.of("src/main/java/" + e[1].replace('.', '/') + ".java");
+			final String name = file.getFileName().toString().replace(".java", "");
+			final StringBuilder sources = new StringBuilder();
+			try (var siblings = Files.list(file.getParent())) {
+				for (final Path f : siblings.filter(f -> f.getFileName().toString().matches(java.util.regex.Pattern.quote(name) + "[A-Za-z]*\\.java")).toList())
+					sources.append(Files.readString(f));
 			}
+			final String source = sources.toString();
+			final boolean dialog = source.contains("new GenericDialog(") || source.contains("showDialog(");
 			assertEquals(dialog, e[0].endsWith("..."), e[0] + " (" + e[1] + ")");
 		}
 		assertTrue(ImageJHarness.installedCommands().containsKey("Make Sample Stacks"));

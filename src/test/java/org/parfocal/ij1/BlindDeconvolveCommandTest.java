@@ -116,7 +116,7 @@ class BlindDeconvolveCommandTest {
 		assertFalse(snaps.get(2).distanceToStart() == 0, "the PSF moved (PSF updates on)");
 
 		// table: one row per snapshot with the core's figures
-		final ResultsTable rt = BlindDeconvolve.table(snaps, "µm");
+		final ResultsTable rt = BlindOutputs.table(snaps, "µm");
 		assertEquals(3, rt.size());
 		for (int t = 0; t < 3; t++) {
 			assertEquals(snaps.get(t).iteration(), rt.getValue("Iteration", t), 0);
@@ -216,7 +216,7 @@ class BlindDeconvolveCommandTest {
 		final var prov = ImageProvenance.of(created(run, "cell-blind.tif")).orElseThrow();
 		assertTrue(String.valueOf(prov.run().get("model_fit")).startsWith("gaussian: fwhm_xy = "), "fitted parameters recorded");
 		assertEquals("model-fit-refined", prov.options().get("estimate"));
-		final ResultsTable rt = BlindDeconvolve.table(core, "µm");
+		final ResultsTable rt = BlindOutputs.table(core, "µm");
 		assertEquals("start", rt.getStringValue("Stage", 0));
 		assertEquals("model fit", rt.getStringValue("Stage", 1));
 		assertEquals(core.refinement().size(), rt.size() - 2);
@@ -433,14 +433,30 @@ class BlindDeconvolveCommandTest {
 	void recordedLineReplaysHeadless() throws Exception {
 		ImageJHarness.assumeDisplay();
 		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
-		DeconvolveCommandTest.open(img);
+		final ImagePlus rgb = ij.gui.NewImage.createRGBImage("plot.png", 9, 9, 1, ij.gui.NewImage.FILL_WHITE);
+		DeconvolveCommandTest.open(img, rgb);
+		final ImagePlus opticsPsf = ImageJHarness.run(null, "PSF from Optics...",
+				PsfFromOpticsCommandTest.OPTIONS.replace("size_xy=33 size_z=21", "size_xy=9 size_z=5")).onlyCreated();
+		DeconvolveCommandTest.open(opticsPsf);
+		ij.Prefs.set("parfocal.blind.estimate", BlindDeconvolve.FREE_FORM); // the last interactive run: free-form from the Gaussian
+		ij.Prefs.set("parfocal.blind.start", BlindDeconvolve.GAUSSIAN);
+		final List<String> shown = new ArrayList<>(), hints = new ArrayList<>();
+		final String[] preselected = new String[1];
 		final ImageJHarness.Recording rec = ImageJHarness.record(img, CMD, dialog -> {
 			final List<Choice> ch = dialog.getChoices().stream().map(Choice.class::cast).toList();
-			ch.get(0).select("cell.tif");
-			ch.get(1).select("gaussian");
-			ch.get(2).select("voxels");
-			ch.get(3).select("extended");
-			ch.get(4).select("free-form");
+			for (int i = 0; i < ch.get(1).getItemCount(); i++) shown.add(ch.get(1).getItem(i));
+			preselected[0] = ch.get(1).getSelectedItem();
+			final TextField fwhm = (TextField) dialog.getNumericFields().get(0), trust = (TextField) dialog.getNumericFields().get(10);
+			hints.add(DeconvolveHints.unitLabel(fwhm).getText().trim());
+			pick(ch.get(0), "cell.tif");
+			pick(ch.get(1), ChoiceWords.word("psf", "gaussian"));
+			hints.add(DeconvolveHints.unitLabel(fwhm).getText().trim());
+			pick(ch.get(2), ChoiceWords.word("support_units", "voxels"));
+			pick(ch.get(3), ChoiceWords.word("edges", "extended"));
+			pick(ch.get(4), ChoiceWords.word("estimate", "model-fit-refined"));
+			hints.add(DeconvolveHints.unitLabel(trust).getText().trim());
+			pick(ch.get(4), ChoiceWords.word("estimate", "free-form"));
+			hints.add(DeconvolveHints.unitLabel(trust).getText().trim());
 			final List<TextField> num = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
 			// fwhm_xy fwhm_z iterations object_updates psf_updates object_tv psf_tv support_xy support_z snapshot_interval trust_radius
 			final String[] values = { "0.3", "0.8", "4", "1", "1", "0.002", "0", "9", "5", "2", "0.2" };
@@ -454,7 +470,15 @@ class BlindDeconvolveCommandTest {
 			str.get(1).setText("auto");
 			answerNextDialog(dialog, "1.2", "1.333", "0.52");
 		});
+		assertEquals(List.of(opticsPsf.getTitle(), ChoiceWords.word("psf", "from_optics"), ChoiceWords.word("psf", "gaussian")), shown,
+				"the start list: the Parfocal PSF, the optics, the Gaussian; not the image, not the RGB plot");
+		assertEquals(opticsPsf.getTitle(), preselected[0], "the newest Parfocal PSF is preselected");
+		assertEquals(List.of("not used: the start is the image chosen", "µm, lateral width of the Gaussian start",
+				"largest distance of a refined PSF to the fitted model", "not used: only with a fit, then refine"), hints, "hints follow the start and the estimate");
 		final String opts = ImageJHarness.parseRunLine(rec.line())[1];
+		final var given = MacroOptions.parse(opts);
+		for (final String[] kv : new String[][] { { "psf", "gaussian" }, { "support_units", "voxels" }, { "edges", "extended" }, { "estimate", "free-form" } })
+			assertEquals(kv[1], given.get(kv[0]), "the released macro value is recorded: " + rec.line());
 		final List<String> all = new ArrayList<>(KEYS);
 		all.remove("symmetric"); // unchecked boxes are not recorded
 		all.addAll(BAND_KEYS);
@@ -464,6 +488,14 @@ class BlindDeconvolveCommandTest {
 			assertEquals(List.copyOf(MacroOptions.parse(opts).keySet()), List.copyOf(ImageProvenance.of(i).orElseThrow().options().keySet()),
 					"provenance of " + i.getTitle() + " holds exactly the recorded keys");
 		ImageJHarness.assertSamePixels(recorded, ImageJHarness.replayInHeadlessJvm(rec.line(), img), 0);
+	}
+
+	/** Selects an item as a user does: the choice's listeners hear of it. */
+	private static void pick(final Choice c, final String item) {
+		c.select(item);
+		assertEquals(item, c.getSelectedItem(), "no such item: " + item);
+		for (final java.awt.event.ItemListener l : c.getItemListeners())
+			l.itemStateChanged(new java.awt.event.ItemEvent(c, java.awt.event.ItemEvent.ITEM_STATE_CHANGED, item, java.awt.event.ItemEvent.SELECTED));
 	}
 
 	/** Waits (on its own thread) for the dialog that follows {@code first}, fills its numeric fields and presses OK. */

@@ -168,9 +168,9 @@ class DeconvolveChoicesTest {
 		assertEquals(1.1, OpticsDefaults.number(found, "na", 1.4));
 		// Blind Deconvolve's band-limit optics: the starting PSF's record first, else the image's
 		ImageJHarness.open(blurred);
-		assertEquals("1.1", BlindDeconvolve.bandDefaults("cell.tif", psf.getTitle()).get("na"));
-		assertEquals("1.1", BlindDeconvolve.bandDefaults(blurred.getTitle(), BlindDeconvolve.GAUSSIAN).get("na"));
-		assertTrue(BlindDeconvolve.bandDefaults("cell.tif", BlindDeconvolve.GAUSSIAN).isEmpty());
+		assertEquals("1.1", BlindDeconvolveDialog.bandDefaults("cell.tif", psf.getTitle()).get("na"));
+		assertEquals("1.1", BlindDeconvolveDialog.bandDefaults(blurred.getTitle(), BlindDeconvolve.GAUSSIAN).get("na"));
+		assertTrue(BlindDeconvolveDialog.bandDefaults("cell.tif", BlindDeconvolve.GAUSSIAN).isEmpty());
 		assertEquals(1.4, OpticsDefaults.number(found, "no_such_key", 1.4));
 	}
 

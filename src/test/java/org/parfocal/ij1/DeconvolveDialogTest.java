@@ -154,7 +154,7 @@ class DeconvolveDialogTest {
 			final TextField box = (TextField) dialog.getNumericFields().get(0);
 			pick(optics, PsfFromBeads.NONE);
 			hints[0] = DeconvolveHints.unitLabel(box).getText().trim();
-			pick(optics, "born-wolf");
+			pick(optics, ChoiceWords.word("optics", "born-wolf"));
 			hints[1] = DeconvolveHints.unitLabel(box).getText().trim();
 		}, true, null);
 		assertEquals("µm (no optics chosen below: enter it)", hints[0]);

@@ -8,6 +8,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import java.awt.Checkbox;
 import java.awt.Choice;
 import java.awt.TextField;
+import java.util.ArrayList;
 import java.util.List;
 
 import ij.IJ;
@@ -138,13 +139,19 @@ class PsfFromBeadsCommandTest {
 	void recordedLineHasEveryKeyAndReplaysHeadless() throws Exception {
 		ImageJHarness.assumeDisplay();
 		final ImagePlus in = beads("beads.tif");
-		open(in);
+		final ImagePlus rgb = ij.gui.NewImage.createRGBImage("beads-plot.png", 200, 200, 1, ij.gui.NewImage.FILL_WHITE);
+		final ImagePlus kernel = ImageBridge.toImagePlus(org.parfocal.demo.SampleScene.gaussianPsf(9, 9, 5), "kernel.tif");
+		open(kernel, in, rgb);
+		final List<String> shown = new ArrayList<>();
 		final ImageJHarness.Recording rec = ImageJHarness.record(in, CMD, dialog -> {
 			final List<Choice> c = dialog.getChoices().stream().map(Choice.class::cast).toList();
+			for (int i = 0; i < c.get(0).getItemCount(); i++) shown.add(c.get(0).getItem(i));
 			c.get(0).select("beads.tif");
-			c.get(1).select("border");
-			c.get(2).select("median");
-			c.get(3).select("gibson-lanni");
+			c.get(1).select(ChoiceWords.word("background", "border"));
+			c.get(2).select(ChoiceWords.word("averaging", "median"));
+			c.get(3).select(ChoiceWords.word("optics", "gibson-lanni"));
+			assertEquals(ChoiceWords.word("optics", "gibson-lanni"), c.get(3).getSelectedItem());
+			assertEquals(ChoiceWords.word("averaging", "median"), c.get(2).getSelectedItem());
 			final List<TextField> f = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
 			f.get(0).setText("1.5"); // box_xy
 			f.get(1).setText("2.4"); // box_z
@@ -154,7 +161,12 @@ class PsfFromBeadsCommandTest {
 			f.get(9).setText("1.333");
 			((Checkbox) dialog.getCheckboxes().get(1)).setState(true); // symmetrize
 		});
+		assertEquals(List.of("beads.tif", "kernel.tif"), shown, "the bead recording first, the PSF-sized stack after it, no RGB plot");
 		final String opts = ImageJHarness.parseRunLine(rec.line())[1];
+		final var given = org.parfocal.provenance.MacroOptions.parse(opts);
+		assertEquals("border", given.get("background"), rec.line());
+		assertEquals("median", given.get("averaging"), rec.line());
+		assertEquals("gibson-lanni", given.get("optics"), rec.line());
 		for (final String k : KEYS) assertTrue(opts.contains(k), "recorded line lacks " + k + ": " + rec.line());
 		final ImagePlus recorded = rec.result().created().stream().filter(i -> i.getTitle().startsWith("psf-beads")).findFirst().orElseThrow();
 		assertEquals(List.copyOf(org.parfocal.provenance.MacroOptions.parse(opts).keySet()),
