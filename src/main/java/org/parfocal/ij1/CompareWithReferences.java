@@ -285,17 +285,17 @@ public class CompareWithReferences implements PlugIn {
 		final ResultsTable table = table(report, chi);
 		final Plot plot = plot(curves, base, refs.size());
 		final ImagePlus plotImp = plot.getImagePlus();
-		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("result", resImp));
-		for (final Reference r : refs) prov.input(Provenance.input("reference", r.image()));
-		if (inImp != null) prov.input(Provenance.input("input", inImp));
-		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		final var prov = ImageProvenance.start(COMMAND, o.macroOptions()).input(ImageProvenance.input("result", resImp));
+		for (final Reference r : refs) prov.input(ImageProvenance.input("reference", r.image()));
+		if (inImp != null) prov.input(ImageProvenance.input("input", inImp));
+		if (psfImp != null) prov.input(ImageProvenance.input("psf", psfImp));
 		final ReferenceComparison.Row p = report.row(ReferenceComparison.PATCHES);
 		prov.run("patch_distance", p.distance()).run("floor", p.floor()).run("references", refs.size()).run("volumetric_patches", report.volumetricPatches());
 		if (!Double.isNaN(p.baseline())) prov.run("baseline", p.baseline()).run("gap_closed", p.gapClosed());
 		if (chi != null) prov.run("chi_square", chi.meanChiSquare()).run("whiteness", chi.whiteness());
 		prov.run("table", report.toText().strip().replace('\n', ';'));
 		if (!report.notes().isEmpty()) prov.run("notes", String.join("; ", report.notes()));
-		Provenance.attach(plotImp, prov, start);
+		ImageProvenance.attach(plotImp, prov, start);
 		monitor.done(String.format(Locale.ROOT, "patch distance %.4g (floor %.4g)", p.distance(), p.floor()));
 		return new Output("Reference comparison of " + base, table, plot, report, chi);
 	}

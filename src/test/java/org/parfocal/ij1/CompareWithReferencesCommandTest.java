@@ -142,10 +142,10 @@ class CompareWithReferencesCommandTest {
 		// the plot image carries the provenance: every key, every input
 		final ImagePlus plot = r.created().stream().filter(i -> i.getTitle().startsWith("Marginals of result")).findFirst().orElseThrow(
 				() -> new AssertionError("no plot among " + r.created()));
-		final var p = Provenance.of(plot).orElseThrow();
+		final var p = ImageProvenance.of(plot).orElseThrow();
 		assertEquals(KEYS, List.copyOf(p.options().keySet()));
 		assertEquals(1 + 4 + 2, p.inputs().size(), "result, 4 references, input, psf");
-		assertEquals(Provenance.sha256(third), p.inputs().get(3).sha256());
+		assertEquals(ImageProvenance.sha256(third), p.inputs().get(3).sha256());
 		assertEquals(core.distance(), ((Number) p.run().get("patch_distance")).doubleValue(), 1e-12);
 	}
 
@@ -170,7 +170,7 @@ class CompareWithReferencesCommandTest {
 		assertFails("The reference 'sharp-open-1.tif' has no calibration but 'result.tif' has", res, opts);
 		assertFails("add ignore_calibration", res, opts);
 		final ImagePlus plot = ImageJHarness.run(res, CMD, opts + " ignore_calibration").onlyCreated();
-		assertTrue(Provenance.of(plot).orElseThrow().options().containsKey("ignore_calibration"));
+		assertTrue(ImageProvenance.of(plot).orElseThrow().options().containsKey("ignore_calibration"));
 	}
 
 	@Test
@@ -229,10 +229,10 @@ class CompareWithReferencesCommandTest {
 		final String opts = ImageJHarness.parseRunLine(recd.line())[1];
 		for (final String k : KEYS) assertTrue(opts.matches("(^|.* )" + k + "(=.*| .*|$)"), "recorded line lacks " + k + ": " + recd.line());
 		final ImagePlus plot = recd.result().created().stream().filter(i -> i.getTitle().startsWith("Marginals of")).findFirst().orElseThrow();
-		final var p = Provenance.of(plot).orElseThrow();
+		final var p = ImageProvenance.of(plot).orElseThrow();
 		assertEquals(List.copyOf(MacroOptions.parse(opts).keySet()), List.copyOf(p.options().keySet()), "provenance holds exactly the recorded keys");
 		final ImagePlus replayed = ImageJHarness.replayInHeadlessJvm(recd.line(), res, rec, psf);
-		final var q = Provenance.of(replayed).orElseThrow();
+		final var q = ImageProvenance.of(replayed).orElseThrow();
 		assertEquals(p.run().get("patch_distance"), q.run().get("patch_distance"), "same distance replayed headless");
 		assertEquals(p.run().get("chi_square"), q.run().get("chi_square"));
 	}
