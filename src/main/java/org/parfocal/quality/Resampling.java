@@ -1,12 +1,11 @@
 package org.parfocal.quality;
 
-import java.util.Locale;
-
 import org.parfocal.core.MemoryBudget;
 import org.parfocal.core.Parallel;
 import org.parfocal.core.Smoothing;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
+import org.parfocal.psf.PsfGrid;
 
 /**
  * Resampling to another voxel size by linear (bilinear in 2D, trilinear in 3D) interpolation.
@@ -28,16 +27,16 @@ public final class Resampling {
 
 	private Resampling() {}
 
-	/** Micrometres per unit for the length units ImageJ users write; NaN for an unknown unit. */
+	/**
+	 * Micrometres per unit for the length units ImageJ users write; NaN for an unknown unit. The table is
+	 * {@link PsfGrid#micronsPer}'s (one table of units in the project): this only turns its refusal into NaN.
+	 */
 	public static double micronsPerUnit(final String unit) {
-		switch (unit.trim().toLowerCase(Locale.ROOT)) {
-		case "µm": case "μm": case "um": case "micron": case "microns": case "micrometer": case "micrometre": case "micrometers": case "micrometres":
-			return 1;
-		case "nm": case "nanometer": case "nanometre": case "nanometers": case "nanometres":
-			return 1e-3;
-		case "mm": case "millimeter": case "millimetre":
-			return 1e3;
-		default:
+		final VoxelSize v = new VoxelSize(1, 1, 1, unit);
+		if (!v.isCalibrated()) return Double.NaN;
+		try {
+			return PsfGrid.micronsPer(v);
+		} catch (final IllegalArgumentException notALength) {
 			return Double.NaN;
 		}
 	}
