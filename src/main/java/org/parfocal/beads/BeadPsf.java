@@ -11,6 +11,7 @@ import java.util.Map;
 import org.parfocal.core.MemoryBudget;
 import org.parfocal.core.Monitor;
 import org.parfocal.core.Parallel;
+import org.parfocal.core.RobustStats;
 import org.parfocal.core.Smoothing;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;

@@ -14,6 +14,7 @@ import org.parfocal.core.VoxelSize;
 import org.parfocal.deconv.EstimateView;
 import org.parfocal.deconv.Level;
 import org.parfocal.deconv.Preprocessing;
+import org.parfocal.deconv.RichardsonLucyEngine;
 import org.parfocal.psf.Fwhm;
 import org.parfocal.psf.Optics;
 import org.parfocal.psf.PsfGrid;
@@ -91,7 +92,7 @@ public final class BlindDeconvolution {
 		for (int it = 1; it <= max; it++) {
 			mon.checkCancelled();
 			mon.progress(it - 1, max, "Blind deconvolution iteration " + it + " of " + max);
-			BlindSolver.Step last = null, obj = null, psf = null;
+			RichardsonLucyEngine.Step last = null, obj = null, psf = null;
 			for (int u = 0; u < options.objectUpdates(); u++) {
 				mon.checkCancelled();
 				last = obj = s.objectUpdate(mon::checkCancelled);
@@ -277,7 +278,7 @@ public final class BlindDeconvolution {
 		for (int it = 1; it <= max; it++) {
 			mon.checkCancelled();
 			mon.progress(plan.refine() ? max + it - 1 : it - 1, plan.refine() ? 2 * max : max, "Deconvolving with the fitted PSF: iteration " + it + " of " + max);
-			BlindSolver.Step obj = null;
+			RichardsonLucyEngine.Step obj = null;
 			for (int u = 0; u < options.objectUpdates(); u++) obj = s.objectUpdate(mon::checkCancelled);
 			final BlindReport rep = new BlindReport(it, max, obj.logLikelihood(), obj.relativeChange(), 0, obj.estimateSum(), obj.modelSum());
 			history.add(rep);

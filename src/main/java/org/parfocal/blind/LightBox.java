@@ -13,8 +13,9 @@ import org.parfocal.core.Volume;
  * than {@link #SHALLOW} of its brightest plane's light, the stack is too shallow to hold the cone and a note
  * says so.
  * <p>
- * Written here rather than with the widefield box rule of the PSF package, which was not there yet when this
- * was written (helper work in parallel); box sums from a summed-area table in double.
+ * Measured on the model's own light, where {@code psf/PsfExtent} sizes a widefield box from the optics'
+ * defocus cone: the blind engine's parameter spaces (a fitted Gaussian or widefield shape) have no aperture
+ * to draw a cone from. Box sums from a summed-area table in double.
  */
 public final class LightBox {
 

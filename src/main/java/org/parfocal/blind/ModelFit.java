@@ -257,10 +257,6 @@ public final class ModelFit {
 		public Settings withObjectTv(final double tv) {
 			return new Settings(candidateIterations, maxEvaluations, tv, uncertainty, photonsPerUnit);
 		}
-
-		public Settings withPhotonsPerUnit(final double s) {
-			return new Settings(candidateIterations, maxEvaluations, objectTv, uncertainty, s);
-		}
 	}
 
 	/** Seed of the split (fixed: the fit is deterministic). */

@@ -111,7 +111,7 @@ public final class BlockDeconvolution {
 			throw new IllegalArgumentException(String.format(Locale.ROOT,
 					"The background (%.4g) is at or above the brightest offset-corrected voxel (%.4g): nothing is left to deconvolve", background, stats[1]));
 		final double mean = stats[0] / total;
-		// the engine's own start (RichardsonLucySolver: max(mean − b, floor), floor = 1e-6·mean)
+		// the engine's own start (RichardsonLucyEngine: max(mean − b, floor), floor = 1e-6·mean)
 		final float start = (float) Math.max(mean - background, Math.max(1e-6 * mean, Float.MIN_NORMAL));
 		return new Levels(offset, background, start, List.copyOf(notes));
 	}

@@ -182,11 +182,6 @@ public record BlockPlan(int[] shape, int[] psfShape, int[] tiles, int[] halo, in
 		return blocks.size();
 	}
 
-	/** True when the plan is one block, the whole stack. */
-	public boolean single() {
-		return blocks.size() == 1;
-	}
-
 	/**
 	 * Weight of {@code block} at stack position {@code (x, y, z)} (0 outside its blended region): the product
 	 * over the axes of raised-cosine ramps across the inner faces. The weights of all blocks sum to 1.

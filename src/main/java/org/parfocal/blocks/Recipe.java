@@ -5,12 +5,14 @@ import java.util.LinkedHashMap;
 import java.util.Locale;
 import java.util.Map;
 
+import org.parfocal.core.SixteenBit;
 import org.parfocal.core.Volume;
 import org.parfocal.deconv.DeconvolutionMethod;
 import org.parfocal.deconv.DeconvolutionOptions;
 import org.parfocal.deconv.EdgeMode;
 import org.parfocal.deconv.Level;
 import org.parfocal.deconv.Stopping;
+import org.parfocal.provenance.CommandKeys;
 import org.parfocal.provenance.MacroOptions;
 import org.parfocal.provenance.Provenance;
 import org.parfocal.psf.Modality;
@@ -27,9 +29,10 @@ import org.parfocal.psf.PsfModels;
  * threshold edges offset background psf}; with {@code psf=from_optics} also {@code model modality na
  * immersion_index immersion_index_design sample_index coverslip_index coverslip_index_design
  * coverslip_thickness coverslip_thickness_design working_distance depth emission excitation pinhole
- * sheet_thickness voxel_xy voxel_z size_xy size_z}. Missing keys take the dialog's first-use defaults (without
- * {@code method}, {@code iterations} and {@code stop}: the default run, {@link org.parfocal.deconv.DefaultRun}). Other
- * keys ({@code image plot}) are ignored. Immutable. Not serialisable (the option records it holds are not):
+ * sheet_thickness voxel_xy voxel_z size_xy size_z}; {@code output} (32-bit or 16-bit). Missing keys take the dialog's first-use defaults (without
+ * {@code method}, {@code iterations} and {@code stop}: the default run, {@link org.parfocal.deconv.DefaultRun}). The
+ * other keys of {@code Deconvolve...} ({@code image plot watch recentre}, the watch keys) are ignored; a key it
+ * does not have is refused in one line naming the closest ({@link CommandKeys#requireKnown}), in every runner. Immutable. Not serialisable (the option records it holds are not):
  * it travels to cluster tasks as its options text, from which {@link #parse} makes it again.
  *
  * @param options the deconvolution options
@@ -37,8 +40,10 @@ import org.parfocal.psf.PsfModels;
  *        path), or null with optics
  * @param optics the PSF from the optics, or null with a file
  * @param text the macro options it came from
+ * @param sixteenBit {@code output=16-bit}: the output is stored as 16-bit values with a recorded scale and
+ *        offset ({@link org.parfocal.core.SixteenBit}); false for {@code output=32-bit} or no {@code output=}
  */
-public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf optics, String text) {
+public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf optics, String text, boolean sixteenBit) {
 
 	/** The {@code psf=} value that computes the PSF from the optics. */
 	public static final String FROM_OPTICS = "from_optics";
@@ -92,6 +97,8 @@ public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf opt
 	 * @param psfFromRecord the PSF file recorded with the options, used when {@code psf=} is not itself a file
 	 */
 	public static Recipe fromOptions(final Map<String, String> o, final String psfFromRecord) {
+		// the keys of Deconvolve... (a typo is refused as in a macro, not run with the default)
+		for (final String key : o.keySet()) CommandKeys.requireKnown(CommandKeys.DECONVOLVE, key);
 		final DeconvolutionMethod method = DeconvolutionMethod.parse(get(o, "method", org.parfocal.deconv.DefaultRun.METHOD.key()));
 		final int iterations = (int) whole(o, "iterations", org.parfocal.deconv.DefaultRun.CAP);
 		final double regularization = number(o, "regularization", 0.002);
@@ -103,17 +110,18 @@ public record Recipe(DeconvolutionOptions options, String psfPath, OpticsPsf opt
 				level("offset", get(o, "offset", "auto")), level("background", get(o, "background", org.parfocal.deconv.DefaultRun.BACKGROUND)));
 		final String psf = get(o, "psf", "");
 		final String text = MacroOptions.format(o);
-		if (FROM_OPTICS.equalsIgnoreCase(psf)) return new Recipe(d, null, optics(o), text);
+		final boolean sixteen = SixteenBit.requested(o.get("output"));
+		if (FROM_OPTICS.equalsIgnoreCase(psf)) return new Recipe(d, null, optics(o), text, sixteen);
 		// a value with a folder in it is a file name even if missing: the PSF loader then says the file does not exist
 		if (!psf.isEmpty() && (psf.contains("/") || psf.contains(java.io.File.separator) || java.nio.file.Files.isRegularFile(Path.of(psf))))
-			return new Recipe(d, psf, null, text);
-		if (psfFromRecord != null) return new Recipe(d, psfFromRecord, null, text);
-		return new Recipe(d, null, null, text);
+			return new Recipe(d, psf, null, text, sixteen);
+		if (psfFromRecord != null) return new Recipe(d, psfFromRecord, null, text, sixteen);
+		return new Recipe(d, null, null, text, sixteen);
 	}
 
 	/** This recipe with its PSF taken from {@code file}. */
 	public Recipe withPsfFile(final String file) {
-		return new Recipe(options, file, null, text);
+		return new Recipe(options, file, null, text, sixteenBit);
 	}
 
 	/** @throws IllegalArgumentException when the recipe does not say where its PSF comes from */

@@ -17,6 +17,7 @@ import org.parfocal.blocks.BlockPlan;
 import org.parfocal.blocks.Recipe;
 import org.parfocal.conv.Psfs;
 import org.parfocal.core.Monitor;
+import org.parfocal.core.SixteenBit;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 import org.parfocal.ij1.ImageBridge;
@@ -47,25 +48,15 @@ public final class BlockRunner {
 	}
 
 	static int runMain(final String[] args) {
-		String budget = null, block = null, psf = null, threads = null;
-		final java.util.List<String> pos = new java.util.ArrayList<>();
-		for (int i = 0; i < args.length; i++) {
-			final String a = args[i];
-			if (a.startsWith("--") && i + 1 >= args.length) return usage("missing value after " + a);
-			switch (a) {
-			case "--budget" -> budget = args[++i];
-			case "--block" -> block = args[++i];
-			case "--psf" -> psf = args[++i];
-			case "--threads" -> threads = args[++i];
-			default -> {
-				if (a.startsWith("--")) return usage("unknown option " + a);
-				pos.add(a);
-			}
-			}
-		}
-		if (pos.size() != 3) return usage(null);
+		final RunArgs a;
 		try {
-			return runChecked(pos, budget, block, psf, threads);
+			a = RunArgs.parse(args);
+		} catch (final RunArgs.Usage e) {
+			return usage(e.getMessage());
+		}
+		if (a.positional().size() != 3) return usage(null);
+		try {
+			return runChecked(a);
 		} catch (final RuntimeException e) {
 			// Parallelization wraps what the task threw
 			Throwable c = e;
@@ -82,16 +73,16 @@ public final class BlockRunner {
 		}
 	}
 
-	private static int runChecked(final java.util.List<String> pos, final String budget, final String block, final String psf, final String threads) {
+	private static int runChecked(final RunArgs a) {
+		final java.util.List<String> pos = a.positional();
 		try {
 			final long start = System.nanoTime();
-			final Recipe base = readRecipe(pos.get(0));
+			final Recipe recipe = a.recipe(0);
 			// --psf A.tif,B.tif: one PSF per channel (Zarr inputs with channels)
-			final java.util.List<String> psfs = psf == null ? java.util.List.of() : java.util.List.of(psf.split(","));
-			final Recipe recipe = psf != null ? base.withPsfFile(psfs.get(0)) : base;
-			final long bytes = budget == null ? 0 : (long) (positive(budget, "--budget") * 1024 * 1024);
-			final int[] tile = block == null ? null : tiles(block);
-			final int n = threads == null ? Runtime.getRuntime().availableProcessors() : threads(threads);
+			final java.util.List<String> psfs = a.psfs();
+			final long bytes = a.budgetBytes();
+			final int[] tile = a.tile();
+			final int n = a.threads() > 0 ? a.threads() : Runtime.getRuntime().availableProcessors();
 			final Path in = Path.of(pos.get(1)), outPath = Path.of(pos.get(2));
 			final Outcome out = Parallelization.runWithNumThreads(n, () -> ZarrBlockRunner.handles(in, outPath)
 					? ZarrBlockRunner.run(recipe, psfs, in, outPath, bytes, tile, Monitor.NONE)
@@ -131,18 +122,46 @@ public final class BlockRunner {
 			final Volume psf = loadPsf(recipe, source.voxelSize(), source.shape()[2]);
 			final BlockPlan plan = tile != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), tile)
 					: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), budget > 0 ? budget : BlockPlan.heapBudget());
-			final Provenance.Builder prov = Provenance.of("Deconvolve", recipe.text())
-					.input(new Provenance.Input("image", input.getFileName().toString(), input.toAbsolutePath().toString(), null,
-							source.shape()[0] + "x" + source.shape()[1] + "x" + source.shape()[2], null))
-					.run("block_plan", plan.describe()).run("runner", "BlockRunner");
-			if (recipe.psfPath() != null) prov.input(new Provenance.Input("psf", Path.of(recipe.psfPath()).getFileName().toString(), recipe.psfPath(), null,
-					psf.nx() + "x" + psf.ny() + "x" + psf.nz(), null));
-			prov.versions(BlockRunner.class.getPackage().getImplementationVersion(), IJ.getVersion(), System.getProperty("java.version"))
-					.timing(0, Parallelization.getTaskExecutor().getParallelism(), Instant.now().toString());
-			final TiffBlockSink sink = new TiffBlockSink(output, source.shape(), source.voxelSize(), prov.build().toInfoText());
+			final TiffBlockSink sink = sink(output, source.shape(), source.voxelSize(), recipe,
+					provenance(recipe, input, source.shape(), psf, plan, "BlockRunner", Parallelization.getTaskExecutor().getParallelism()));
 			final BlockDeconvolution.Result r = BlockDeconvolution.run(source, psf, recipe.options(), plan, sink, monitor);
 			return new Outcome(plan, r, sink.output());
 		}
+	}
+
+	/** The provenance record of a block-wise run of one TIFF stack (the runners' name in {@code runner}). */
+	public static Provenance.Builder provenance(final Recipe recipe, final Path input, final int[] shape, final Volume psf, final BlockPlan plan,
+			final String runner, final int threads) {
+		final Provenance.Builder prov = Provenance.of("Deconvolve", recipe.text())
+				.input(new Provenance.Input("image", input.getFileName().toString(), input.toAbsolutePath().toString(), null,
+						shape[0] + "x" + shape[1] + "x" + shape[2], null))
+				.run("block_plan", plan.describe()).run("runner", runner);
+		if (recipe.psfPath() != null) prov.input(new Provenance.Input("psf", Path.of(recipe.psfPath()).getFileName().toString(), recipe.psfPath(), null,
+				psf.nx() + "x" + psf.ny() + "x" + psf.nz(), null));
+		return prov.versions(BlockRunner.class.getPackage().getImplementationVersion(), IJ.getVersion(), System.getProperty("java.version"))
+				.timing(0, threads, Instant.now().toString());
+	}
+
+	/**
+	 * The TIFF output of a block-wise run, 32-bit, or 16-bit for {@code output=16-bit}: then its Info is
+	 * {@link #sixteenBitInfo}, with the scaling decided at commit for the whole volume.
+	 */
+	public static TiffBlockSink sink(final Path output, final int[] shape, final VoxelSize voxelSize, final Recipe recipe, final Provenance.Builder prov) {
+		final TiffBlockSink sink = new TiffBlockSink(output, shape, voxelSize, prov.build().toInfoText());
+		return recipe.sixteenBit() ? sink.sixteenBit(s -> sixteenBitInfo(prov, s)) : sink;
+	}
+
+	/**
+	 * The Info of a 16-bit output as the menu command writes it: the scaling line, then the record with
+	 * {@code output_depth}, {@code output_offset} and {@code output_scale} in its run facts.
+	 */
+	public static String sixteenBitInfo(final Provenance.Builder prov, final SixteenBit.Scaling s) {
+		return s.infoLine() + "\n" + sixteenBitRecord(prov, s).build().toInfoText();
+	}
+
+	/** {@code prov} with the 16-bit run facts the menu command records: {@code output_depth output_offset output_scale}. */
+	public static Provenance.Builder sixteenBitRecord(final Provenance.Builder prov, final SixteenBit.Scaling s) {
+		return prov.run("output_depth", SixteenBit.KEY).run("output_offset", s.offset()).run("output_scale", s.scale());
 	}
 
 	/** Recipe from a file (options text or provenance JSON) or from the argument itself. */
@@ -183,37 +202,13 @@ public final class BlockRunner {
 		return psf;
 	}
 
-	/** Most threads a run may ask for (ImageJ's and ImgLib2's pools take up to 32767; far more than any machine has cores). */
-	static final int MAX_THREADS = 1024;
-
-	private static int threads(final String s) {
-		final double v = positive(s, "--threads");
-		if (v != Math.rint(v) || v > MAX_THREADS)
-			throw new IllegalArgumentException("--threads takes a whole number from 1 to " + MAX_THREADS + " (this machine has "
-					+ Runtime.getRuntime().availableProcessors() + " cores), got " + s);
-		return (int) v;
-	}
-
-	private static int[] tiles(final String s) {
-		final String[] p = s.split(",");
-		final int[] t = new int[p.length];
-		for (int i = 0; i < p.length; i++) t[i] = (int) positive(p[i], "--block");
-		return t;
-	}
-
-	private static double positive(final String s, final String what) {
-		try {
-			final double v = Double.parseDouble(s.trim());
-			if (!(v > 0)) throw new IllegalArgumentException(what + " must be positive, got " + s);
-			return v;
-		} catch (final NumberFormatException e) {
-			throw new IllegalArgumentException(what + " takes a number, got '" + s + "'");
-		}
-	}
-
 	private static int usage(final String problem) {
-		if (problem != null) System.err.println("Error: " + problem);
-		System.err.println("Usage: BlockRunner <recipe (options file, provenance JSON or options text)> <input.tif|.zarr> <output.tif|.zarr> [--budget MB] [--block X,Y,Z] [--psf FILE[,FILE per channel]] [--threads N]");
+		if (problem != null) {
+			System.err.println("Error: " + problem);
+			return HeadlessMacro.EXIT_USAGE;
+		}
+		System.err.println("Usage: BlockRunner <recipe (options file, provenance JSON or options text)> <input.tif|.zarr> <output.tif|.zarr> [options: "
+				+ RunArgs.OPTIONS + "]");
 		return HeadlessMacro.EXIT_USAGE;
 	}
 }

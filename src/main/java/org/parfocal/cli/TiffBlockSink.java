@@ -15,14 +15,17 @@ import ij.io.FileInfo;
 import ij.io.TiffEncoder;
 import ij.process.FloatProcessor;
 import ij.process.ImageProcessor;
+import ij.process.ShortProcessor;
 
 import org.parfocal.blocks.BlockSink;
 import org.parfocal.core.OutputFiles;
+import org.parfocal.core.SixteenBit;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 
 /**
- * A block-wise result written to a 32-bit TIFF stack on disk without holding it in memory.
+ * A block-wise result written to a 32-bit TIFF stack on disk without holding it in memory (or a 16-bit one with
+ * its scale and offset, {@link #sixteenBit}).
  * <p>
  * Blocks are added into a scratch file of raw floats ({@code .NAME.PID-RANDOM.accumulating}, beside the output;
  * PID is this process, so every run has its own). On {@link #commit()} ImageJ's {@link TiffEncoder} writes the
@@ -41,6 +44,8 @@ public final class TiffBlockSink implements BlockSink {
 	private final String info;
 	private FileChannel channel;
 	private boolean done;
+	private java.util.function.Function<SixteenBit.Scaling, String> sixteenBitInfo;
+	private SixteenBit.Scaling scaling;
 
 	/**
 	 * @param info text for the image's Info (ImageJ shows it with Image &gt; Show Info; provenance goes here)
@@ -103,6 +108,24 @@ public final class TiffBlockSink implements BlockSink {
 		return notes;
 	}
 
+	/**
+	 * Stores the output as 16-bit values ({@code output=16-bit}). The scaling is decided once for the whole
+	 * volume, at {@link #commit()}, from the smallest and largest value of the assembled result (so the rule of the
+	 * menu command's 16-bit output, {@link SixteenBit}, not a guess from the input or one block); blocks are
+	 * accumulated as 32-bit floats until then. The TIFF carries it as ImageJ's calibration function (a straight
+	 * line: ImageJ shows and measures the real values), and the Info is {@code info(scaling)}: the provenance
+	 * record with the scale and offset in it.
+	 */
+	public TiffBlockSink sixteenBit(final java.util.function.Function<SixteenBit.Scaling, String> info) {
+		sixteenBitInfo = info;
+		return this;
+	}
+
+	/** The 16-bit scaling used (after {@link #commit()} of a {@link #sixteenBit} output), else null. */
+	public SixteenBit.Scaling scaling() {
+		return scaling;
+	}
+
 	/** The output path (exists only after {@link #commit()}; after it, the name actually taken). */
 	public Path output() {
 		return output;
@@ -152,11 +175,22 @@ public final class TiffBlockSink implements BlockSink {
 		try {
 			final FileInfo fi = new FileInfo();
 			fi.fileFormat = FileInfo.TIFF;
-			fi.fileType = FileInfo.GRAY32_FLOAT;
 			fi.width = nx;
 			fi.height = ny;
 			fi.nImages = nz;
-			fi.info = info;
+			String calibration = "";
+			if (sixteenBitInfo != null) {
+				final SixteenBit.Range range = new SixteenBit.Range();
+				for (int z = 0; z < nz; z++) range.add(plane(z));
+				scaling = range.scaling();
+				fi.fileType = FileInfo.GRAY16_UNSIGNED;
+				fi.info = sixteenBitInfo.apply(scaling);
+				// what ImageJ's FileSaver writes for a straight-line calibration, and its FileOpener reads back
+				calibration = "cf=" + ij.measure.Calibration.STRAIGHT_LINE + "\nc0=" + scaling.offset() + "\nc1=" + scaling.scale() + "\nvunit=intensity\n";
+			} else {
+				fi.fileType = FileInfo.GRAY32_FLOAT;
+				fi.info = info;
+			}
 			// ImageJ's own spelling of µm, which survives the TIFF's ASCII description
 			final String unit = voxelSize.unit().equals("µm") || voxelSize.unit().equals("um") ? "micron" : voxelSize.unit();
 			if (voxelSize.isCalibrated()) {
@@ -166,8 +200,8 @@ public final class TiffBlockSink implements BlockSink {
 				fi.unit = unit;
 			}
 			fi.description = "ImageJ=" + ij.IJ.getVersion() + "\n" + (nz > 1 ? "images=" + nz + "\nslices=" + nz + "\n" : "")
-					+ (voxelSize.isCalibrated() ? "unit=" + unit + "\nspacing=" + voxelSize.dz() + "\n" : "") + "loop=false\n";
-			if (nz == 1) fi.pixels = plane(0);
+					+ (voxelSize.isCalibrated() ? "unit=" + unit + "\nspacing=" + voxelSize.dz() + "\n" : "") + calibration + "loop=false\n";
+			if (nz == 1) fi.pixels = scaling != null ? scaling.stored(plane(0)) : plane(0);
 			else fi.virtualStack = new ScratchStack();
 			try (OutputStream out = new BufferedOutputStream(Files.newOutputStream(partial, StandardOpenOption.CREATE_NEW), 1 << 20)) {
 				new TiffEncoder(fi).write(out);
@@ -214,12 +248,13 @@ public final class TiffBlockSink implements BlockSink {
 
 		@Override
 		public int getBitDepth() {
-			return 32;
+			return scaling != null ? 16 : 32;
 		}
 
 		@Override
 		public ImageProcessor getProcessor(final int n) {
 			try {
+				if (scaling != null) return new ShortProcessor(nx, ny, scaling.stored(plane(n - 1)), null);
 				return new FloatProcessor(nx, ny, plane(n - 1));
 			} catch (final IOException e) {
 				throw new java.io.UncheckedIOException(e);

@@ -41,6 +41,16 @@ public final class ZarrBlockRunner {
 		return OmeZarr.isZarr(input) || OmeZarr.isZarr(output);
 	}
 
+	/**
+	 * Completes an OME-Zarr output with its record: 32-bit as written, or for {@code output=16-bit} converted to
+	 * uint16 with one scaling for the whole image, recorded ({@link OmeZarr.Writer#completeSixteenBit}).
+	 */
+	public static void complete(final OmeZarr.Writer w, final VoxelSize voxelSize, final Recipe recipe, final Provenance.Builder record)
+			throws IOException {
+		if (recipe.sixteenBit()) w.completeSixteenBit(voxelSize, s -> BlockRunner.sixteenBitRecord(record, s).build().toJson());
+		else w.complete(voxelSize, record.build().toJson());
+	}
+
 	/** What an input holds: frames, channels, {nx, ny, nz}, voxel size, chunk shape {x, y, z} for the output. */
 	public record Layout(int frames, int channels, int[] shape, VoxelSize voxelSize, int[] chunk) {}
 
@@ -118,7 +128,7 @@ public final class ZarrBlockRunner {
 	}
 
 	/** The provenance record of a Zarr run (as the TIFF runs record it, with the plan of each channel). */
-	public static Provenance provenance(final Recipe recipe, final List<String> psfFiles, final Path input, final Layout l, final List<BlockPlan> plans,
+	public static Provenance.Builder provenance(final Recipe recipe, final List<String> psfFiles, final Path input, final Layout l, final List<BlockPlan> plans,
 			final String runner, final int threads) {
 		final Provenance.Builder prov = Provenance.of("Deconvolve", recipe.text())
 				.input(new Provenance.Input("image", input.getFileName().toString(), input.toAbsolutePath().toString(), null,
@@ -135,7 +145,7 @@ public final class ZarrBlockRunner {
 		}
 		return prov.run("runner", runner).run("frames", l.frames()).run("channels", l.channels())
 				.versions(BlockRunner.class.getPackage().getImplementationVersion(), IJ.getVersion(), System.getProperty("java.version"))
-				.timing(0, threads, Instant.now().toString()).build();
+				.timing(0, threads, Instant.now().toString());
 	}
 
 	/**
@@ -153,13 +163,13 @@ public final class ZarrBlockRunner {
 		final Layout l = pl.output();
 		final List<BlockPlan> plans = pl.plans();
 		final int threads = Parallelization.getTaskExecutor().getParallelism();
-		final String prov = provenance(recipe, psfFiles, input, l, plans, "BlockRunner", threads).toJson();
+		final Provenance.Builder record = provenance(recipe, psfFiles, input, l, plans, "BlockRunner", threads);
 		if (!OmeZarr.isZarr(output)) {
 			if (l.frames() * l.channels() != 1)
 				throw new IllegalArgumentException(input.getFileName() + " has " + l.frames() + " frame(s) and " + l.channels()
 						+ " channel(s): write them to a .zarr output (a TIFF output takes one frame and channel)");
 			try (BlockSource s = openSource(input, 0, 0)) {
-				final TiffBlockSink sink = new TiffBlockSink(output, l.shape(), l.voxelSize(), Provenance.fromJson(prov).toInfoText());
+				final TiffBlockSink sink = BlockRunner.sink(output, l.shape(), l.voxelSize(), recipe, record);
 				final BlockDeconvolution.Result r = BlockDeconvolution.run(s, psf.get(0), recipe.options(), plans.get(0), sink, monitor);
 				return new BlockRunner.Outcome(plans.get(0), r, output);
 			}
@@ -174,7 +184,7 @@ public final class ZarrBlockRunner {
 						final ZarrBlockSink sink = new ZarrBlockSink(w, t, c, plans.get(c), fragments);
 						last = BlockDeconvolution.run(s, psf.get(c), recipe.options(), plans.get(c), sink, monitor);
 					}
-			w.complete(l.voxelSize(), prov);
+			complete(w, l.voxelSize(), recipe, record);
 			return new BlockRunner.Outcome(plans.get(0), last, output);
 		} catch (final IOException | RuntimeException | Error e) {
 			w.abort();

@@ -65,7 +65,7 @@ public final class ConvolutionOperator {
 		this.fft = new RealFft(padded[0], padded[1], padded[2]);
 		this.rs = fft.rowStride();
 		final float[] spectrum = fft.newGrid();
-		wrappedKernel(psf, spectrum);
+		Psfs.place(psf.data(), k, spectrum, padded, rs, new int[3], false); // origin at voxel 0, wrapping around
 		fft.transferFunctionInPlace(spectrum);
 		// rearranged for the fused product (sequential reads); the spectrum-layout copy is dropped
 		this.transfer = fft.lineTransfer(spectrum, fft.newGrid());
@@ -183,21 +183,6 @@ public final class ConvolutionOperator {
 	private void checkImage(final float[] a) {
 		if (a.length != n[0] * n[1] * n[2])
 			throw new IllegalArgumentException("Array of " + a.length + " values does not match the operator's image " + shapeText(n));
-	}
-
-	/** PSF placed with its origin at index 0 of the padded grid (wrapping around), in the in-place layout. */
-	private void wrappedKernel(final Volume psf, final float[] kernel) {
-		final float[] h = psf.data();
-		for (int z = 0; z < k[2]; z++) {
-			final int pz = Math.floorMod(z - (k[2] - 1) / 2, padded[2]);
-			for (int y = 0; y < k[1]; y++) {
-				final int py = Math.floorMod(y - (k[1] - 1) / 2, padded[1]);
-				for (int x = 0; x < k[0]; x++) {
-					final int px = Math.floorMod(x - (k[0] - 1) / 2, padded[0]);
-					kernel[px + rs * (py + padded[1] * pz)] = h[x + k[0] * (y + k[1] * z)];
-				}
-			}
-		}
 	}
 
 	/** P ← E x on the rows of the extended image (the other rows of E x are zero and never read). */

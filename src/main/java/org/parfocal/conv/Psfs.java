@@ -1,5 +1,6 @@
 package org.parfocal.conv;
 
+import org.parfocal.core.Trilinear;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 
@@ -12,6 +13,28 @@ public final class Psfs {
 
 	private Psfs() {}
 
+	/**
+	 * The one placement of a PSF on an FFT grid: PSF voxel (x, y, z) of a k[0] × k[1] × k[2] kernel (x fastest)
+	 * goes to grid voxel (x − c + s) mod p per axis, c = ⌊(k − 1)/2⌋ the PSF origin, s a shift (0: the origin
+	 * at grid voxel 0, wrapping around), on a grid of p[0] × p[1] × p[2] with {@code rowStride} floats per row
+	 * (p[0] for a plain real array, the in-place row length for {@code RealFft}'s grids). {@code gather}: the
+	 * other way, kernel ← the grid's values at those voxels; otherwise the kernel is added to the grid.
+	 */
+	public static void place(final float[] kernel, final int[] k, final float[] grid, final int[] p, final int rowStride, final int[] shift,
+			final boolean gather) {
+		for (int z = 0; z < k[2]; z++) {
+			final int qz = Math.floorMod(z - (k[2] - 1) / 2 + shift[2], p[2]);
+			for (int y = 0; y < k[1]; y++) {
+				final int qy = Math.floorMod(y - (k[1] - 1) / 2 + shift[1], p[1]);
+				for (int x = 0, j = k[0] * (y + k[1] * z); x < k[0]; x++, j++) {
+					final int q = Math.floorMod(x - (k[0] - 1) / 2 + shift[0], p[0]) + rowStride * (qy + p[1] * qz);
+					if (gather) kernel[j] = grid[q];
+					else grid[q] += kernel[j];
+				}
+			}
+		}
+	}
+
 	/** Copy scaled to unit sum. @throws IllegalArgumentException if the sum is not positive and finite */
 	public static Volume normalized(final Volume psf) {
 		final double s = psf.sum();
@@ -21,11 +44,6 @@ public final class Psfs {
 		final float[] d = out.data();
 		for (int i = 0; i < d.length; i++) d[i] = (float) (d[i] / s);
 		return out;
-	}
-
-	/** True if the PSF sums to 1 within {@code tol}. */
-	public static boolean isNormalized(final Volume psf, final double tol) {
-		return Math.abs(psf.sum() - 1) <= tol;
 	}
 
 	/** Copy with negative values set to zero; the count of clipped values is returned in {@code clipped[0]}. */
@@ -154,36 +172,18 @@ public final class Psfs {
 			kn[d] = 2 * half + 1;
 			cn[d] = half;
 		}
-		final Volume out = Volume.zeros(kn[0], kn[1], kn[2], target);
-		for (int z = 0; z < kn[2]; z++) {
-			final double pz = k[2] == 1 ? 0 : c[2] + (z - cn[2]) * dNew[2] / dOld[2];
-			for (int y = 0; y < kn[1]; y++) {
-				final double py = c[1] + (y - cn[1]) * dNew[1] / dOld[1];
-				for (int x = 0; x < kn[0]; x++) {
-					final double px = c[0] + (x - cn[0]) * dNew[0] / dOld[0];
-					out.set(x, y, z, (float) trilinear(psf, px, py, pz));
-				}
-			}
+		// output index i samples the input at c + (i − cn)·new/old along each axis, zero beyond the PSF's box
+		final Trilinear.Axis[] axes = new Trilinear.Axis[3];
+		for (int d = 0; d < 3; d++) {
+			final double[] p = new double[kn[d]];
+			for (int i = 0; i < kn[d]; i++) p[i] = k[d] == 1 ? 0 : c[d] + (i - cn[d]) * dNew[d] / dOld[d];
+			axes[d] = Trilinear.Axis.zeroOutside(p, k[d]);
 		}
+		final Volume out = Trilinear.sample(psf, axes[0], axes[1], axes[2], target);
 		final double sum = out.sum();
 		if (!(sum > 0)) throw new IllegalArgumentException("The PSF resampled to " + target + " is empty");
 		final float[] d = out.data();
 		for (int i = 0; i < d.length; i++) d[i] = (float) (d[i] / sum);
 		return out;
-	}
-
-	private static double trilinear(final Volume v, final double x, final double y, final double z) {
-		final int x0 = (int) Math.floor(x), y0 = (int) Math.floor(y), z0 = (int) Math.floor(z);
-		final double fx = x - x0, fy = y - y0, fz = z - z0;
-		double s = 0;
-		for (int dz = 0; dz <= 1; dz++)
-			for (int dy = 0; dy <= 1; dy++)
-				for (int dx = 0; dx <= 1; dx++) {
-					final int xi = x0 + dx, yi = y0 + dy, zi = z0 + dz;
-					if (xi < 0 || yi < 0 || zi < 0 || xi >= v.nx() || yi >= v.ny() || zi >= v.nz()) continue;
-					final double w = (dx == 0 ? 1 - fx : fx) * (dy == 0 ? 1 - fy : fy) * (dz == 0 ? 1 - fz : fz);
-					if (w != 0) s += w * v.get(xi, yi, zi);
-				}
-		return s;
 	}
 }

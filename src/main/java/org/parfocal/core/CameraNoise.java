@@ -48,11 +48,6 @@ public record CameraNoise(double gain, double readNoise, double intercept, int b
 		return 1 / gain;
 	}
 
-	/** Read noise in photons, σ/g (NaN if unknown). */
-	public double readNoisePhotons() {
-		return readNoise / gain;
-	}
-
 	/** One line for the Log. */
 	public String describe() {
 		return String.format(Locale.ROOT, "gain %.4g units per photon (%.4g photons per unit), read noise %s", gain, 1 / gain,
@@ -158,15 +153,15 @@ public record CameraNoise(double gain, double readNoise, double intercept, int b
 		return (float) ((y[(int) (i - 2 * s)] - 4.0 * y[(int) (i - s)] + 6.0 * y[(int) i] - 4.0 * y[(int) (i + s)] + y[(int) (i + 2 * s)]) / NORM);
 	}
 
-	/** Variance of the values within ±3 MAD-σ of the median, corrected to a normal's variance. */
+	/** Variance of the values within ±3 MAD-σ of the high median ({@link RobustStats#highMedianOfSorted}), corrected to a normal's variance. */
 	static double robustVariance(final float[] d) {
 		final float[] s = d.clone();
 		Arrays.sort(s);
-		final double med = s[s.length / 2];
+		final double med = RobustStats.highMedianOfSorted(s, s.length);
 		final float[] dev = new float[s.length];
 		for (int i = 0; i < s.length; i++) dev[i] = (float) Math.abs(s[i] - med);
 		Arrays.sort(dev);
-		final double sigma = 1.4826 * dev[dev.length / 2];
+		final double sigma = RobustStats.MAD_TO_SIGMA * RobustStats.highMedianOfSorted(dev, dev.length);
 		final double cut = sigma > 0 ? 3 * sigma : Double.POSITIVE_INFINITY;
 		double sum = 0, sum2 = 0;
 		int n = 0;

@@ -22,6 +22,16 @@ public final class Sums {
 		return s.value();
 	}
 
+	/**
+	 * Σ a[i] in index order with compensation: the sum of per-row partial sums, which is then independent of
+	 * the thread count that made them.
+	 */
+	public static double sum(final double[] a) {
+		final Compensated s = new Compensated();
+		for (final double v : a) s.add(v);
+		return s.value();
+	}
+
 	/** Σ a[i]·b[i] with compensation. */
 	public static double dot(final float[] a, final float[] b) {
 		if (a.length != b.length) throw new IllegalArgumentException("Arrays differ in length: " + a.length + " vs " + b.length);

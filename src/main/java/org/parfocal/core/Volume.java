@@ -2,11 +2,6 @@ package org.parfocal.core;
 
 import java.util.Arrays;
 
-import net.imglib2.img.array.ArrayImg;
-import net.imglib2.img.array.ArrayImgs;
-import net.imglib2.img.basictypeaccess.array.FloatArray;
-import net.imglib2.type.numeric.real.FloatType;
-
 /**
  * A 2D or 3D single-precision image: a function f: {0..nx-1} × {0..ny-1} × {0..nz-1} → ℝ stored in one
  * {@code float[]} with x fastest, then y, then z ({@code index = x + nx * (y + ny * z)}), the order of an
@@ -15,7 +10,6 @@ import net.imglib2.type.numeric.real.FloatType;
  * The pixel array is exposed on purpose: hot loops in the core run on arrays (a plain loop over a
  * {@code float[]} is several times faster than a cursor here). A {@code Volume} is therefore mutable;
  * methods that must not change their input say so, and the ImageJ bridge always hands the core a copy.
- * {@link #asImg()} gives a zero-copy ImgLib2 view of the same pixels.
  * <p>
  * One volume holds at most {@code Integer.MAX_VALUE - 8} voxels (Java array limit); larger stacks are
  * processed in blocks.
@@ -92,9 +86,6 @@ public final class Volume {
 
 	/** True if both have the same {nx, ny, nz}. */
 	public boolean sameShape(final Volume o) { return nx == o.nx && ny == o.ny && nz == o.nz; }
-
-	/** Zero-copy ImgLib2 view (3 dimensions, nz may be 1). */
-	public ArrayImg<FloatType, FloatArray> asImg() { return ArrayImgs.floats(data, nx, ny, nz); }
 
 	/** Sum of all voxels, in double with compensated (Kahan–Neumaier) summation. */
 	public double sum() { return Sums.sum(data); }

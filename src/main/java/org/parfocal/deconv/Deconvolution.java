@@ -96,7 +96,7 @@ public final class Deconvolution {
 		for (int it = 1; it <= max; it++) {
 			mon.checkCancelled();
 			mon.progress(it - 1, max, name + " iteration " + it + " of " + max);
-			final RichardsonLucySolver.Step st = s.iterate(mon::checkCancelled);
+			final RichardsonLucyEngine.Step st = s.iterate(mon::checkCancelled);
 			final IterationReport rep = new IterationReport(it, max, st.logLikelihood(), st.relativeChange(), st.estimateSum(), st.modelSum());
 			history.add(rep);
 			done = it;

@@ -28,6 +28,40 @@ public record Level(Kind kind, double value) {
 
 	public static Level of(final double value) { return new Level(Kind.VALUE, value); }
 
+	/**
+	 * Reads the macro or dialog text of {@code key} ({@code offset} or {@code background}): "auto" = estimated,
+	 * "0" or "" = none, "dark" = the darkest region (background only), else a number; with {@code fit}, "fit" and
+	 * "fit-smooth" = fitted with the object (background only; refused with a line where no fit is available).
+	 */
+	public static Level parse(final String key, final String text, final boolean fit) {
+		if (text.isEmpty() || text.equals("0")) return NONE;
+		if ((text.equalsIgnoreCase("fit") || text.equalsIgnoreCase("fit-smooth")) && key.equals("background")) {
+			// fitted with the object inside Richardson–Lucy (BackgroundFit): a constant, or slowly varying
+			if (fit) return text.equalsIgnoreCase("fit") ? FIT : FIT_SMOOTH;
+			throw new IllegalArgumentException("background=" + text + " is available in Deconvolve only: give a number, auto or dark");
+		}
+		if (text.equalsIgnoreCase("auto")) return ESTIMATED;
+		if (text.equalsIgnoreCase("dark") && key.equals("background")) return DARK; // the darkest region (background only)
+		try {
+			final double v = Double.parseDouble(text);
+			return v == 0 ? NONE : of(v);
+		} catch (final NumberFormatException e) {
+			throw new IllegalArgumentException("'" + text + "' is not a number or auto (" + key + "=)");
+		}
+	}
+
+	/** The macro text of this level ({@link #parse} reads it back): auto, dark, fit, fit-smooth, 0 or the number. */
+	public String macroValue() {
+		return switch (kind) {
+		case ESTIMATED -> "auto";
+		case DARK -> "dark";
+		case FIT -> "fit";
+		case FIT_SMOOTH -> "fit-smooth";
+		case NONE -> "0";
+		default -> org.parfocal.provenance.MacroOptions.number(value);
+		};
+	}
+
 	@Override
 	public String toString() {
 		return kind == Kind.VALUE ? Double.toString(value) : kind.name().toLowerCase(java.util.Locale.ROOT);

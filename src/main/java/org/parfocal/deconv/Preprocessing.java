@@ -7,6 +7,7 @@ import java.util.Locale;
 
 import org.parfocal.conv.ConvolutionOperator;
 import org.parfocal.conv.Psfs;
+import org.parfocal.core.RobustStats;
 import org.parfocal.core.Volume;
 
 /**
@@ -132,16 +133,16 @@ public final class Preprocessing {
 	 */
 	public static double estimateBackground(final float[] y) {
 		float[] s = sortedSample(y);
-		double med = median(s, s.length);
+		double med = RobustStats.medianOfSorted(s, s.length);
 		for (int round = 0; round < 5; round++) {
 			final float[] dev = new float[s.length];
 			for (int i = 0; i < s.length; i++) dev[i] = (float) Math.abs(s[i] - med);
 			Arrays.sort(dev);
-			final double sigma = 1.4826 * median(dev, dev.length);
+			final double sigma = RobustStats.MAD_TO_SIGMA * RobustStats.medianOfSorted(dev, dev.length);
 			final double cut = med + 3 * sigma;
 			int keep = s.length;
 			while (keep > 1 && s[keep - 1] > cut) keep--;
-			final double next = median(s, keep);
+			final double next = RobustStats.medianOfSorted(s, keep);
 			s = Arrays.copyOf(s, keep);
 			if (next == med) break;
 			med = next;
@@ -172,10 +173,6 @@ public final class Preprocessing {
 				}
 		Arrays.sort(means);
 		return means[(int) Math.floor(0.02 * (means.length - 1))];
-	}
-
-	private static double median(final float[] sorted, final int n) {
-		return n % 2 == 1 ? sorted[n / 2] : 0.5 * ((double) sorted[n / 2 - 1] + sorted[n / 2]);
 	}
 
 	private static float[] sortedSample(final float[] a) {

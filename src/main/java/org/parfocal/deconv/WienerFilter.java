@@ -1,5 +1,6 @@
 package org.parfocal.deconv;
 
+import org.parfocal.conv.Psfs;
 import org.parfocal.core.Boundary;
 import org.parfocal.core.MemoryBudget;
 import org.parfocal.core.Parallel;
@@ -39,11 +40,7 @@ final class WienerFilter {
 		for (int d = 0; d < 3; d++) p[d] = mode == EdgeMode.PERIODIC ? n[d] : FastSizes.next(n[d] + k[d] - 1);
 		final RealFft fft = new RealFft(p[0], p[1], p[2]);
 		final float[] real = new float[fft.realLength()];
-		// kernel with its origin at index 0, wrapped
-		for (int z = 0; z < k[2]; z++)
-			for (int yy = 0; yy < k[1]; yy++)
-				for (int xx = 0; xx < k[0]; xx++)
-					real[Math.floorMod(xx - (k[0] - 1) / 2, p[0]) + p[0] * (Math.floorMod(yy - (k[1] - 1) / 2, p[1]) + p[1] * Math.floorMod(z - (k[2] - 1) / 2, p[2]))] += psf.get(xx, yy, z);
+		Psfs.place(psf.data(), k, real, p, p[0], new int[3], false); // kernel with its origin at index 0, wrapped
 		final float[] hs = fft.newSpectrum(), ys = fft.newSpectrum();
 		fft.forward(real, hs);
 		// data minus background, extended over the grid

@@ -478,7 +478,7 @@ public final class RealFft {
 		Parallel.forRange(in.count(), i -> forwardRow(src, srcStride, spec, in.row(i, ny), before));
 	}
 
-	/** Real transform of row r, unpacked from JTransforms' packed layout into h complex values. */
+	/** Real transform of row r into h complex values: by the split plan, or by JTransforms and unpacked from its packed layout. */
 	private void forwardRow(final float[] src, final int srcStride, final float[] spec, final int r, final RowAction before) {
 		final int stride = 2 * h, o = r * stride;
 		if (before != null) before.row(r, r * srcStride);
@@ -630,16 +630,16 @@ public final class RealFft {
 		}
 	}
 
-	/** Per-thread plans and line buffers. */
+	/** Per-thread plans and line buffers: along each axis a split plan or, for other lengths, a JTransforms plan. */
 	private final class Lines {
-		final FloatFFT_1D x = nx > 1 ? new FloatFFT_1D(nx) : null;
-		final FloatFFT_1D y = ny > 1 ? new FloatFFT_1D(ny) : null;
-		final FloatFFT_1D z = nz > 1 ? new FloatFFT_1D(nz) : null;
-		final float[][] yBuf = ny > 1 ? new float[blockY][2 * ny] : null;
-		final float[][] zBuf = nz > 1 ? new float[blockZ][2 * nz] : null;
-		/** Split plans for lengths 3·2^k and 5·2^k, faster than JTransforms' mixed-radix path (see {@link SplitFft}). */
+		/** Split plans for lengths 3^a·5^b·2^k (real rows: twice that), faster than JTransforms' mixed-radix path (see {@link SplitFft}). */
 		final SplitRealFft xSplit = nx > 1 && SPLIT ? SplitRealFft.forLength(nx) : null;
 		final SplitFft ySplit = ny > 1 && SPLIT ? SplitFft.forLength(ny) : null;
 		final SplitFft zSplit = nz > 1 && SPLIT ? SplitFft.forLength(nz) : null;
+		final FloatFFT_1D x = nx > 1 && xSplit == null ? new FloatFFT_1D(nx) : null;
+		final FloatFFT_1D y = ny > 1 && ySplit == null ? new FloatFFT_1D(ny) : null;
+		final FloatFFT_1D z = nz > 1 && zSplit == null ? new FloatFFT_1D(nz) : null;
+		final float[][] yBuf = ny > 1 ? new float[blockY][2 * ny] : null;
+		final float[][] zBuf = nz > 1 ? new float[blockZ][2 * nz] : null;
 	}
 }

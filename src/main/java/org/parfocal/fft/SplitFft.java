@@ -11,20 +11,23 @@ import org.jtransforms.fft.FloatFFT_1D;
  * <p>
  * <b>Why by hand.</b> JTransforms takes lengths with factors 3 and 5 through its mixed-radix path, which is
  * slower per value than its power-of-two path and, measured here, uneven from one JVM run to the next; the
- * padded sizes of deconvolution are mostly 3·2^k or 5·2^k. This one step on top of its power-of-two plans
- * took 0.42–0.93 of the mixed-radix time per line over several runs of {@code bin/parfocal-bench lines}
- * (forward + inverse, one core: n = 320 split 6.8–7.1 ns per value, JTransforms 7.6–16; n = 576 = 3·3·64:
- * 0.82), and about 10 % less CPU time per deconvolution iteration; never more. Other lengths (a factor 7 or
- * more, or fewer than 16 in the power of two) go to JTransforms as they are.
+ * padded sizes of deconvolution are mostly 3^a·5^b·2^k. These steps on top of its power-of-two plans took
+ * 0.42–0.93 of the mixed-radix time per line over several runs of {@code bin/parfocal-bench lines}
+ * (forward + inverse, one core: n = 320 = 5·64, one step, split 6.8–7.1 ns per value, JTransforms 7.6–16;
+ * n = 576 = 3·3·64, two nested steps: 0.82), and about 10 % less CPU time per deconvolution iteration; never
+ * more. {@link #forLength} splits off a 3 first, then a 5, and recurses until the remaining length is a power
+ * of two of at least {@link #MIN_POWER}. Other lengths (a factor 7 or more, or fewer than 16 in the power of
+ * two) go to JTransforms as they are.
  * <p>
  * <b>Layout.</b> Input lines are given <i>de-interleaved</i>: value j sits at complex position
- * {@code position[j] = (j mod q)·m + p(j / q)}, p the inner transform's own positions (the identity at the
- * bottom), so that the q sub-sequences are contiguous (the caller writes them there while gathering the line). Output is in natural order. One instance per thread: it holds a
- * scratch line.
+ * {@code position[j] = (j mod q)·m + p(j / q)}, p the inner step's own positions (the identity when the
+ * length-m transforms are power-of-two plans), so that the q sub-sequences are contiguous, each already in its
+ * inner step's layout (the caller writes them there while gathering the line). Output is in natural order.
+ * One instance per thread: it and its inner steps each hold a scratch line.
  */
 final class SplitFft {
 
-	/** Smallest power-of-two factor split off; shorter lines gain nothing. */
+	/** Shortest power-of-two plan at the bottom of the steps; shorter ones gain nothing. */
 	static final int MIN_POWER = 16;
 
 	final int n, q, m;

@@ -1,7 +1,7 @@
 package org.parfocal.fft;
 
 /**
- * Real DFT of even length n whose half n/2 = q·2^k suits {@link SplitFft}: the n reals are read as n/2
+ * Real DFT of even length n whose half n/2 = 3^a·5^b·2^k suits {@link SplitFft}: the n reals are read as n/2
  * complex values z(j) = x(2j) + i·x(2j + 1), transformed by {@link SplitFft}, and the half spectrum
  * X(k), k = 0 … n/2, follows from X(k) = E(k) − i·W^k·O(k) with E(k) = (Z(k) + conj Z(n/2 − k))/2,
  * O(k) = (Z(k) − conj Z(n/2 − k))/2 and W = exp(−2πi/n) (the standard packing of a real transform into a

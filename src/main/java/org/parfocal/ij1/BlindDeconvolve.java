@@ -405,8 +405,8 @@ public class BlindDeconvolve implements PlugIn {
 		final Plot plot = plot(r.snapshots(), "PSF convergence of " + base);
 
 		for (final String note : notes) IJ.log(COMMAND + ": " + note);
-		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", imp));
-		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		final var prov = ImageProvenance.start(COMMAND, o.macroOptions()).input(ImageProvenance.input("image", imp));
+		if (psfImp != null) prov.input(ImageProvenance.input("psf", psfImp));
 		final PsfSnapshot last = r.snapshots().get(r.snapshots().size() - 1);
 		prov.run("iterations", o.iterations()).run("psf_box", r.psf().nx() + "x" + r.psf().ny() + "x" + r.psf().nz())
 				.run("snapshots", r.snapshots().size()).run("fwhm_lateral", last.fwhmLateral());
@@ -419,9 +419,9 @@ public class BlindDeconvolve implements PlugIn {
 		}
 		if (watch != null) Deconvolve.watchProvenance(prov, w, List.of(watch), refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
-		Provenance.attach(out, prov.run("output", "deblurred image"), t0);
-		Provenance.attach(psf, prov.run("output", "final PSF"), t0);
-		Provenance.attach(history, prov.run("output", "PSF history, one frame per snapshot"), t0);
+		ImageProvenance.attach(out, prov.run("output", "deblurred image"), t0);
+		ImageProvenance.attach(psf, prov.run("output", "final PSF"), t0);
+		ImageProvenance.attach(history, prov.run("output", "PSF history, one frame per snapshot"), t0);
 		monitor.done(String.format(Locale.ROOT, "%d iteration(s), %.1f s, PSF FWHM %s%s %s", o.iterations(), (System.nanoTime() - t0) / 1e9,
 				fmt(last.fwhmLateral()), image.nz() > 1 ? " x " + fmt(last.fwhmAxial()) : "", unit));
 		final Plot quality = watch == null ? null : Deconvolve.qualityPlot(List.of(watch), out.getTitle(), "Outer iteration", "chi-square (current PSF)");

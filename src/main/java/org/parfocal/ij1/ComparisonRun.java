@@ -77,10 +77,10 @@ final class ComparisonRun {
 		final ResultsTable table = ComparisonTable.table(report, chi);
 		final Plot plot = ComparisonTable.plot(curves, base, refs.size());
 		final ImagePlus plotImp = plot.getImagePlus();
-		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("result", resImp));
-		for (final Reference r : refs) prov.input(Provenance.input("reference", r.image()));
-		if (inImp != null) prov.input(Provenance.input("input", inImp));
-		if (psfImp != null) prov.input(Provenance.input("psf", psfImp));
+		final var prov = ImageProvenance.start(COMMAND, o.macroOptions()).input(ImageProvenance.input("result", resImp));
+		for (final Reference r : refs) prov.input(ImageProvenance.input("reference", r.image()));
+		if (inImp != null) prov.input(ImageProvenance.input("input", inImp));
+		if (psfImp != null) prov.input(ImageProvenance.input("psf", psfImp));
 		final ReferenceComparison.Row p = report.row(ReferenceComparison.PATCHES);
 		prov.run("patch_distance", p.distance()).run("floor", p.floor()).run("references", refs.size()).run("volumetric_patches", report.volumetricPatches());
 		if (!Double.isNaN(p.baseline())) prov.run("baseline", p.baseline()).run("gap_closed", p.gapClosed());
@@ -89,7 +89,7 @@ final class ComparisonRun {
 		if (expected != null) prov.run("expected_resolution", expectedText(expected, result.voxelSize().isCalibrated() && !o.ignoreCalibration()));
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		for (final String note : notes) prov.warning(note);
-		Provenance.attach(plotImp, prov, start);
+		ImageProvenance.attach(plotImp, prov, start);
 		monitor.done(String.format(Locale.ROOT, "patch distance %.4g (floor %.4g)", p.distance(), p.floor()));
 		return new Output("Reference comparison of " + base, table, plot, report, chi);
 	}

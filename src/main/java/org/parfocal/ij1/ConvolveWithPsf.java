@@ -112,11 +112,11 @@ public class ConvolveWithPsf implements PlugIn {
 		});
 		final ImagePlus result = ImageBridge.toImagePlus(out, WindowManager.makeUniqueName(stripExtension(object.getTitle()) + "-blurred.tif"),
 				object.getCalibration());
-		final var prov = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", object)).input(Provenance.input("psf", psfImp))
+		final var prov = ImageProvenance.start(COMMAND, o.macroOptions()).input(ImageProvenance.input("image", object)).input(ImageProvenance.input("psf", psfImp))
 				.run("volumes", in.volumes().size());
 		if (o.recentre()) prov.run("psf_centre_of_mass_offset", Arrays.toString(Psfs.centroidOffset(given)));
-		else if (offCentre != null) prov.run("warning", offCentre);
-		Provenance.attach(result, prov, start);
+		else if (offCentre != null) prov.warning(offCentre);
+		ImageProvenance.attach(result, prov, start);
 		monitor.done("done");
 		return result;
 	}

@@ -3,6 +3,8 @@ package org.parfocal.ij1;
 import java.util.ArrayList;
 import java.util.List;
 
+import org.parfocal.psf.OpticsFields.Group;
+
 /**
  * The Help text of every Parfocal dialog: what each field means, its unit and its macro key, as HTML.
  * ImageJ 1.54's {@code GenericDialog.addHelp} opens a text that starts with {@code <html>} in its own HTML
@@ -83,10 +85,15 @@ final class DialogHelp {
 				.field("Recentre the PSF", "recentre", "", "shift the PSF so its centre of mass sits on the centre voxel before blurring");
 	}
 
+	/** A heading of the optics dialog as Help HTML. */
+	private static String html(final Group g) {
+		return g.heading().replace("&", "&amp;");
+	}
+
 	static Page psfFromOptics(final boolean withProfiles) {
 		final Page p = new Page("PSF from Optics", "Computes a PSF from the objective, the sample and the light. The result is a 32-bit stack "
 				+ "with unit sum, its emitter at the centre voxel, calibrated in &micro;m. Fields a model or modality does not use are "
-				+ "ignored (and the record says so). Opened from the menu, the fields start from the optics in the current image's "
+				+ "greyed out and ignored: the Log and the record's <code>ignored</code> entry name them with the reason. Opened from the menu, the fields start from the optics in the current image's "
 				+ "record, or in its inputs' records (a PSF from Optics, a run with <code>psf=from_optics</code>); a macro always gets "
 				+ "the defaults below.")
 				.field("Model", "model", "", "<code>gaussian</code>: Gaussian fit to the widefield/confocal PSF (Zhang et al., Appl. Opt. 2007); "
@@ -96,24 +103,27 @@ final class DialogHelp {
 						+ "Proc. R. Soc. A 1959)")
 				.field("Modality", "modality", "", "<code>widefield</code>, <code>confocal</code> (pinhole), <code>two-photon</code> "
 						+ "(excitation only) or <code>light-sheet</code> (sheet thickness)")
-				.group("Objective and sample")
+				.group(html(Group.OBJECTIVE))
 				.field("NA", "na", "", "numerical aperture of the objective; below the immersion index")
 				.field("Immersion_index", "immersion_index", "", "refractive index of the immersion medium actually used (oil 1.518, water 1.333, glycerol 1.47)")
-				.field("Sample_index", "sample_index", "", "refractive index of the sample around the emitters")
+				.field("Sample_index", "sample_index", "", "refractive index of the sample around the emitters (the models without depth aberration use it only to size an automatic box)")
+				.group(html(Group.LAYERS))
 				.field("Coverslip_index", "coverslip_index", "", "refractive index of the coverslip used")
 				.field("Coverslip_thickness", "coverslip_thickness", "&micro;m", "thickness of the coverslip used (No. 1.5: 170)")
-				.field("Depth", "depth", "&micro;m", "depth of the emitters below the coverslip (Gibson &amp; Lanni, Richards &amp; Wolf)")
-				.group("What the objective is corrected for (Gibson &amp; Lanni only)")
+				.field("Depth", "depth", "&micro;m", "depth of the emitters below the coverslip (the models without depth aberration use it only to size an automatic box)")
+				.group(html(Group.DESIGN))
 				.field("Immersion_index_design", "immersion_index_design", "", "immersion index the objective is corrected for (printed on it)")
 				.field("Coverslip_index_design", "coverslip_index_design", "", "coverslip index the objective is corrected for")
 				.field("Coverslip_thickness_design", "coverslip_thickness_design", "&micro;m", "coverslip thickness the objective is corrected for (on the barrel)")
 				.field("Working_distance", "working_distance", "&micro;m", "free working distance of the objective")
-				.group("Light")
+				.group(html(Group.LIGHT))
 				.field("Emission", "emission", "&micro;m", "emission wavelength (e.g. 0.52 for a green dye)")
+				.group(html(Group.SCANNING))
 				.field("Excitation", "excitation", "&micro;m", "excitation wavelength; used by confocal and two-photon only")
 				.field("Pinhole", "pinhole", "Airy units", "pinhole diameter; used by confocal only")
+				.group(html(Group.SHEET))
 				.field("Sheet_thickness", "sheet_thickness", "&micro;m (FWHM)", "thickness of the light sheet; used by light-sheet only")
-				.group("Sampling")
+				.group(html(Group.SAMPLING))
 				.field("Voxel_xy", "voxel_xy", "&micro;m", "lateral voxel size of the stack to be deconvolved (taken from the current image)")
 				.field("Voxel_z", "voxel_z", "&micro;m", "axial step of the stack")
 				.field("Size_xy", "size_xy", "voxels (odd)", "PSF width; 0 = enough for the model's rings (from the optics)")
@@ -148,8 +158,10 @@ final class DialogHelp {
 				.field("Sample_index", "sample_index", "", "sample (mounting medium) index")
 				.field("Depth", "depth", "&micro;m", "depth of the beads below the coverslip")
 				.field("Emission", "emission", "&micro;m", "emission wavelength")
+				.group(html(Group.SCANNING))
 				.field("Excitation", "excitation", "&micro;m", "excitation wavelength (confocal, two-photon only)")
 				.field("Pinhole", "pinhole", "Airy units", "pinhole diameter (confocal only)")
+				.group(html(Group.SHEET))
 				.field("Sheet_thickness", "sheet_thickness", "&micro;m (FWHM)", "light-sheet thickness (light-sheet only)");
 	}
 

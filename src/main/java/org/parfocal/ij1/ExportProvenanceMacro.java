@@ -50,7 +50,7 @@ public class ExportProvenanceMacro implements PlugIn {
 
 	/** The rebuild macro of {@code imp}. @throws IllegalArgumentException one line, if there is no usable record */
 	static String macroText(final ImagePlus imp) {
-		final var p = Provenance.ofChecked(imp).orElseThrow(() -> new IllegalArgumentException("'" + imp.getTitle()
+		final var p = ImageProvenance.ofChecked(imp).orElseThrow(() -> new IllegalArgumentException("'" + imp.getTitle()
 				+ "' has no Parfocal provenance (it was not made by a Parfocal command, or was saved in a format that drops the Info); "
 				+ "Image > Show Info shows what ImageJ knows of it"));
 		return MacroExport.toMacro(p, imp.getTitle());

@@ -14,10 +14,10 @@ public final class MacroFunctions {
 
 	private MacroFunctions() {}
 
-	/** SHA-256 of the current image's pixels, as the provenance records it (see {@link Provenance#sha256}); "" without an image. */
+	/** SHA-256 of the current image's pixels, as the provenance records it (see {@link ImageProvenance#sha256}); "" without an image. */
 	public static String currentPixelSha256() {
 		final ImagePlus imp = WindowManager.getCurrentImage();
-		return imp == null ? "" : Provenance.sha256(imp);
+		return imp == null ? "" : ImageProvenance.sha256(imp);
 	}
 
 	/**

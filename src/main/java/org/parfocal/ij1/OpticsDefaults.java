@@ -26,7 +26,7 @@ final class OpticsDefaults {
 	/** The optics keys and values found for {@code imp} (empty when none or in a macro). */
 	static Map<String, String> of(final ImagePlus imp) {
 		if (imp == null || Commands.isMacro()) return Map.of();
-		final Optional<Provenance> rec = org.parfocal.ij1.Provenance.of(imp);
+		final Optional<Provenance> rec = org.parfocal.ij1.ImageProvenance.of(imp);
 		return rec.isEmpty() ? Map.of() : of(rec.get(), 0);
 	}
 

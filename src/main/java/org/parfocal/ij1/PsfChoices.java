@@ -86,7 +86,7 @@ final class PsfChoices {
 
 	/** True when the image's record says a Parfocal command made it as a PSF. */
 	static boolean madeAsPsf(final ImagePlus p) {
-		final var rec = Provenance.of(p);
+		final var rec = ImageProvenance.of(p);
 		if (rec.isEmpty()) return false;
 		final var r = rec.get();
 		if (PSF_COMMANDS.contains(r.command())) return true;

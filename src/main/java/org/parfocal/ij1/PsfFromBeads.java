@@ -215,7 +215,7 @@ public class PsfFromBeads implements PlugIn {
 
 		final ImagePlus psf = ImageBridge.toImagePlus(m.psf(), ij.WindowManager.makeUniqueName("psf-beads-" + ConvolveWithPsf.stripExtension(imp.getTitle()) + ".tif"));
 		final Map<BeadStatus, Integer> counts = m.counts();
-		final var builder = Provenance.start(COMMAND, o.macroOptions()).input(Provenance.input("image", imp))
+		final var builder = ImageProvenance.start(COMMAND, o.macroOptions()).input(ImageProvenance.input("image", imp))
 				.run("box_um", String.format(Locale.ROOT, "%.4g x %.4g x %.4g", m.psf().nx() * m.psf().voxelSize().dx(), m.psf().ny() * m.psf().voxelSize().dy(),
 						m.psf().nz() * m.psf().voxelSize().dz()))
 				.run("bit_depth", bits).run("beads_found", m.beads().size()).run("beads_accepted", counts.get(BeadStatus.ACCEPTED))
@@ -229,7 +229,7 @@ public class PsfFromBeads implements PlugIn {
 			if (is3D) builder.run("model_fwhm_z_um", model[2]);
 		}
 		for (final String w : warnings) builder.warning(w);
-		Provenance.attach(psf, builder, start);
+		ImageProvenance.attach(psf, builder, start);
 
 		final Overlay overlay = overlay(imp, m.beads(), m.fwhm()[0] / (stack.voxelSize().dx() * um));
 		monitor.done(String.format(Locale.ROOT, "%d of %d beads averaged; FWHM %.3f x %.3f%s µm", counts.get(BeadStatus.ACCEPTED), m.beads().size(),

@@ -133,11 +133,9 @@ public final class CommandKeys {
 				final String now = cmd.oldNames().get(key);
 				renames.put(t.key(), now);
 				given.add(now);
-			} else if (cmd.keys().containsKey(key)) given.add(key);
-			else {
-				final String near = closest(key, cmd.accepted());
-				throw new IllegalArgumentException("Unknown key '" + t.key() + "'" + (near == null ? "" : " — did you mean '" + near + "'?")
-						+ (near == null ? " (known keys: " + String.join(" ", cmd.keys().keySet()) + ")" : ""));
+			} else {
+				requireKnown(cmd, t.key());
+				given.add(key);
 			}
 		}
 		for (final String r : cmd.required())
@@ -147,6 +145,18 @@ public final class CommandKeys {
 			if (tokens.stream().anyMatch(t -> t.key().equalsIgnoreCase(now)))
 				throw new IllegalArgumentException("Give " + now + "= only once (an old name of it is given too)");
 		return MacroOptions.renameKeys(options, renames);
+	}
+
+	/**
+	 * @throws IllegalArgumentException "Unknown key 'k' — did you mean 'x'?" (or the known keys) when {@code key}
+	 *         is neither a key of {@code cmd} nor an old name of one
+	 */
+	public static void requireKnown(final Command cmd, final String key) {
+		final String k = key.toLowerCase(Locale.ROOT);
+		if (cmd.keys().containsKey(k) || cmd.oldNames().containsKey(k)) return;
+		final String near = closest(k, cmd.accepted());
+		throw new IllegalArgumentException("Unknown key '" + key + "'" + (near == null ? "" : " — did you mean '" + near + "'?")
+				+ (near == null ? " (known keys: " + String.join(" ", cmd.keys().keySet()) + ")" : ""));
 	}
 
 	/** The accepted key nearest to {@code key} by edit distance (at most a third of its length, at least 2), or null. */

@@ -28,6 +28,10 @@ public class GibsonLanniModel extends PupilPsfModel {
 	@Override
 	public String description() { return "Gibson & Lanni: scalar, with depth-dependent spherical aberration"; }
 
+	/** The depth aberration uses every layer (Richards &amp; Wolf inherits it). */
+	@Override
+	public boolean usesLayers() { return true; }
+
 	@Override
 	protected void aberration(final Optics o, final double rho, final double[] out) {
 		final double s = o.na() * rho, s2 = s * s;

@@ -97,12 +97,6 @@ public record Optics(Modality modality, double na, double immersionIndex, double
 		return l;
 	}
 
-	/** True if every index and thickness equals its design value and the emitter is on the coverslip. */
-	public boolean isDesignCondition() {
-		return immersionIndex == immersionIndexDesign && sampleIndex == immersionIndex && coverslipIndex == coverslipIndexDesign
-				&& coverslipThickness == coverslipThicknessDesign && depth == 0;
-	}
-
 	public Builder toBuilder() { return new Builder(this); }
 
 	public static Builder builder() { return new Builder(); }

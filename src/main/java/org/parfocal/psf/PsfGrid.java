@@ -55,7 +55,20 @@ public record PsfGrid(int nx, int ny, int nz, double dx, double dy, double dz) {
 	public static double micronsPer(final VoxelSize v) {
 		if (v == null || !v.isCalibrated())
 			throw new IllegalArgumentException("The image has no voxel size: enter dx, dy and dz in µm (a PSF cannot assume 1 pixel = 1 µm)");
-		switch (v.unit().trim().toLowerCase(Locale.ROOT)) {
+		final double f = micronsPerUnit(v.unit());
+		if (Double.isNaN(f)) throw new IllegalArgumentException("Voxel unit '" + v.unit() + "' is not a length in nm, µm or mm: enter the voxel sizes in µm");
+		return f;
+	}
+
+	/**
+	 * Micrometres per length unit: the one table of unit names in Parfocal (case and surrounding spaces ignored).
+	 * nm, nanometer(s), nanometre(s): 10⁻³; µm (micro sign U+00B5 or Greek mu U+03BC), um, micron(s),
+	 * micrometer(s), micrometre(s): 1; mm, millimeter(s), millimetre(s): 10³ (the SI prefixes). NaN for anything
+	 * else, ImageJ's uncalibrated "pixel" and "pixels", "none", blank and null included.
+	 */
+	public static double micronsPerUnit(final String unit) {
+		if (unit == null) return Double.NaN;
+		switch (unit.trim().toLowerCase(Locale.ROOT)) {
 		case "µm": case "μm": case "um": case "micron": case "microns": case "micrometer": case "micrometre": case "micrometers": case "micrometres":
 			return 1;
 		case "nm": case "nanometer": case "nanometre": case "nanometers": case "nanometres":
@@ -63,7 +76,7 @@ public record PsfGrid(int nx, int ny, int nz, double dx, double dy, double dz) {
 		case "mm": case "millimeter": case "millimetre": case "millimeters": case "millimetres":
 			return 1e3;
 		default:
-			throw new IllegalArgumentException("Voxel unit '" + v.unit() + "' is not a length in nm, µm or mm: enter the voxel sizes in µm");
+			return Double.NaN;
 		}
 	}
 

@@ -31,6 +31,15 @@ public interface PsfModel extends SciJavaPlugin {
 	/** The sampled, unit-sum PSF. */
 	Volume compute(Optics optics, PsfGrid grid, Sampling sampling);
 
+	/**
+	 * True if the PSF depends on the layers of Gibson &amp; Lanni's geometry ({@link Optics}: sample index and
+	 * depth, coverslip in use, the objective's design values, working distance); false for models that use
+	 * only NA, the immersion index and the wavelengths. {@link OpticsFields} marks the layer fields ignored when false.
+	 */
+	default boolean usesLayers() {
+		return false;
+	}
+
 	/** The sampled, unit-sum PSF with {@link Sampling#AUTO}. */
 	default Volume compute(final Optics optics, final PsfGrid grid) {
 		return compute(optics, grid, Sampling.AUTO);

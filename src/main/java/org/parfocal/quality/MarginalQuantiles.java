@@ -2,6 +2,7 @@ package org.parfocal.quality;
 
 import java.util.List;
 
+import org.parfocal.core.RobustStats;
 import org.parfocal.core.Volume;
 
 /**
@@ -45,8 +46,8 @@ public final class MarginalQuantiles {
 			java.util.Arrays.sort(s);
 			final double[] r = refs.marginals[k].sorted[0];
 			for (int i = 0; i < levels; i++) {
-				res[k][i] = ReferenceComparison.percentileOfSorted(s, q[i]);
-				ref[k][i] = ReferenceComparison.percentileOfSorted(r, q[i]);
+				res[k][i] = RobustStats.percentileOfSorted(s, q[i]);
+				ref[k][i] = RobustStats.percentileOfSorted(r, q[i]);
 			}
 		}
 		return new Curves(q, res, ref);

@@ -3,11 +3,12 @@ package org.parfocal.quality;
 import java.util.Locale;
 
 import org.parfocal.core.Parallel;
+import org.parfocal.core.RobustStats;
 import org.parfocal.core.Volume;
 
 /**
  * Robust intensity normalisation of one image: v ↦ (v − P_low) / (P_high − P_low), with P the percentiles of
- * the image itself ({@link OrderStatistics#percentiles}, NumPy's "linear" definition). Images from different
+ * the image itself ({@link RobustStats#percentiles}, NumPy's "linear" definition). Images from different
  * microscopes, exposures and offsets are thus put on one scale where the dim background sits near 0 and the
  * bright structures near 1, while a few hot pixels (above P_high) cannot set the scale.
  */
@@ -26,7 +27,7 @@ public final class Normalization {
 			throw new IllegalArgumentException("Percentiles must satisfy 0 ≤ low < high ≤ 100, got " + low + " and " + high);
 		final int bad = v.firstNonFinite();
 		if (bad >= 0) throw new IllegalArgumentException(what + " has a non-finite value (" + v.data()[bad] + ") at " + v.position(bad));
-		final double[] q = OrderStatistics.percentiles(v.data(), low, high);
+		final double[] q = RobustStats.percentiles(v.data(), low, high);
 		final double range = q[1] - q[0];
 		if (!(range > 1e-12 * Math.max(Math.abs(q[0]), Math.abs(q[1]))) || range == 0)
 			throw new IllegalArgumentException(String.format(Locale.ROOT,

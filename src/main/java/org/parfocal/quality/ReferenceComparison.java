@@ -490,9 +490,7 @@ public final class ReferenceComparison {
 
 	/** NumPy's "linear" percentile of an ascending array. */
 	static double percentileOfSorted(final double[] s, final double q) {
-		final double h = (s.length - 1) * q / 100;
-		final int lo = (int) Math.floor(h);
-		return lo + 1 < s.length ? s[lo] + (h - lo) * (s[lo + 1] - s[lo]) : s[lo];
+		return org.parfocal.core.RobustStats.percentileOfSorted(s, q);
 	}
 
 	static String refName(final int i) {

@@ -1,23 +1,14 @@
 package org.parfocal.scijava;
 
-import ij.IJ;
 import ij.ImagePlus;
-import ij.Macro;
-import ij.WindowManager;
-import ij.macro.Interpreter;
 
 import java.io.File;
 import java.lang.reflect.Field;
 import java.lang.reflect.Modifier;
 import java.util.ArrayList;
-import java.util.LinkedHashSet;
 import java.util.List;
 import java.util.Map;
-import java.util.Set;
-import java.util.concurrent.atomic.AtomicInteger;
-import java.util.concurrent.atomic.AtomicReference;
 
-import org.parfocal.ij1.CommandFailure;
 import org.parfocal.provenance.CommandKeys;
 import org.parfocal.provenance.MacroOptions;
 import org.scijava.ItemIO;
@@ -36,9 +27,6 @@ import org.scijava.plugin.Parameter;
  * While a command runs, ImageJ's batch mode is on (results are registered, not shown), unless it already was.
  */
 public abstract class MenuCommand extends ContextCommand {
-
-	private static final Object LOCK = new Object();
-	private static final AtomicInteger THREADS = new AtomicInteger();
 
 	/** The menu label with "...", as in plugins.config. */
 	public abstract String menuLabel();
@@ -90,74 +78,10 @@ public abstract class MenuCommand extends ContextCommand {
 		if (current != null && created.contains(current)) set("result", current);
 	}
 
-	/** The first made image whose title ends with {@code suffix}, or null. */
-	protected static ImagePlus titled(final List<ImagePlus> created, final String suffix) {
-		for (final ImagePlus imp : created)
-			if (imp.getTitle().endsWith(suffix)) return imp;
-		return null;
-	}
-
 	@Override
 	public void run() {
 		final String options = macroOptions();
-		final ImagePlus current = currentImage();
-		synchronized (LOCK) {
-			final boolean batch = Interpreter.batchMode;
-			final Set<ImagePlus> registered = new LinkedHashSet<>();
-			final AtomicReference<ImagePlus> after = new AtomicReference<>();
-			final AtomicReference<Throwable> thrown = new AtomicReference<>();
-			final List<ImagePlus> created = new ArrayList<>();
-			try {
-				Interpreter.batchMode = true;
-				for (final ImagePlus imp : imageInputs()) {
-					final ImagePlus known = WindowManager.getImage(imp.getTitle());
-					if (known == imp) continue;
-					if (known != null) {
-						cancel(menuLabel().replace("...", "") + ": two images are called '" + imp.getTitle() + "'; give the inputs distinct titles");
-						return;
-					}
-					Interpreter.addBatchModeImage(imp);
-					registered.add(imp);
-				}
-				final Set<Integer> before = ids();
-				CommandFailure.take();
-				// ImageJ gives macro options to threads named Run$_..., as the macro interpreter's are.
-				final Thread t = new Thread(() -> {
-					try {
-						IJ.run(current, menuLabel(), options);
-						after.set(WindowManager.getCurrentImage());
-					} catch (final RuntimeException e) {
-						if (!Macro.MACRO_CANCELED.equals(e.getMessage())) thrown.set(e);
-					} finally {
-						Macro.setOptions(null);
-						WindowManager.setTempCurrentImage(null);
-					}
-				}, "Run$_parfocal-scijava-" + THREADS.incrementAndGet());
-				t.start();
-				join(t);
-				for (final int id : ids())
-					if (!before.contains(id)) {
-						final ImagePlus imp = WindowManager.getImage(id);
-						if (imp != null) created.add(imp);
-					}
-			} finally {
-				if (!batch) {
-					for (final ImagePlus imp : created) Interpreter.removeBatchModeImage(imp);
-					for (final ImagePlus imp : registered) Interpreter.removeBatchModeImage(imp);
-					Interpreter.batchMode = false;
-				} else for (final ImagePlus imp : registered) Interpreter.removeBatchModeImage(imp);
-			}
-			final String failure = CommandFailure.take();
-			if (failure != null) {
-				cancel(failure);
-				return;
-			}
-			if (thrown.get() != null) {
-				cancel(menuLabel().replace("...", "") + ": " + thrown.get());
-				return;
-			}
-			collect(created, after.get());
-		}
+		MenuRun.run(menuLabel(), currentImage(), options, imageInputs(), this::cancel, this::collect);
 	}
 
 	/** The image the command works on as the current image (commands without an image key), or null. */
@@ -202,22 +126,6 @@ public abstract class MenuCommand extends ContextCommand {
 			f.set(this, value);
 		} catch (final ReflectiveOperationException e) {
 			throw new IllegalStateException(e);
-		}
-	}
-
-	private static Set<Integer> ids() {
-		final Set<Integer> s = new LinkedHashSet<>();
-		final int[] ids = WindowManager.getIDList();
-		if (ids != null) for (final int id : ids) s.add(id);
-		return s;
-	}
-
-	private static void join(final Thread t) {
-		try {
-			t.join();
-		} catch (final InterruptedException e) {
-			Thread.currentThread().interrupt();
-			throw new IllegalStateException("interrupted while " + t.getName() + " ran", e);
 		}
 	}
 

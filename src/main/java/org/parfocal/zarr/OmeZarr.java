@@ -17,6 +17,7 @@ import com.google.gson.JsonElement;
 import com.google.gson.JsonObject;
 import com.google.gson.JsonParser;
 
+import org.parfocal.core.SixteenBit;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 
@@ -349,16 +350,7 @@ public final class OmeZarr {
 		 * @throws IllegalStateException for a missing chunk, or an output name taken meanwhile (nothing replaced)
 		 */
 		public void complete(final VoxelSize v, final String provenanceJson) throws IOException {
-			final ZarrArray a = ZarrArray.open(hidden.resolve("0"));
-			final int[] g = a.grid();
-			for (int t = 0; t < g[0]; t++)
-				for (int c = 0; c < g[1]; c++)
-					for (int z = 0; z < g[2]; z++)
-						for (int y = 0; y < g[3]; y++)
-							for (int x = 0; x < g[4]; x++)
-								if (!Files.isRegularFile(a.chunkFile(new int[] { t, c, z, y, x })))
-									throw new IllegalStateException("Chunk " + t + "/" + c + "/" + z + "/" + y + "/" + x + " of " + output.getFileName()
-											+ " was not written: the output is not complete");
+			requireChunks(ZarrArray.open(hidden.resolve("0")));
 			writeAttributes(v, provenanceJson, true);
 			if (Files.exists(output)) throw new IllegalStateException("Output " + output.getFileName() + " appeared during the run; it was not replaced");
 			try {
@@ -368,6 +360,58 @@ public final class OmeZarr {
 			} catch (final FileAlreadyExistsException e) {
 				throw new IllegalStateException("Output " + output.getFileName() + " appeared during the run; it was not replaced");
 			}
+		}
+
+		/**
+		 * {@link #complete} of a 16-bit output ({@code output=16-bit}): once every float32 chunk is on disk, the
+		 * scaling of the whole image (every frame and channel) is taken from its smallest and largest value
+		 * ({@link SixteenBit}), every chunk is rewritten as uint16, and the array's {@code .zattrs} holds
+		 * {@code scale_factor} and {@code add_offset} (the CF convention, value = add_offset + scale_factor ·
+		 * stored, which CF-aware readers such as xarray apply; from memory); {@code provenanceFor} gives the record with the scaling.
+		 */
+		public SixteenBit.Scaling completeSixteenBit(final VoxelSize v, final java.util.function.Function<SixteenBit.Scaling, String> provenanceFor)
+				throws IOException {
+			final ZarrArray f = ZarrArray.open(hidden.resolve("0"));
+			requireChunks(f);
+			final int[] g = f.grid(), shape = f.shape(), ch = f.chunks();
+			final SixteenBit.Range range = new SixteenBit.Range();
+			final java.util.List<int[]> all = new java.util.ArrayList<>();
+			for (int t = 0; t < g[0]; t++)
+				for (int c = 0; c < g[1]; c++)
+					for (int z = 0; z < g[2]; z++)
+						for (int y = 0; y < g[3]; y++)
+							for (int x = 0; x < g[4]; x++) all.add(new int[] { t, c, z, y, x });
+			for (final int[] i : all) {
+				// only the voxels inside the image: an edge chunk's padding is not part of the result
+				final float[] vals = f.readChunk(i);
+				final int nx = Math.min(ch[4], shape[4] - i[4] * ch[4]), ny = Math.min(ch[3], shape[3] - i[3] * ch[3]),
+						nz = Math.min(ch[2], shape[2] - i[2] * ch[2]);
+				final float[] inside = new float[nx * ny * nz];
+				for (int z = 0, k = 0; z < nz; z++)
+					for (int y = 0; y < ny; y++, k += nx) System.arraycopy(vals, ch[4] * (y + ch[3] * z), inside, k, nx);
+				range.add(inside);
+			}
+			final SixteenBit.Scaling s = range.scaling();
+			final ZarrArray u = f.asUint16();
+			for (final int[] i : all) u.writeChunk(i, s.stored(f.readChunk(i)));
+			final JsonObject attrs = new JsonObject();
+			attrs.addProperty("scale_factor", s.scale());
+			attrs.addProperty("add_offset", s.offset());
+			ZarrArray.writeAtomically(hidden.resolve("0").resolve(".zattrs"), Json.pretty(attrs).getBytes(StandardCharsets.UTF_8));
+			complete(v, provenanceFor.apply(s));
+			return s;
+		}
+
+		private void requireChunks(final ZarrArray a) {
+			final int[] g = a.grid();
+			for (int t = 0; t < g[0]; t++)
+				for (int c = 0; c < g[1]; c++)
+					for (int z = 0; z < g[2]; z++)
+						for (int y = 0; y < g[3]; y++)
+							for (int x = 0; x < g[4]; x++)
+								if (!Files.isRegularFile(a.chunkFile(new int[] { t, c, z, y, x })))
+									throw new IllegalStateException("Chunk " + t + "/" + c + "/" + z + "/" + y + "/" + x + " of " + output.getFileName()
+											+ " was not written: the output is not complete");
 		}
 
 		/** Removes the hidden folder and everything in it. */

@@ -38,7 +38,8 @@ import com.google.gson.JsonParser;
  * {@code zlib} and {@code gzip} codecs of numcodecs, which every Zarr reader supports).
  * <p>
  * Supported: C order, no filters, compressors {@code null}, {@code zlib}, {@code gzip}; data types unsigned and
- * signed 8/16/32-bit integers and 32/64-bit floats of either byte order (read), little-endian float32 (write);
+ * signed 8/16/32-bit integers and 32/64-bit floats of either byte order (read), little-endian float32 and uint16
+ * (write; uint16 by converting a written float32 array, {@link #asUint16});
  * dimension separators "." and "/". Anything else is refused with one line naming it. Chunk files are written under
  * a temporary name and renamed, so a reader (or a retried writer) sees a chunk whole or not at all; a missing chunk
  * reads as the fill value.
@@ -47,6 +48,8 @@ public final class ZarrArray {
 
 	/** The data type this project writes: little-endian IEEE float32. */
 	public static final String FLOAT32 = "<f4";
+	/** The data type of a 16-bit output ({@code output=16-bit}): little-endian unsigned 16-bit. */
+	public static final String UINT16 = "<u2";
 	private static final AtomicLong TMP = new AtomicLong();
 
 	private final Path dir;
@@ -238,13 +241,43 @@ public final class ZarrArray {
 	 * so replacing its chunk is harmless; a reader never sees half a chunk).
 	 */
 	public void writeChunk(final int[] index, final float[] values) throws IOException {
-		if (!FLOAT32.equals(dtype)) throw new IllegalStateException("Only float32 Zarr arrays are written");
-		if (values.length != chunkVoxels()) throw new IllegalArgumentException("A chunk has " + chunkVoxels() + " values, got " + values.length);
-		final ByteBuffer b = ByteBuffer.allocate(4 * values.length).order(ByteOrder.LITTLE_ENDIAN);
+		final ByteBuffer b = buffer(FLOAT32, values.length, 4);
 		b.asFloatBuffer().put(values);
+		write(index, b);
+	}
+
+	/** A little-endian buffer for one chunk of {@code count} values of {@code type}. */
+	private ByteBuffer buffer(final String type, final int count, final int item) {
+		if (!type.equals(dtype)) throw new IllegalStateException("This Zarr array is " + dtype + ", not " + type);
+		if (count != chunkVoxels()) throw new IllegalArgumentException("A chunk has " + chunkVoxels() + " values, got " + count);
+		return ByteBuffer.allocate(item * count).order(ByteOrder.LITTLE_ENDIAN);
+	}
+
+	private void write(final int[] index, final ByteBuffer b) throws IOException {
 		final Path file = chunkFile(index);
 		Files.createDirectories(file.getParent());
 		writeAtomically(file, encode(b.array()));
+	}
+
+	/**
+	 * Rewrites this array's {@code .zarray} with the data type {@link #UINT16} (fill value 0) and returns the array
+	 * as it now is; this object still reads its chunks as the type it was opened with, so a float32 array's chunks
+	 * can be read here and rewritten through the returned one ({@link #writeChunk(int[], short[])}).
+	 */
+	public ZarrArray asUint16() throws IOException {
+		final Path meta = dir.resolve(".zarray");
+		final JsonObject o = com.google.gson.JsonParser.parseString(Files.readString(meta, StandardCharsets.UTF_8)).getAsJsonObject();
+		o.addProperty("dtype", UINT16);
+		o.addProperty("fill_value", 0);
+		writeAtomically(meta, Json.pretty(o).getBytes(StandardCharsets.UTF_8));
+		return open(dir);
+	}
+
+	/** Writes chunk {@code index} as uint16 (ImageJ's unsigned values in shorts), as {@link #writeChunk(int[], float[])} does. */
+	public void writeChunk(final int[] index, final short[] values) throws IOException {
+		final ByteBuffer b = buffer(UINT16, values.length, 2);
+		b.asShortBuffer().put(values);
+		write(index, b);
 	}
 
 	private byte[] encode(final byte[] raw) {

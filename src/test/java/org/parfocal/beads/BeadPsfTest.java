@@ -12,6 +12,7 @@ import net.imglib2.parallel.Parallelization;
 
 import org.junit.jupiter.api.Test;
 import org.parfocal.core.Monitor;
+import org.parfocal.core.RobustStats;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 import org.parfocal.psf.Fwhm;

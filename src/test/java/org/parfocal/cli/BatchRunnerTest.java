@@ -62,6 +62,44 @@ class BatchRunnerTest {
 		assertTrue(Files.isRegularFile(out.resolve("cell-1-blur-2.tif")) && Files.isRegularFile(out.resolve("summary-2.csv")));
 	}
 
+	/**
+	 * Issue 17, item 9: a batch recipe with {@code output=16-bit} saves a 16-bit stack whose recorded scale and
+	 * offset (provenance, and ImageJ's calibration function in the saved TIFF) map back to the 32-bit result of
+	 * the same recipe without the key within half a step (uniform quantisation).
+	 */
+	@Test
+	void aSixteenBitRecipeSaves16BitWhoseRecordedScaleMapsBackToThe32BitResult(@TempDir final Path dir) throws Exception {
+		final Path in = Files.createDirectories(dir.resolve("in"));
+		assertTrue(new FileSaver(ImageBridge.toImagePlus(SampleScene.cell(24, 20, 6, 3).withVoxelSize(VoxelSize.microns(0.1, 0.1, 0.2)), "cell"))
+				.saveAsTiff(in.resolve("cell.tif").toString()));
+		final Path psf = dir.resolve("psf.tif");
+		assertTrue(new FileSaver(ImageBridge.toImagePlus(SampleScene.gaussianPsf(5, 5, 3), "psf.tif")).saveAsTiff(psf.toString()));
+		final Path map = Files.writeString(dir.resolve("map.csv"), "*.tif,psf.tif\n");
+		final String line = "run(\"Deconvolve...\", \"image=[\" + inputTitle + \"] psf=[\" + psfTitle + \"] method=richardson-lucy iterations=4 "
+				+ "regularization=0 stop=fixed threshold=0.001 edges=extended offset=0 background=0";
+		final Path r32 = Files.writeString(dir.resolve("f.ijm"), line + "\");\n"), r16 = Files.writeString(dir.resolve("s.ijm"), line + " output=16-bit\");\n");
+		assertTrue(BatchRunner.run(r32, in, dir.resolve("out"), map).get(0).ok());
+		assertTrue(BatchRunner.run(r16, in, dir.resolve("out"), map).get(0).ok());
+		final ImagePlus f = IJ.openImage(dir.resolve("out/cell-f.tif").toString()), s = IJ.openImage(dir.resolve("out/cell-s.tif").toString());
+		assertEquals(ImagePlus.GRAY32, f.getType());
+		assertEquals(ImagePlus.GRAY16, s.getType());
+		final var rec = org.parfocal.provenance.Provenance.findIn((String) s.getProperty("Info")).orElseThrow();
+		final double offset = ((Number) rec.run().get("output_offset")).doubleValue(), scale = ((Number) rec.run().get("output_scale")).doubleValue();
+		assertEquals(ij.measure.Calibration.STRAIGHT_LINE, s.getCalibration().getFunction(), "the saved TIFF keeps the calibration function");
+		double worst = 0;
+		for (int z = 1; z <= f.getStackSize(); z++) {
+			final float[] v = (float[]) f.getStack().getPixels(z);
+			final short[] q = (short[]) s.getStack().getPixels(z);
+			for (int i = 0; i < v.length; i++) {
+				final double back = offset + scale * (q[i] & 0xffff);
+				worst = Math.max(worst, Math.abs(back - v[i]) / scale);
+				assertEquals(back, s.getCalibration().getCValue(q[i] & 0xffff), 1e-9 * Math.abs(back) + 1e-12);
+			}
+		}
+		System.out.printf("batch 16-bit: scale %.6g, offset %.6g, largest error %.6f step(s)%n", scale, offset, worst);
+		assertTrue(worst <= 0.5 + 1e-6, "within half a step: " + worst);
+	}
+
 	/** Issue 13, item 5: two batches into one output folder at once kept 3 files of 6; each must keep its own. */
 	@Test
 	void twoBatchesIntoOneFolderAtOnceKeepEveryFile(@TempDir final Path dir) throws Exception {

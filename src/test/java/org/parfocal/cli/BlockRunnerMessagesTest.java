@@ -89,6 +89,15 @@ class BlockRunnerMessagesTest {
 		assertEquals("Error: PSF file /nope.tif does not exist", err.strip());
 	}
 
+	/** A recipe key Deconvolve... does not have is refused (not run with the default), naming the closest key. */
+	@Test
+	void aMistypedRecipeKeyIsOneLineNamingTheClosestKey() throws Exception {
+		final String recipe = recipe().replace("iterations=2", "iteration=2");
+		assertEquals(1, run(recipe, dir.resolve("in.tif").toString(), dir.resolve("o.tif").toString()));
+		assertEquals("Error: Unknown key 'iteration' — did you mean 'iterations'?", err.strip());
+		assertFalse(Files.exists(dir.resolve("o.tif")));
+	}
+
 	@Test
 	void aKilledRunsLeftoverIsNamedAndNoOtherRunsPartFileIsDeleted() throws Exception {
 		final String recipe = recipe();

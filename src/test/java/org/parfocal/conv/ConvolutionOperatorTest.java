@@ -161,14 +161,32 @@ class ConvolutionOperatorTest {
 		assertTrue(errors.isEmpty(), () -> "concurrent use failed: " + errors);
 	}
 
+	/**
+	 * Flux with a unit-sum kernel, from the adjoint identity Σ(Hᵀy) = ⟨1, Hᵀy⟩ = ⟨H1, y⟩ (textbook linear algebra)
+	 * and ⟨1, Hx⟩ = ⟨Hᵀ1, x⟩. Periodic: H is circulant, so H1 = Hᵀ1 = 1 and both directions keep the total.
+	 * Mirror: the extension of a constant is that constant, so H1 = 1 and the adjoint keeps the total (each
+	 * reflected copy is folded back once), but Hᵀ1 ≠ 1 near the faces, so H itself does not in general: a shifted
+	 * ramp loses exactly its end-to-start step per row (direct summation), which a periodic boundary would not.
+	 */
 	@Test
 	void unitSumPsfKeepsFluxWithPeriodicAndMirror() {
-		// Common practice: a unit-sum kernel conserves the total for circulant (periodic) and
-		// symmetric-reflection boundaries (each reflected voxel is counted once per copy).
 		final Volume x = TestVolumes.random(10, 24, 20, 9), h = Psfs.normalized(TestVolumes.random(11, 5, 5, 3));
 		final double s = x.sum();
-		assertEquals(s, ConvolutionOperator.create(h, x, Boundary.PERIODIC).apply(x).sum(), 1e-5 * s);
-		assertEquals(s, ConvolutionOperator.create(h, x, Boundary.PERIODIC).adjoint(x).sum(), 1e-5 * s);
+		final ConvolutionOperator periodic = ConvolutionOperator.create(h, x, Boundary.PERIODIC), mirror = ConvolutionOperator.create(h, x, Boundary.MIRROR);
+		assertEquals(s, periodic.apply(x).sum(), 1e-5 * s, "periodic H");
+		assertEquals(s, periodic.adjoint(x).sum(), 1e-5 * s, "periodic Hᵀ");
+		assertEquals(s, mirror.adjoint(x).sum(), 1e-5 * s, "mirror Hᵀ");
+		final Volume one = Volume.zeros(24, 20, 9, null);
+		java.util.Arrays.fill(one.data(), 1f);
+		final Volume h1 = mirror.apply(one);
+		for (int i = 0; i < h1.size(); i++) assertEquals(1, h1.data()[i], 1e-5, "mirror H1 = 1 at " + h1.position(i));
+		// a shift by one voxel along x of a ramp 1 … 24: (Hx)(i) = (Ex)(i − 1), so each row loses x(23) − x(0) = 23 with mirror edges
+		final Volume ramp = Volume.zeros(24, 20, 9, null), shift = Volume.zeros(3, 1, 3, null);
+		for (int i = 0; i < ramp.size(); i++) ramp.data()[i] = 1 + i % 24;
+		shift.set(2, 0, 1, 1f);
+		final double r = ramp.sum();
+		assertEquals(r - 23 * 20 * 9, ConvolutionOperator.create(shift, ramp, Boundary.MIRROR).apply(ramp).sum(), 1e-6 * r, "mirror H moves flux at the faces");
+		assertEquals(r, ConvolutionOperator.create(shift, ramp, Boundary.PERIODIC).apply(ramp).sum(), 1e-6 * r, "periodic H does not");
 	}
 
 	@Test

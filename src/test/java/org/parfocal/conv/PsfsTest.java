@@ -49,4 +49,31 @@ class PsfsTest {
 		assertEquals(up.position(arg), "(14, 14, 8)");
 		assertEquals(1, up.sum(), 1e-6);
 	}
+
+	/**
+	 * Placement on an FFT grid follows the origin convention of SciPy's {@code fftconvolve(mode="same")}
+	 * (voxel ⌊(k − 1)/2⌋, also for even sizes): that voxel lands on grid voxel s, the one before it on s − 1
+	 * modulo p (wrapping around), in a grid with padded rows; gathering reads the same voxels back.
+	 */
+	@Test
+	void placementPutsTheOriginOnTheShiftAndWraps() {
+		final int[] k = { 4, 3, 2 }, p = { 6, 5, 4 };
+		final int rs = 8; // rows padded as in RealFft's in-place grids
+		final float[] kernel = new float[24];
+		for (int j = 0; j < kernel.length; j++) kernel[j] = j + 1;
+		final float[] grid = new float[rs * p[1] * p[2]];
+		Psfs.place(kernel, k, grid, p, rs, new int[3], false);
+		// origin (1, 1, 0) at grid voxel 0; kernel voxel (0, 0, 0) at (−1, −1, 0) = (5, 4, 0); (3, 2, 1) at (2, 1, 1)
+		assertEquals(kernel[1 + 4 * 1], grid[0]);
+		assertEquals(kernel[0], grid[5 + rs * 4]);
+		assertEquals(kernel[3 + 4 * (2 + 3 * 1)], grid[2 + rs * (1 + p[1] * 1)]);
+		double sum = 0;
+		for (final float v : grid) sum += v;
+		assertEquals(24 * 25 / 2, sum, 0, "every voxel placed once");
+		final float[] shifted = new float[grid.length], back = new float[kernel.length];
+		Psfs.place(kernel, k, shifted, p, rs, new int[] { 1, 1, 0 }, false);
+		assertEquals(kernel[0], shifted[0], "shifted by the origin: the box starts at voxel 0");
+		Psfs.place(back, k, shifted, p, rs, new int[] { 1, 1, 0 }, true);
+		org.junit.jupiter.api.Assertions.assertArrayEquals(kernel, back);
+	}
 }

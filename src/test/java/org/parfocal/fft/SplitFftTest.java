@@ -62,7 +62,7 @@ class SplitFftTest {
 		for (int i = 0; i < 2 * n; i++) assertEquals(x[i], line[i], 2e-6, "round trip n " + n + " at " + i / 2);
 	}
 
-	/** Real transforms of lengths 2·3·2^k and 2·5·2^k against the definition, and their inverse. */
+	/** Real transforms of lengths 2·3^a·5^b·2^k (one step: 96 … 640; nested: 288 = 2·3·3·16, 576) against the definition, and their inverse. */
 	@ParameterizedTest(name = "n = {0}")
 	@ValueSource(ints = { 96, 160, 192, 320, 640, 576, 288 })
 	void realForwardAndInverseEqualTheDefinition(final int n) {

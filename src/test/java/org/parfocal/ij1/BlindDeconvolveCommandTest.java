@@ -79,7 +79,7 @@ class BlindDeconvolveCommandTest {
 		final float[] before = ((float[]) img.getStack().getPixels(5)).clone();
 		final ImageJHarness.Result run = ImageJHarness.run(img, CMD, OPTIONS);
 		assertArrayEquals(before, (float[]) img.getStack().getPixels(5), "input unchanged");
-		assertNull(Provenance.of(img).orElse(null), "input untouched");
+		assertNull(ImageProvenance.of(img).orElse(null), "input untouched");
 
 		final BlindOptions o = new BlindOptions(4, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5), true, false, true, BAND, 2,
 				EdgeMode.NON_CIRCULANT, Level.of(100), Level.ESTIMATED);
@@ -93,7 +93,7 @@ class BlindDeconvolveCommandTest {
 		for (final ImagePlus i : List.of(out, psf, hist)) {
 			assertEquals(0.08, i.getCalibration().pixelWidth, 1e-12, i.getTitle());
 			assertEquals(0.2, i.getCalibration().pixelDepth, 1e-12, i.getTitle());
-			assertEquals(List.copyOf(MacroOptions.parse(OPTIONS).keySet()), List.copyOf(Provenance.of(i).orElseThrow().options().keySet()),
+			assertEquals(List.copyOf(MacroOptions.parse(OPTIONS).keySet()), List.copyOf(ImageProvenance.of(i).orElseThrow().options().keySet()),
 					"provenance of " + i.getTitle() + " holds every key of the line");
 		}
 		assertEquals(9, psf.getWidth());
@@ -125,7 +125,7 @@ class BlindDeconvolveCommandTest {
 			assertEquals(snaps.get(t).distanceToStart(), rt.getValue("Distance to start", t), 1e-12);
 			assertEquals(snaps.get(t).sum(), rt.getValue("Sum", t), 1e-12);
 		}
-		final var p = Provenance.of(out).orElseThrow();
+		final var p = ImageProvenance.of(out).orElseThrow();
 		assertEquals("9x9x5", p.run().get("psf_box"));
 		assertEquals(3L, p.run().get("snapshots"));
 	}
@@ -149,8 +149,8 @@ class BlindDeconvolveCommandTest {
 		final BlindResult c1 = BlindDeconvolution.run(image, o1, Monitor.NONE);
 		assertClose(c1.estimate().data(), ImageBridge.toCore(created(r1, "cell-blind.tif")).first().data(), "open-image start = core");
 		assertClose(c1.psf().data(), ImageBridge.toCore(created(r1, "cell-blind-psf.tif")).first().data(), "open-image start: PSF = core");
-		final var p1 = Provenance.of(created(r1, "cell-blind.tif")).orElseThrow();
-		assertEquals(Provenance.sha256(psfImp), p1.inputs().get(1).sha256(), "the starting PSF is an input of the record");
+		final var p1 = ImageProvenance.of(created(r1, "cell-blind.tif")).orElseThrow();
+		assertEquals(ImageProvenance.sha256(psfImp), p1.inputs().get(1).sha256(), "the starting PSF is an input of the record");
 
 		// from the optics (Born & Wolf, second dialog) with the band limit from the same optics; z size automatic,
 		// cropped to the image's 10 slices (largest odd: 9)
@@ -170,7 +170,7 @@ class BlindDeconvolveCommandTest {
 		assertClose(c2.estimate().data(), ImageBridge.toCore(out2).first().data(), "optics start = core");
 		assertEquals(9, created(r2, "cell-blind-psf.tif").getNSlices());
 		assertTrue(String.join("\n", r2.log()).contains("cropped to the image"), () -> String.join("\n", r2.log()));
-		final var keys = List.copyOf(Provenance.of(out2).orElseThrow().options().keySet());
+		final var keys = List.copyOf(ImageProvenance.of(out2).orElseThrow().options().keySet());
 		assertEquals(List.copyOf(MacroOptions.parse(opt2).keySet()), keys);
 		assertEquals(1, keys.stream().filter("na"::equals).count(), "the optics keys appear once");
 	}
@@ -194,7 +194,7 @@ class BlindDeconvolveCommandTest {
 		assertEquals(1, hist.getNSlices());
 		assertEquals(3, hist.getNFrames());
 		assertEquals("iteration 4", hist.getStack().getSliceLabel(3));
-		assertFalse(Provenance.of(hist).orElseThrow().run().containsKey("fwhm_axial"), "no axial width in 2D");
+		assertFalse(ImageProvenance.of(hist).orElseThrow().run().containsKey("fwhm_axial"), "no axial width in 2D");
 	}
 
 	/**
@@ -213,7 +213,7 @@ class BlindDeconvolveCommandTest {
 				.withGaussianStart(org.parfocal.blind.FitPlan.GaussianStart.GAUSSIAN),
 				Monitor.NONE, null);
 		assertClose(core.estimate().data(), ImageBridge.toCore(created(run, "cell-blind.tif")).first().data(), "command = core");
-		final var prov = Provenance.of(created(run, "cell-blind.tif")).orElseThrow();
+		final var prov = ImageProvenance.of(created(run, "cell-blind.tif")).orElseThrow();
 		assertTrue(String.valueOf(prov.run().get("model_fit")).startsWith("gaussian: fwhm_xy = "), "fitted parameters recorded");
 		assertEquals("model-fit-refined", prov.options().get("estimate"));
 		final ResultsTable rt = BlindDeconvolve.table(core, "µm");
@@ -243,7 +243,7 @@ class BlindDeconvolveCommandTest {
 		final BlindResult gauss = BlindDeconvolution.run(ImageBridge.toCore(img).first(), o, org.parfocal.blind.FitPlan.model().withTrustRadius(0.15)
 				.withGaussianStart(org.parfocal.blind.FitPlan.GaussianStart.GAUSSIAN), Monitor.NONE, null);
 		assertClose(wide.estimate().data(), ImageBridge.toCore(created(run, "cell-blind.tif")).first().data(), "command = core with the widefield shape");
-		assertEquals("widefield-fit", Provenance.of(created(run, "cell-blind.tif")).orElseThrow().options().get("estimate"));
+		assertEquals("widefield-fit", ImageProvenance.of(created(run, "cell-blind.tif")).orElseThrow().options().get("estimate"));
 		double d = 0;
 		final float[] a = wide.psf().data(), b = gauss.psf().data();
 		for (int i = 0; i < Math.min(a.length, b.length); i++) d += Math.abs(a[i] - b[i]);
@@ -315,7 +315,7 @@ class BlindDeconvolveCommandTest {
 		assertEquals(5, w.points().size());
 		assertTrue(k >= 3 && k <= 15 && k % 3 == 0, "suggestion " + k);
 
-		final var p = Provenance.of(out).orElseThrow();
+		final var p = ImageProvenance.of(out).orElseThrow();
 		assertEquals((long) k, p.run().get("suggested_iteration"));
 		assertEquals((long) k, p.run().get("returned_iteration"));
 		assertEquals(w.suggestion().reason(), p.run().get("suggestion"));
@@ -335,7 +335,7 @@ class BlindDeconvolveCommandTest {
 		assertEquals(List.copyOf(MacroOptions.parse(WATCH.replace(" references=", " reference_folder=").replace(" open_references=", " reference_images=")
 				+ " stop_at_suggestion").keySet()), List.copyOf(p.options().keySet()));
 		assertEquals(keys, List.copyOf(p.options().keySet()));
-		assertEquals((long) k, Provenance.of(psf).orElseThrow().run().get("returned_iteration"), "the PSF's record too");
+		assertEquals((long) k, ImageProvenance.of(psf).orElseThrow().run().get("returned_iteration"), "the PSF's record too");
 
 		final BlindResult stopped = BlindDeconvolution.run(y, new BlindOptions(k, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5),
 				true, false, true, BAND, Math.min(5, k), EdgeMode.NON_CIRCULANT, Level.of(100), Level.of(2)), Monitor.NONE);
@@ -350,8 +350,8 @@ class BlindDeconvolveCommandTest {
 		final int kc = wc.suggestion().iteration();
 		assertTrue(kc > 0 && kc < 15, "chi-square-only suggestion " + kc);
 		final ImagePlus outChi = created(chiOnly, "cell-blind.tif");
-		assertEquals((long) kc, Provenance.of(outChi).orElseThrow().run().get("returned_iteration"));
-		assertFalse(Provenance.of(outChi).orElseThrow().run().containsKey("watch_floor"), "no floor without references");
+		assertEquals((long) kc, ImageProvenance.of(outChi).orElseThrow().run().get("returned_iteration"));
+		assertFalse(ImageProvenance.of(outChi).orElseThrow().run().containsKey("watch_floor"), "no floor without references");
 		final BlindResult stoppedChi = BlindDeconvolution.run(y, new BlindOptions(kc, 1, 1, 0.002, 0.001, PsfStart.gaussian(0.3, 0.8), new SupportBox(9, 9, 5),
 				true, false, true, BAND, Math.min(5, kc), EdgeMode.NON_CIRCULANT, Level.of(100), Level.of(2)), Monitor.NONE);
 		assertClose(stoppedChi.estimate().data(), ImageBridge.toCore(outChi).first().data(), "chi-square only: output = the object at the suggestion");
@@ -368,8 +368,8 @@ class BlindDeconvolveCommandTest {
 		assertArrayEquals(ImageBridge.toCore(created(plain, "cell-blind.tif")).first().data(), ImageBridge.toCore(created(off, "cell-blind.tif")).first().data(),
 				0f, "watch on or off: the same result");
 		assertTrue(off.created().stream().noneMatch(i -> i.getTitle().startsWith("Quality of")), "no quality plot when off");
-		assertFalse(Provenance.of(created(off, "cell-blind.tif")).orElseThrow().run().containsKey("watch_rule"), "no watch facts when off");
-		assertFalse(Provenance.of(created(plain, "cell-blind.tif")).orElseThrow().run().containsKey("returned_iteration"));
+		assertFalse(ImageProvenance.of(created(off, "cell-blind.tif")).orElseThrow().run().containsKey("watch_rule"), "no watch facts when off");
+		assertFalse(ImageProvenance.of(created(plain, "cell-blind.tif")).orElseThrow().run().containsKey("returned_iteration"));
 	}
 
 	@Test
@@ -425,7 +425,7 @@ class BlindDeconvolveCommandTest {
 		assertTrue(r.created().isEmpty(), "nothing created: " + r.created());
 		assertEquals(1, Interpreter.getBatchModeImageIDs().length, "only the input is open");
 		assertArrayEquals(before, (float[]) img.getStack().getPixels(3));
-		assertNull(Provenance.of(img).orElse(null), "input untouched");
+		assertNull(ImageProvenance.of(img).orElse(null), "input untouched");
 	}
 
 	@Test
@@ -461,7 +461,7 @@ class BlindDeconvolveCommandTest {
 		for (final String k : all) assertTrue(opts.matches("(^|.* )" + k + "(=.*| .*|$)"), "recorded line lacks " + k + ": " + rec.line());
 		final ImagePlus recorded = rec.result().created().stream().filter(i -> i.getTitle().equals("cell-blind.tif")).findFirst().orElseThrow();
 		for (final ImagePlus i : rec.result().created().stream().filter(i -> i.getTitle().startsWith("cell-blind")).toList())
-			assertEquals(List.copyOf(MacroOptions.parse(opts).keySet()), List.copyOf(Provenance.of(i).orElseThrow().options().keySet()),
+			assertEquals(List.copyOf(MacroOptions.parse(opts).keySet()), List.copyOf(ImageProvenance.of(i).orElseThrow().options().keySet()),
 					"provenance of " + i.getTitle() + " holds exactly the recorded keys");
 		ImageJHarness.assertSamePixels(recorded, ImageJHarness.replayInHeadlessJvm(rec.line(), img), 0);
 	}

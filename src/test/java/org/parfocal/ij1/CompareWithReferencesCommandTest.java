@@ -143,10 +143,10 @@ class CompareWithReferencesCommandTest {
 		// the plot image carries the provenance: every key, every input
 		final ImagePlus plot = r.created().stream().filter(i -> i.getTitle().startsWith("Marginals of result")).findFirst().orElseThrow(
 				() -> new AssertionError("no plot among " + r.created()));
-		final var p = Provenance.of(plot).orElseThrow();
+		final var p = ImageProvenance.of(plot).orElseThrow();
 		assertEquals(KEYS, List.copyOf(p.options().keySet()));
 		assertEquals(1 + 4 + 2, p.inputs().size(), "result, 4 references, input, psf");
-		assertEquals(Provenance.sha256(third), p.inputs().get(3).sha256());
+		assertEquals(ImageProvenance.sha256(third), p.inputs().get(3).sha256());
 		assertEquals(core.distance(), ((Number) p.run().get("patch_distance")).doubleValue(), 1e-12);
 	}
 
@@ -169,7 +169,7 @@ class CompareWithReferencesCommandTest {
 		final ImagePlus res = image(deconvolved(), "result.tif"), rec = image(recording(), "recording.tif"), psf = image(psf(), "psf.tif");
 		open(res, rec, psf);
 		final ImageJHarness.Result r = ImageJHarness.run(res, CMD, options(dir.toString(), "") + " match_resolution");
-		final var p = Provenance.of(r.created().stream().filter(i -> i.getTitle().startsWith("Marginals of result")).findFirst().orElseThrow()).orElseThrow();
+		final var p = ImageProvenance.of(r.created().stream().filter(i -> i.getTitle().startsWith("Marginals of result")).findFirst().orElseThrow()).orElseThrow();
 		assertTrue(p.options().containsKey("match_resolution"), p.options().toString());
 		final MatchedResolution expected = MatchedResolution.expectedFromPsf(ImageBridge.toCore(psf).first(), VOXEL);
 		assertEquals(ComparisonRun.expectedText(expected, true), p.run().get("expected_resolution"));
@@ -203,7 +203,7 @@ class CompareWithReferencesCommandTest {
 		assertFails("The reference 'sharp-open-1.tif' has no calibration but 'result.tif' has", res, opts);
 		assertFails("add ignore_calibration", res, opts);
 		final ImagePlus plot = ImageJHarness.run(res, CMD, opts + " ignore_calibration").onlyCreated();
-		assertTrue(Provenance.of(plot).orElseThrow().options().containsKey("ignore_calibration"));
+		assertTrue(ImageProvenance.of(plot).orElseThrow().options().containsKey("ignore_calibration"));
 	}
 
 	@Test
@@ -262,10 +262,10 @@ class CompareWithReferencesCommandTest {
 		final String opts = ImageJHarness.parseRunLine(recd.line())[1];
 		for (final String k : KEYS) assertTrue(opts.matches("(^|.* )" + k + "(=.*| .*|$)"), "recorded line lacks " + k + ": " + recd.line());
 		final ImagePlus plot = recd.result().created().stream().filter(i -> i.getTitle().startsWith("Marginals of")).findFirst().orElseThrow();
-		final var p = Provenance.of(plot).orElseThrow();
+		final var p = ImageProvenance.of(plot).orElseThrow();
 		assertEquals(List.copyOf(MacroOptions.parse(opts).keySet()), List.copyOf(p.options().keySet()), "provenance holds exactly the recorded keys");
 		final ImagePlus replayed = ImageJHarness.replayInHeadlessJvm(recd.line(), res, rec, psf);
-		final var q = Provenance.of(replayed).orElseThrow();
+		final var q = ImageProvenance.of(replayed).orElseThrow();
 		assertEquals(p.run().get("patch_distance"), q.run().get("patch_distance"), "same distance replayed headless");
 		assertEquals(p.run().get("chi_square"), q.run().get("chi_square"));
 	}

@@ -69,7 +69,7 @@ class ConvolveWithPsfCommandTest {
 		final Volume expected = new Acquisition(ImageBridge.toVolume(h, "psf"), ImageBridge.toCore(obj).first().shape(),
 				new Acquisition.Options(Boundary.MIRROR, true, 2, 0, 1, 100)).record(ImageBridge.toCore(obj).first(), Monitor.NONE);
 		assertArrayEquals(expected.data(), ImageBridge.toCore(out).first().data(), "command output = core output");
-		assertEquals("run(\"Convolve with PSF...\", \"" + options + "\");", Provenance.of(out).orElseThrow().macro());
+		assertEquals("run(\"Convolve with PSF...\", \"" + options + "\");", ImageProvenance.of(out).orElseThrow().macro());
 	}
 
 	/**
@@ -84,10 +84,10 @@ class ConvolveWithPsfCommandTest {
 		final String path = dir.resolve("out.tif").toString();
 		assertTrue(new ij.io.FileSaver(out).saveAsTiff(path));
 		final ImagePlus reopened = IJ.openImage(path);
-		final org.parfocal.provenance.Provenance p = Provenance.of(reopened).orElseThrow();
+		final org.parfocal.provenance.Provenance p = ImageProvenance.of(reopened).orElseThrow();
 		assertEquals(KEYS, List.copyOf(p.options().keySet()), "every dialog key is in the provenance");
-		assertEquals(Provenance.sha256(obj), p.inputs().get(0).sha256());
-		assertEquals(Provenance.sha256(h), p.inputs().get(1).sha256());
+		assertEquals(ImageProvenance.sha256(obj), p.inputs().get(0).sha256());
+		assertEquals(ImageProvenance.sha256(h), p.inputs().get(1).sha256());
 		final String[] call = ImageJHarness.parseRunLine(p.macro());
 		final ImagePlus again = ImageJHarness.run(obj, call[0], call[1]).onlyCreated();
 		ImageJHarness.assertSamePixels(reopened, again, 0);

@@ -114,7 +114,7 @@ class DeconvolveChoicesTest {
 		final ImagePlus b = ImageJHarness.run(img, "Deconvolve...", words).onlyCreated();
 		ImageJHarness.assertSamePixels(a, b, 0);
 		// the record keeps the released values either way
-		final var rb = Provenance.of(b).orElseThrow().options();
+		final var rb = ImageProvenance.of(b).orElseThrow().options();
 		assertEquals("accelerated-richardson-lucy", rb.get("method"));
 		assertEquals("periodic", rb.get("edges"));
 		assertNull(rb.get("output"), "32-bit, the default, is left out of the record as out of recorded lines");
@@ -133,7 +133,7 @@ class DeconvolveChoicesTest {
 		ImageJHarness.open(img, psf);
 		final var opts = org.parfocal.deconv.DeconvolutionOptions.of(DeconvolutionMethod.RL, DeconvolvePreview.MAX_ITERATIONS)
 				.withOffset(org.parfocal.deconv.Level.of(100)).withBackground(org.parfocal.deconv.Level.of(2));
-		final DeconvolvePreview.Result r = DeconvolvePreview.compute(new DeconvolvePreview.Settings("cell.tif", "psf.tif", opts, false), () -> false);
+		final PreviewRun.Result r = PreviewRun.compute(new PreviewRun.Settings("cell.tif", "psf.tif", opts, false), () -> false);
 		assertEquals(2, r.z0());
 		assertEquals(8, r.z1());
 		assertEquals(DeconvolvePreview.MAX_ITERATIONS, r.iterations());
@@ -184,7 +184,7 @@ class DeconvolveChoicesTest {
 		final ImagePlus s = ImageJHarness.run(img, "Deconvolve...", opts + " output=16-bit").onlyCreated();
 		assertEquals(ImagePlus.GRAY32, f.getType());
 		assertEquals(ImagePlus.GRAY16, s.getType());
-		final var rec = Provenance.of(s).orElseThrow();
+		final var rec = ImageProvenance.of(s).orElseThrow();
 		assertEquals("16-bit", rec.options().get("output"));
 		final double offset = ((Number) rec.run().get("output_offset")).doubleValue(), scale = ((Number) rec.run().get("output_scale")).doubleValue();
 		assertTrue(scale > 0);

@@ -83,11 +83,11 @@ class DeconvolveCommandTest {
 				Level.of(100), Level.ESTIMATED);
 		final Volume core = Deconvolution.run(ImageBridge.toCore(img).first(), gaussianPsf(), d, Monitor.NONE).estimate();
 		assertArrayEquals(core.data(), ImageBridge.toCore(out).first().data(), 1e-6f * max(core.data()), "command = core");
-		final var p = Provenance.of(out).orElseThrow();
+		final var p = ImageProvenance.of(out).orElseThrow();
 		assertEquals(KEYS.subList(0, KEYS.size() - 1), List.copyOf(p.options().keySet()));
 		assertEquals(12L, p.run().get("iterations"));
 		assertTrue(p.run().get("stop_reason").toString().contains("12 iteration"));
-		assertEquals(Provenance.sha256(psf), p.inputs().get(1).sha256());
+		assertEquals(ImageProvenance.sha256(psf), p.inputs().get(1).sha256());
 	}
 
 	@Test
@@ -98,15 +98,21 @@ class DeconvolveCommandTest {
 				+ "coverslip_thickness=170 depth=0 immersion_index_design=1.333 coverslip_index_design=1.522 coverslip_thickness_design=170 "
 				+ "working_distance=150 emission=0.52 excitation=0.488 pinhole=1 sheet_thickness=2 voxel_xy=0.08 voxel_z=0.2 size_xy=15 size_z=7";
 		final String options = OPTIONS.replace("psf=psf.tif", "psf=from_optics").replace("iterations=12", "iterations=5") + " " + optics;
-		final ImagePlus out = ImageJHarness.run(img, CMD, options).onlyCreated();
+		final ImageJHarness.Result run = ImageJHarness.run(img, CMD, options);
+		final ImagePlus out = run.onlyCreated();
 		final Volume psf = PsfModels.get("born-wolf").compute(Optics.builder().na(1.2).immersionIndex(1.333).emissionWavelength(0.52).build(),
 				new PsfGrid(15, 15, 7, 0.08, 0.08, 0.2));
 		final DeconvolutionOptions d = new DeconvolutionOptions(DeconvolutionMethod.RL_TV, 5, 0.002, Stopping.FIXED, 0.001, EdgeMode.NON_CIRCULANT,
 				Level.of(100), Level.ESTIMATED);
 		final Volume core = Deconvolution.run(ImageBridge.toCore(img).first(), psf, d, Monitor.NONE).estimate();
 		assertArrayEquals(core.data(), ImageBridge.toCore(out).first().data(), 1e-6f * max(core.data()));
-		final var keys = Provenance.of(out).orElseThrow().options().keySet();
+		final var keys = ImageProvenance.of(out).orElseThrow().options().keySet();
 		assertTrue(keys.containsAll(List.of("na", "sample_index", "voxel_z", "size_xy")), keys.toString());
+		// issue 17: the pinhole was given but a widefield PSF has none: accepted, recorded, ignored, and said once
+		final java.util.Map<?, ?> ignored = (java.util.Map<?, ?>) ImageProvenance.of(out).orElseThrow().run().get("ignored");
+		assertEquals("widefield modality has no pinhole", ignored.get("pinhole"), String.valueOf(ignored));
+		assertTrue(ignored.containsKey("working_distance") && !ignored.containsKey("na") && !ignored.containsKey("emission"), String.valueOf(ignored));
+		assertEquals(1, run.log().stream().filter(l -> l.startsWith("Deconvolve: not used by born-wolf widefield, ignored:")).count(), run.log()::toString);
 	}
 
 	/** A stack whose padded transform does not fit the memory budget is deconvolved block by block, and says so. */
@@ -133,7 +139,7 @@ class DeconvolveCommandTest {
 		}
 		assertTrue(String.join("\n", r.log()).contains("deconvolving block by block"), () -> String.join("\n", r.log()));
 		final ImagePlus blocks = r.onlyCreated();
-		final var p = Provenance.of(blocks).orElseThrow();
+		final var p = ImageProvenance.of(blocks).orElseThrow();
 		assertTrue(p.run().get("block_plan") instanceof java.util.Map<?, ?>, "the block plan is in the provenance");
 		final float[] a = ImageBridge.toCore(whole).first().data(), b = ImageBridge.toCore(blocks).first().data();
 		float range = 0, diff = 0;
@@ -151,7 +157,7 @@ class DeconvolveCommandTest {
 		open(img, fine);
 		final ImageJHarness.Result r = ImageJHarness.run(img, CMD, OPTIONS.replace("iterations=12", "iterations=2"));
 		assertTrue(String.join("\n", r.log()).contains("PSF resampled from 0.04 x 0.04 x 0.1 µm"), () -> String.join("\n", r.log()));
-		assertTrue(Provenance.of(r.onlyCreated()).orElseThrow().run().get("notes").toString().contains("resampled"));
+		assertTrue(ImageProvenance.of(r.onlyCreated()).orElseThrow().run().get("notes").toString().contains("resampled"));
 	}
 
 	@Test
@@ -208,7 +214,7 @@ class DeconvolveCommandTest {
 		assertTrue(r.created().stream().noneMatch(i -> i.getTitle().contains("deconvolved")), "nothing created: " + r.created());
 		assertEquals(2, Interpreter.getBatchModeImageIDs().length, "only the two inputs are open");
 		assertArrayEquals(before, (float[]) img.getStack().getPixels(3));
-		assertNull(Provenance.of(img).orElse(null), "input untouched");
+		assertNull(ImageProvenance.of(img).orElse(null), "input untouched");
 	}
 
 	/** Sharp references of the same kind: other cells of the sample scene (our own synthetic data), calibrated like the recording. */
@@ -252,7 +258,7 @@ class DeconvolveCommandTest {
 		Deconvolution.run(y, gaussianPsf(), d, null, Monitor.NONE, w);
 		final int k = w.suggestion().iteration();
 		assertEquals(20, w.points().size());
-		final var p = Provenance.of(out).orElseThrow();
+		final var p = ImageProvenance.of(out).orElseThrow();
 		assertEquals((long) k, p.run().get("suggested_iteration"));
 		assertEquals((long) k, p.run().get("returned_iteration"));
 		assertTrue(p.run().get("stop_reason").toString().contains("suggested iterate " + k), p.run().get("stop_reason").toString());
@@ -270,7 +276,7 @@ class DeconvolveCommandTest {
 		Deconvolution.run(y, gaussianPsf(), d, null, Monitor.NONE, wc);
 		final int kc = wc.suggestion().iteration();
 		assertTrue(kc > 0 && kc < 60, "chi-square-only suggestion " + kc);
-		assertEquals((long) kc, Provenance.of(chiOnly).orElseThrow().run().get("returned_iteration"));
+		assertEquals((long) kc, ImageProvenance.of(chiOnly).orElseThrow().run().get("returned_iteration"));
 		final Volume stoppedChi = Deconvolution.run(y, gaussianPsf(), d.withIterations(kc), Monitor.NONE).estimate();
 		assertArrayEquals(stoppedChi.data(), ImageBridge.toCore(chiOnly).first().data(), 1e-6f * max(stoppedChi.data()));
 		// without stop_at_suggestion the output is the last iterate, as without watch mode
@@ -295,15 +301,15 @@ class DeconvolveCommandTest {
 				Level.of(100), Level.FIT);
 		final org.parfocal.deconv.DeconvolutionResult core = Deconvolution.run(ImageBridge.toCore(img).first(), gaussianPsf(), d, Monitor.NONE);
 		assertArrayEquals(core.estimate().data(), ImageBridge.toCore(out).first().data(), 1e-6f * max(core.estimate().data()), "command = core");
-		final var p = Provenance.of(out).orElseThrow();
+		final var p = ImageProvenance.of(out).orElseThrow();
 		assertEquals("fit", p.options().get("background"));
 		assertEquals(core.background(), ((Number) p.run().get("background")).doubleValue(), 1e-9 * core.background());
 		assertTrue(p.run().get("notes").toString().contains("Background fitted with the object"), p.run().get("notes").toString());
 		final String watch = fit + " watch every=4 reference_folder=[] reference_images=[] photons=1 read_noise=0";
-		final var withEstimate = Provenance.of(ImageJHarness.run(img, CMD, watch + " estimate_noise").created().stream()
+		final var withEstimate = ImageProvenance.of(ImageJHarness.run(img, CMD, watch + " estimate_noise").created().stream()
 				.filter(i -> i.getTitle().startsWith("cell-deconvolved")).findFirst().orElseThrow()).orElseThrow();
 		assertTrue(withEstimate.run().get("notes").toString().contains("watch noise model estimated from the recording"), withEstimate.run().get("notes").toString());
-		final var without = Provenance.of(ImageJHarness.run(img, CMD, watch).created().stream()
+		final var without = ImageProvenance.of(ImageJHarness.run(img, CMD, watch).created().stream()
 				.filter(i -> i.getTitle().startsWith("cell-deconvolved")).findFirst().orElseThrow()).orElseThrow();
 		assertTrue(!without.run().get("notes").toString().contains("watch noise model"), without.run().get("notes").toString());
 	}
@@ -348,7 +354,7 @@ class DeconvolveCommandTest {
 		for (final String k : KEYS) assertTrue(opts.matches("(^|.* )" + k + "(=.*| .*|$)"), "recorded line lacks " + k + ": " + rec.line());
 		final ImagePlus recorded = rec.result().created().stream().filter(i -> i.getTitle().equals("cell-deconvolved.tif")).findFirst().orElseThrow();
 		assertEquals(List.copyOf(org.parfocal.provenance.MacroOptions.parse(opts).keySet()),
-				List.copyOf(Provenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
+				List.copyOf(ImageProvenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
 		ImageJHarness.assertSamePixels(recorded, ImageJHarness.replayInHeadlessJvm(rec.line(), img, psf), 0);
 	}
 

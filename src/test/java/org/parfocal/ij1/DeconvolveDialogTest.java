@@ -101,7 +101,7 @@ class DeconvolveDialogTest {
 		assertEquals(psf.getTitle(), given.get("psf"), rec.line());
 		final ImagePlus out = rec.result().created().stream().filter(i -> i.getTitle().equals("cell-deconvolved.tif")).findFirst().orElseThrow();
 		assertEquals(ImagePlus.GRAY16, out.getType());
-		assertEquals(List.copyOf(given.keySet()), List.copyOf(Provenance.of(out).orElseThrow().options().keySet()), "the record holds the recorded keys");
+		assertEquals(List.copyOf(given.keySet()), List.copyOf(ImageProvenance.of(out).orElseThrow().options().keySet()), "the record holds the recorded keys");
 		ImageJHarness.assertSamePixels(out, ImageJHarness.replayInHeadlessJvm(rec.line(), img, psf), 0);
 	}
 

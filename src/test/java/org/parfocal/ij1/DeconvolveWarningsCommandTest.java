@@ -38,13 +38,13 @@ class DeconvolveWarningsCommandTest {
 		DeconvolveCommandTest.open(img, flat, gauss);
 		final ImageJHarness.Result cut = ImageJHarness.run(img, "Deconvolve...", "image=cell.tif psf=flat.tif method=richardson-lucy iterations=2 regularization=0 "
 				+ "stop=fixed threshold=0.001 edges=non-circulant offset=100 background=2");
-		final String notes = String.valueOf(Provenance.of(output(cut)).orElseThrow().run().get("notes"));
+		final String notes = String.valueOf(ImageProvenance.of(output(cut)).orElseThrow().run().get("notes"));
 		assertTrue(notes.contains("cut off laterally") && notes.contains("100 %"), notes);
 		ImageJHarness.closeAll();
 		DeconvolveCommandTest.open(img, gauss);
 		final ImageJHarness.Result w = ImageJHarness.run(img, "Deconvolve...", "image=cell.tif psf=psf.tif method=richardson-lucy iterations=2 regularization=0 "
 				+ "stop=fixed threshold=0.001 edges=non-circulant offset=100 background=2 watch every=1 references=[] open_references=[] photons=1 read_noise=0");
-		final var run = Provenance.of(output(w)).orElseThrow().run();
+		final var run = ImageProvenance.of(output(w)).orElseThrow().run();
 		assertEquals(false, run.get("suggestion_interior"), run.toString());
 		assertTrue(String.valueOf(run.get("notes")).contains("no interior crossing"), run.toString());
 		// the 9 x 9 x 5 Gaussian fits its box laterally; axially it is cut at 1.3 σ (outer planes 45 % of the central one) and is flagged so

@@ -54,7 +54,7 @@ class DefaultRunCommandTest {
 		ij.Prefs.set("parfocal.deconvolve.method", "wiener");
 
 		final ImagePlus def = ImageJHarness.run(img, "Deconvolve...", "image=cell.tif psf=psf.tif offset=100 background=2").onlyCreated();
-		final var p = Provenance.of(def).orElseThrow();
+		final var p = ImageProvenance.of(def).orElseThrow();
 		assertEquals(DeconvolutionMethod.RL_ACCELERATED.key(), p.options().get("method"));
 		assertEquals("100", p.options().get("iterations"));
 		assertEquals("held-out", p.options().get("stop"));
@@ -76,13 +76,13 @@ class DefaultRunCommandTest {
 		final ImagePlus o = ImageJHarness.run(img, "Deconvolve...", old).onlyCreated();
 		assertArrayEquals(core(img, new DeconvolutionOptions(DeconvolutionMethod.RL_TV, 12, 0.002, Stopping.FIXED, 0.001, EdgeMode.NON_CIRCULANT,
 				Level.of(100), Level.ESTIMATED)).data(), pixels(o));
-		assertEquals(12L, Provenance.of(o).orElseThrow().run().get("iterations"));
+		assertEquals(12L, ImageProvenance.of(o).orElseThrow().run().get("iterations"));
 
 		// iterations given, stop left out: all of them, as before
 		final ImagePlus n = ImageJHarness.run(img, "Deconvolve...", "image=cell.tif psf=psf.tif method=richardson-lucy iterations=7 offset=100 background=2")
 				.onlyCreated();
-		assertEquals("fixed", Provenance.of(n).orElseThrow().options().get("stop"));
-		assertEquals(7L, Provenance.of(n).orElseThrow().run().get("iterations"));
+		assertEquals("fixed", ImageProvenance.of(n).orElseThrow().options().get("stop"));
+		assertEquals(7L, ImageProvenance.of(n).orElseThrow().run().get("iterations"));
 	}
 
 	/** Recipes (bin/parfocal-blocks, Spark) read omitted keys the same way. */

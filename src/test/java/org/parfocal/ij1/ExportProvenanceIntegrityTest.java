@@ -161,7 +161,7 @@ class ExportProvenanceIntegrityTest {
 		// as an input of another command the damaged record is not Parfocal's: the run goes on, without a trace
 		final ImagePlus again = ImageJHarness.run(out, "Convolve with PSF...", "image=[" + out.getTitle() + "] psf=psf.tif boundary=zero normalize "
 				+ "background=0 photons=0 seed=1 offset=0").onlyCreated();
-		assertTrue(org.parfocal.ij1.Provenance.of(again).isPresent());
+		assertTrue(org.parfocal.ij1.ImageProvenance.of(again).isPresent());
 	}
 
 	/** Issue 13.3: a swapped input file stops the rebuild with one line before anything runs on it. */

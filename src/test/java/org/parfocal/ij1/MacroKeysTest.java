@@ -73,7 +73,7 @@ class MacroKeysTest {
 		ImageJHarness.open(res, a, b);
 		final ImageJHarness.Result r = ImageJHarness.run(res, "Compare with Sharp References...",
 				"result=result.tif open_references=[cells*] patches=512 bootstrap=0");
-		final var p = Provenance.of(r.output()).orElseThrow();
+		final var p = ImageProvenance.of(r.output()).orElseThrow();
 		assertEquals("cells*", p.options().get("reference_images"));
 		assertEquals("", p.options().get("reference_folder"));
 	}
@@ -125,7 +125,7 @@ class MacroKeysTest {
 		final ImagePlus c = ImageJHarness.run(obj, "Convolve with PSF...", "photons=5 normalize psf=psf.tif image=cell.tif").onlyCreated();
 		ImageJHarness.assertSamePixels(a, c, 0);
 		final ImagePlus d = ImageJHarness.run(obj, "Deconvolve...", "image=cell.tif psf=psf.tif offset=0 background=0").onlyCreated();
-		final var p = Provenance.of(d).orElseThrow().options();
+		final var p = ImageProvenance.of(d).orElseThrow().options();
 		assertEquals("100", p.get("iterations"), "the documented default (the default run's cap), not the remembered 1");
 		assertEquals("accelerated-richardson-lucy", p.get("method"));
 		assertEquals("held-out", p.get("stop"));

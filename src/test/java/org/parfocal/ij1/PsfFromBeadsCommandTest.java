@@ -69,7 +69,7 @@ class PsfFromBeadsCommandTest {
 		final ImagePlus in = beads("beads.tif");
 		open(in);
 		final short[] before = ((short[]) in.getStack().getPixels(10)).clone();
-		final String sha = Provenance.sha256(in);
+		final String sha = ImageProvenance.sha256(in);
 		final ImagePlus psf = ImageJHarness.run(in, CMD, OPTIONS).onlyCreated();
 		assertEquals(32, psf.getBitDepth());
 		assertEquals(0.05, psf.getCalibration().pixelWidth, 1e-12);
@@ -79,8 +79,8 @@ class PsfFromBeadsCommandTest {
 				new BeadOptions(1.5, 2.4, 0.1, 6, true, 16, 3.5, BackgroundMode.STACK, Averaging.MEAN, false), Monitor.NONE);
 		assertArrayEquals(core.psf().data(), ImageBridge.toVolume(psf, "psf").data(), "command = core, with the bit depth passed (16)");
 		assertArrayEquals(before, (short[]) in.getStack().getPixels(10), "input pixels unchanged");
-		assertEquals(sha, Provenance.sha256(in));
-		final var p = Provenance.of(psf).orElseThrow();
+		assertEquals(sha, ImageProvenance.sha256(in));
+		final var p = ImageProvenance.of(psf).orElseThrow();
 		assertEquals(List.of("image", "box_xy", "box_z", "bead_diameter", "threshold", "reject_saturated", "outlier_z", "background", "averaging",
 				"voxel_xy", "voxel_z", "optics"), List.copyOf(p.options().keySet()), "every key given (unset flags and absent optics aside)");
 		assertEquals(4, ((Number) p.run().get("beads_accepted")).intValue());
@@ -102,10 +102,10 @@ class PsfFromBeadsCommandTest {
 				+ "averaging=median symmetrize voxel_xy=0 voxel_z=0 optics=born-wolf modality=widefield na=1.2 immersion_index=1.333 sample_index=1.333 "
 				+ "depth=0 emission=0.52 excitation=0.488 pinhole=1 sheet_thickness=2";
 		final ImageJHarness.Result r = ImageJHarness.run(in, CMD, withOptics);
-		final var run = Provenance.of(r.onlyCreated()).orElseThrow().run();
+		final var run = ImageProvenance.of(r.onlyCreated()).orElseThrow().run();
 		final double measured = ((Number) run.get("fwhm_x_um")).doubleValue(), model = ((Number) run.get("model_fwhm_x_um")).doubleValue();
 		assertEquals(model, measured, 0.05 * model, "the beads were drawn with this very model");
-		assertEquals(KEYS, List.copyOf(Provenance.of(r.onlyCreated()).orElseThrow().options().keySet()));
+		assertEquals(KEYS, List.copyOf(ImageProvenance.of(r.onlyCreated()).orElseThrow().options().keySet()));
 	}
 
 	@Test
@@ -158,7 +158,7 @@ class PsfFromBeadsCommandTest {
 		for (final String k : KEYS) assertTrue(opts.contains(k), "recorded line lacks " + k + ": " + rec.line());
 		final ImagePlus recorded = rec.result().created().stream().filter(i -> i.getTitle().startsWith("psf-beads")).findFirst().orElseThrow();
 		assertEquals(List.copyOf(org.parfocal.provenance.MacroOptions.parse(opts).keySet()),
-				List.copyOf(Provenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
+				List.copyOf(ImageProvenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
 		ImageJHarness.assertSamePixels(recorded, ImageJHarness.replayInHeadlessJvm(rec.line(), in), 0);
 	}
 }

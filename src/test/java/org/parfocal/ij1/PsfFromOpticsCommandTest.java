@@ -7,6 +7,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import java.awt.Choice;
 import java.awt.TextField;
 import java.util.List;
+import java.util.Map;
 
 import ij.ImagePlus;
 import ij.macro.Interpreter;
@@ -52,7 +53,7 @@ class PsfFromOpticsCommandTest {
 		final Volume got = ImageBridge.toVolume(psf, "psf");
 		org.junit.jupiter.api.Assertions.assertArrayEquals(core.data(), got.data(), 1e-9f);
 		assertEquals(1.0, got.sum(), 1e-5, "unit sum");
-		final var p = Provenance.of(psf).orElseThrow();
+		final var p = ImageProvenance.of(psf).orElseThrow();
 		assertEquals(KEYS.subList(0, KEYS.size() - 1), List.copyOf(p.options().keySet()), "every key but the unchecked flag");
 		assertEquals(Fwhm.lateral(core), ((Number) p.run().get("fwhm_x_um")).doubleValue(), 1e-12);
 	}
@@ -60,12 +61,32 @@ class PsfFromOpticsCommandTest {
 	/** Issue 17: a widefield run recorded excitation=0 and sheet_thickness=0 where the dialog showed 0.488 and 2. */
 	@Test
 	void theRecordKeepsWhatWasEnteredAndSaysWhichFieldsTheModalityIgnored() {
-		final var p = Provenance.of(ImageJHarness.run(null, CMD, OPTIONS).onlyCreated()).orElseThrow();
+		final ImageJHarness.Result r = ImageJHarness.run(null, CMD, OPTIONS);
+		final var p = ImageProvenance.of(r.onlyCreated()).orElseThrow();
 		assertEquals("0.488", p.options().get("excitation"));
 		assertEquals("2", p.options().get("sheet_thickness"));
-		final String ignored = String.valueOf(p.run().get("ignored"));
-		assertTrue(ignored.contains("excitation") && ignored.contains("sheet_thickness") && ignored.contains("immersion_index_design"), ignored);
-		assertTrue(ignored.contains("born-wolf widefield"), ignored);
+		assertEquals("1", p.options().get("pinhole"), "accepted and recorded as given");
+		final Map<?, ?> ignored = (Map<?, ?>) p.run().get("ignored");
+		// born-wolf (no depth aberration, box given) in widefield: the layers, the design values and the scanning/sheet fields
+		assertEquals(List.of("sample_index", "coverslip_index", "coverslip_thickness", "depth", "immersion_index_design", "coverslip_index_design",
+				"coverslip_thickness_design", "working_distance", "excitation", "pinhole", "sheet_thickness"), List.copyOf(ignored.keySet()));
+		assertEquals("widefield modality has no pinhole", ignored.get("pinhole"));
+		final List<String> said = r.log().stream().filter(l -> l.contains("ignored")).toList();
+		assertEquals(1, said.size(), r.log()::toString);
+		assertTrue(said.get(0).contains("pinhole (widefield modality has no pinhole)"), said.get(0));
+		// the record read back from the image's Info (JSON) keeps the entry
+		assertEquals("widefield modality has no pinhole", ((Map<?, ?>) ImageProvenance.of(r.onlyCreated()).orElseThrow().run().get("ignored")).get("pinhole"));
+	}
+
+	@Test
+	void fieldsTheModalityUsesAreNotListedIgnored() {
+		final String confocal = OPTIONS.replace("model=born-wolf", "model=gibson-lanni").replace("modality=widefield", "modality=confocal");
+		final var p = ImageProvenance.of(ImageJHarness.run(null, CMD, confocal).onlyCreated()).orElseThrow();
+		final Map<?, ?> ignored = (Map<?, ?>) p.run().get("ignored");
+		assertEquals(List.of("sheet_thickness"), List.copyOf(ignored.keySet()), "gibson-lanni confocal uses every field but the sheet");
+		final String sheet = OPTIONS.replace("model=born-wolf", "model=gibson-lanni").replace("modality=widefield", "modality=light-sheet");
+		final var q = ImageProvenance.of(ImageJHarness.run(null, CMD, sheet).onlyCreated()).orElseThrow();
+		assertEquals(List.of("excitation", "pinhole"), List.copyOf(((Map<?, ?>) q.run().get("ignored")).keySet()));
 	}
 
 	@Test
@@ -73,7 +94,7 @@ class PsfFromOpticsCommandTest {
 		final String coarse = OPTIONS.replace("voxel_xy=0.08", "voxel_xy=0.2");
 		final ImageJHarness.Result r = ImageJHarness.run(null, CMD, coarse);
 		assertTrue(String.join("\n", r.log()).contains("lateral step 0.2 µm is coarser than Nyquist"), () -> String.join("\n", r.log()));
-		assertTrue(Provenance.of(r.onlyCreated()).orElseThrow().warnings().get(0).startsWith("Undersampled"));
+		assertTrue(ImageProvenance.of(r.onlyCreated()).orElseThrow().warnings().get(0).startsWith("Undersampled"));
 	}
 
 	@Test
@@ -116,7 +137,62 @@ class PsfFromOpticsCommandTest {
 		final ImagePlus recorded = rec.result().created().stream().filter(i -> i.getTitle().startsWith("psf-")).findFirst().orElseThrow();
 		assertEquals(2, rec.result().created().size(), "the PSF and its profile plot");
 		assertEquals(List.copyOf(org.parfocal.provenance.MacroOptions.parse(opts).keySet()),
-				List.copyOf(Provenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
+				List.copyOf(ImageProvenance.of(recorded).orElseThrow().options().keySet()), "provenance holds exactly the recorded keys");
 		ImageJHarness.assertSamePixels(recorded, ImageJHarness.replayInHeadlessJvm(rec.line()), 0);
+	}
+
+	/** Issue 17: the fields the chosen model and modality do not use are greyed out, and follow the choices. */
+	@Test
+	@Tag("display")
+	void fieldsTheChoicesDoNotUseAreGreyedOutAndStillRecorded() throws Exception {
+		ImageJHarness.assumeDisplay();
+		final java.util.Map<String, List<String>> greyed = new java.util.LinkedHashMap<>();
+		final ImageJHarness.Recording rec = ImageJHarness.record(null, CMD, dialog -> {
+			final List<Choice> choices = dialog.getChoices().stream().map(Choice.class::cast).toList();
+			pick(choices.get(0), ChoiceWords.word("model", "gibson-lanni"));
+			pick(choices.get(1), ChoiceWords.word("modality", "confocal"));
+			greyed.put("gibson-lanni confocal", disabled(dialog));
+			pick(choices.get(1), ChoiceWords.word("modality", "widefield"));
+			greyed.put("gibson-lanni widefield", disabled(dialog));
+			pick(choices.get(0), ChoiceWords.word("model", "born-wolf"));
+			greyed.put("born-wolf widefield, automatic box", disabled(dialog));
+			// only the fields' own labels grey: the Model label (the dialog's first) stays as it is
+			final java.awt.Label first = java.util.Arrays.stream(((java.awt.Container) (Object) dialog).getComponents()).filter(java.awt.Label.class::isInstance)
+					.map(java.awt.Label.class::cast).findFirst().orElseThrow();
+			greyed.put("model label enabled", List.of(first.getText() + " " + first.isEnabled()));
+			final List<TextField> f = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
+			f.get(14).setText("0.1");
+			f.get(15).setText("0.25");
+			f.get(16).setText("31"); // a box size typed: the text listener updates the greying
+			f.get(17).setText("21");
+			for (final TextField t : List.of(f.get(16), f.get(17))) // as typing does, whether or not setText posts the event here
+				for (final java.awt.event.TextListener l : t.getTextListeners()) l.textValueChanged(new java.awt.event.TextEvent(t, java.awt.event.TextEvent.TEXT_VALUE_CHANGED));
+			greyed.put("born-wolf widefield, box given", disabled(dialog));
+		});
+		assertEquals(List.of("Model: true"), greyed.get("model label enabled"));
+		assertEquals(List.of("sheet_thickness"), greyed.get("gibson-lanni confocal"));
+		assertEquals(List.of("excitation", "pinhole", "sheet_thickness"), greyed.get("gibson-lanni widefield"));
+		assertEquals(List.of("coverslip_index", "coverslip_thickness", "immersion_index_design", "coverslip_index_design", "coverslip_thickness_design",
+				"working_distance", "excitation", "pinhole", "sheet_thickness"), greyed.get("born-wolf widefield, automatic box"));
+		assertTrue(greyed.get("born-wolf widefield, box given").containsAll(List.of("sample_index", "depth")), greyed.toString());
+		final String opts = ImageJHarness.parseRunLine(rec.line())[1];
+		assertTrue(opts.contains("pinhole=1") && opts.contains("excitation="), "greyed fields are still recorded: " + rec.line());
+		final Map<?, ?> ignored = (Map<?, ?>) ImageProvenance.of(rec.result().created().stream().filter(i -> i.getTitle().startsWith("psf-")).findFirst().orElseThrow())
+				.orElseThrow().run().get("ignored");
+		assertEquals(greyed.get("born-wolf widefield, box given"), List.copyOf(ignored.keySet()), "the dialog greys what the record lists");
+	}
+
+	private static List<String> disabled(final ij.gui.GenericDialog gd) {
+		final boolean[] on = OpticsGreying.enabled(gd);
+		final List<String> out = new java.util.ArrayList<>();
+		for (int i = 0; i < on.length; i++) if (!on[i]) out.add(org.parfocal.psf.OpticsFields.FIELDS.get(i).key());
+		return out;
+	}
+
+	private static void pick(final Choice c, final String item) {
+		c.select(item);
+		assertEquals(item, c.getSelectedItem());
+		for (final java.awt.event.ItemListener l : c.getItemListeners())
+			l.itemStateChanged(new java.awt.event.ItemEvent(c, java.awt.event.ItemEvent.ITEM_STATE_CHANGED, item, java.awt.event.ItemEvent.SELECTED));
 	}
 }

@@ -116,17 +116,19 @@ class UserFacingFailuresTest {
 		final String base = "image=cell.tif boundary=zero normalize photons=0";
 		final ImageJHarness.Result warned = ImageJHarness.run(img, "Convolve with PSF...", base + " psf=shifted-psf.tif");
 		assertTrue(warned.log().stream().anyMatch(l -> l.contains("Warning: the PSF's centre of mass is off its centre voxel by (3.")), warned.log().toString());
-		assertTrue(String.valueOf(Provenance.of(warned.onlyCreated()).orElseThrow().run().get("warning")).contains("add recentre"));
+		final var record = ImageProvenance.of(warned.onlyCreated()).orElseThrow();
+		assertTrue(record.warnings().size() == 1 && record.warnings().get(0).contains("add recentre"), record.warnings().toString());
+		assertEquals(null, record.run().get("warning"), "in the warnings list, not the old single key");
 		final ImagePlus reference = ImageJHarness.run(img, "Convolve with PSF...", base + " psf=psf.tif").onlyCreated();
 		final ImagePlus recentred = ImageJHarness.run(img, "Convolve with PSF...", base + " psf=shifted-psf.tif recentre").onlyCreated();
 		ImageJHarness.assertSamePixels(reference, recentred, 1e-6);
 		// Deconvolve warns too (Log and the record's notes)
 		final ImageJHarness.Result d = ImageJHarness.run(img, "Deconvolve...", "image=cell.tif psf=shifted-psf.tif method=richardson-lucy iterations=2 "
 				+ "offset=0 background=0");
-		assertTrue(String.valueOf(Provenance.of(d.onlyCreated()).orElseThrow().run().get("notes")).contains("Warning: the PSF's centre of mass"));
+		assertTrue(String.valueOf(ImageProvenance.of(d.onlyCreated()).orElseThrow().run().get("notes")).contains("Warning: the PSF's centre of mass"));
 		final ImageJHarness.Result r = ImageJHarness.run(img, "Deconvolve...", "image=cell.tif psf=shifted-psf.tif method=richardson-lucy iterations=2 "
 				+ "offset=0 background=0 recentre");
-		assertTrue(String.valueOf(Provenance.of(r.onlyCreated()).orElseThrow().run().get("notes")).contains("PSF re-centred"));
+		assertTrue(String.valueOf(ImageProvenance.of(r.onlyCreated()).orElseThrow().run().get("notes")).contains("PSF re-centred"));
 		final ImagePlus dRef = ImageJHarness.run(img, "Deconvolve...", "image=cell.tif psf=psf.tif method=richardson-lucy iterations=2 offset=0 background=0")
 				.onlyCreated();
 		ImageJHarness.assertSamePixels(dRef, r.onlyCreated(), 1e-5);

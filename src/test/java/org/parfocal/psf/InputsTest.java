@@ -66,6 +66,28 @@ class InputsTest {
 		assertEquals(0.065, PsfGrid.of(5, 5, 5, new VoxelSize(65, 65, 200, "nm")).dx(), 1e-12);
 	}
 
+	/**
+	 * The one unit table ({@link PsfGrid#micronsPerUnit}) against the SI prefixes (BIPM, The International System
+	 * of Units, 9th ed. 2019, Table 7: nano 10⁻⁹, micro 10⁻⁶, milli 10⁻³, so 10⁻³, 1 and 10³ µm). Until this table
+	 * was the only one, {@code quality/Resampling} had its own, which refused "millimeters" and "millimetres".
+	 */
+	@Test
+	void unitFactorsAreTheSiPrefixes() {
+		final String[][] names = { { "nm", "NM", " nanometer ", "nanometre", "nanometers", "nanometres" },
+				{ "\u00b5m", "\u03bcm", "um", "µM", "micron", "microns", "micrometer", "micrometre", "micrometers", "micrometres" },
+				{ "mm", "millimeter", "millimetre", "millimeters", "millimetres", "MM" } };
+		final double[] factor = { 1e-3, 1, 1e3 };
+		for (int i = 0; i < names.length; i++)
+			for (final String u : names[i]) {
+				assertEquals(factor[i], PsfGrid.micronsPerUnit(u), 0, "'" + u + "'");
+				assertEquals(0.02 * factor[i], PsfGrid.of(1, 1, 1, new VoxelSize(0.02, 0.02, 0.02, u)).dx(), 1e-15, "'" + u + "' through a calibration");
+			}
+		for (final String u : new String[] { "pixel", "pixels", "Pixel", "none", "", " ", null, "inch", "m", "cm", "µ", "px" })
+			assertTrue(Double.isNaN(PsfGrid.micronsPerUnit(u)), "'" + u + "' is not a length Parfocal converts");
+		rejects(() -> PsfGrid.micronsPer(new VoxelSize(1, 1, 1, "pixels")), "no voxel size");
+		rejects(() -> PsfGrid.micronsPer(new VoxelSize(1, 1, 1, "none")), "'none'", "not a length");
+	}
+
 	@Test
 	void gridFromOpticsHasOddSizesAndEnoughRings() {
 		// At least 8 Airy rings: the 8th dark ring of the Airy pattern, zero of J1 at v = 26.6162 (Abramowitz &

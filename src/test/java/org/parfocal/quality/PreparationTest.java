@@ -19,7 +19,7 @@ class PreparationTest {
 			final double[] x = c.field("x");
 			final float[] f = new float[x.length];
 			for (int i = 0; i < x.length; i++) f[i] = (float) x[i];
-			final double[] got = OrderStatistics.percentiles(f, c.field("q")), ref = c.field("numpy_percentile");
+			final double[] got = org.parfocal.core.RobustStats.percentiles(f, c.field("q")), ref = c.field("numpy_percentile");
 			for (int k = 0; k < ref.length; k++)
 				assertEquals(ref[k], got[k], 1e-9 * Math.max(1, Math.abs(ref[k])), c.name() + " q=" + c.field("q")[k]);
 		}
@@ -77,7 +77,7 @@ class PreparationTest {
 		final Volume w = v.copy();
 		for (int i = 0; i < w.size(); i++) w.data()[i] = 500 + 37 * w.data()[i];
 		final Volume nv = Normalization.robust(v, 1, 99.5, "A"), nw = Normalization.robust(w, 1, 99.5, "B");
-		final double[] q = OrderStatistics.percentiles(nv.data(), 1, 99.5);
+		final double[] q = org.parfocal.core.RobustStats.percentiles(nv.data(), 1, 99.5);
 		assertEquals(0, q[0], 1e-6);
 		assertEquals(1, q[1], 1e-6);
 		TestVolumes.assertClose(TestVolumes.toDouble(nv.data()), nw.data(), 1e-4, "affine invariance");

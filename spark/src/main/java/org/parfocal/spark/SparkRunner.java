@@ -13,7 +13,6 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.nio.file.StandardCopyOption;
 import java.nio.file.StandardOpenOption;
-import java.time.Instant;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.Comparator;
@@ -27,7 +26,6 @@ import org.apache.spark.TaskContext;
 import org.apache.spark.api.java.JavaSparkContext;
 import org.apache.spark.broadcast.Broadcast;
 
-import ij.IJ;
 
 import net.imglib2.parallel.Parallelization;
 
@@ -36,12 +34,12 @@ import org.parfocal.blocks.BlockDeconvolution;
 import org.parfocal.blocks.BlockPlan;
 import org.parfocal.blocks.Recipe;
 import org.parfocal.cli.BlockRunner;
+import org.parfocal.cli.RunArgs;
 import org.parfocal.cli.TiffBlockSink;
 import org.parfocal.cli.TiffBlockSource;
 import org.parfocal.core.Monitor;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
-import org.parfocal.provenance.Provenance;
 import org.parfocal.cli.ZarrBlockRunner;
 import org.parfocal.zarr.OmeZarr;
 import org.parfocal.zarr.ZarrBlockSink;
@@ -120,7 +118,22 @@ public final class SparkRunner {
 
 	/** What a {@code blocks} run did. */
 	public record BlocksOutcome(Path output, BlockPlan plan, BlockDeconvolution.Levels levels, int minIterations, int maxIterations, int emptyBlocks,
-			double seconds) {}
+			double seconds) {
+
+		/** The outcome of the block tasks {@code done} (a block with 0 iterations was empty), started at {@code t0}. */
+		static BlocksOutcome of(final Path output, final BlockPlan plan, final BlockDeconvolution.Levels levels, final List<BlockStatus> done,
+				final long t0) {
+			int min = Integer.MAX_VALUE, max = 0, empty = 0;
+			for (final BlockStatus b : done) {
+				if (b.iterations() == 0) empty++;
+				else {
+					min = Math.min(min, b.iterations());
+					max = Math.max(max, b.iterations());
+				}
+			}
+			return new BlocksOutcome(output, plan, levels, min == Integer.MAX_VALUE ? 0 : min, max, empty, SparkRunner.seconds(t0));
+		}
+	}
 
 	/** What one block task reports. */
 	record BlockStatus(int index, boolean ok, String message, int iterations) implements Serializable {
@@ -242,8 +255,8 @@ public final class SparkRunner {
 					final Volume psf = BlockRunner.loadPsf(recipe, source.voxelSize(), source.shape()[2]);
 					final BlockPlan p = s.tile() != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), s.tile())
 							: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), taskBudget(s));
-					final TiffBlockSink sink = new TiffBlockSink(tmp, source.shape(), source.voxelSize(),
-							provenance(recipe, in, source.shape(), psf, p, "SparkRunner stacks", s.threads()).toInfoText());
+					final TiffBlockSink sink = BlockRunner.sink(tmp, source.shape(), source.voxelSize(), recipe,
+							BlockRunner.provenance(recipe, in, source.shape(), psf, p, "SparkRunner stacks", s.threads()));
 					final BlockDeconvolution.Result r = BlockDeconvolution.run(source, psf, recipe.options(), p, sink, Monitor.NONE);
 					plan[0] = p.toString();
 					it[0] = r.maxIterations();
@@ -331,8 +344,8 @@ public final class SparkRunner {
 			final BlockPlan plan = s.tile() != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), s.tile())
 					: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), driverBudget(sc, s));
 			final BlockDeconvolution.Levels levels = BlockDeconvolution.levels(source, recipe.options(), Monitor.NONE);
-			final TiffBlockSink sink = new TiffBlockSink(out, source.shape(), source.voxelSize(),
-					provenance(recipe, in, source.shape(), psf, plan, "SparkRunner blocks", s.threads()).toInfoText());
+			final TiffBlockSink sink = BlockRunner.sink(out, source.shape(), source.voxelSize(), recipe,
+					BlockRunner.provenance(recipe, in, source.shape(), psf, plan, "SparkRunner blocks", s.threads()));
 			final Path parts = out.resolveSibling("." + out.getFileName() + ".parts-" + sc.sc().applicationId() + "-" + System.nanoTime());
 			try {
 				Files.createDirectory(parts);
@@ -377,14 +390,6 @@ public final class SparkRunner {
 			done.sort(Comparator.comparingInt(BlockStatus::index));
 			for (final BlockStatus b : done)
 				if (!b.ok()) throw new IllegalStateException("Block " + (b.index() + 1) + " of " + plan.count() + " failed: " + b.message());
-			int min = Integer.MAX_VALUE, max = 0, empty = 0;
-			for (final BlockStatus b : done) {
-				if (b.iterations() == 0) empty++;
-				else {
-					min = Math.min(min, b.iterations());
-					max = Math.max(max, b.iterations());
-				}
-			}
 			// the same order of additions as BlockDeconvolution.run: block index order
 			for (final Block b : plan.blocks()) {
 				final Volume part = readPart(partFile(job.parts, b.index()), b, job.psf.voxelSize());
@@ -392,7 +397,7 @@ public final class SparkRunner {
 			}
 			checkUnchanged(job.input, bytes, modified);
 			job.sink.commit();
-			return new BlocksOutcome(job.output, plan, levels, min == Integer.MAX_VALUE ? 0 : min, max, empty, seconds(job.start));
+			return BlocksOutcome.of(job.output, plan, levels, done, job.start);
 		}
 	}
 
@@ -463,7 +468,7 @@ public final class SparkRunner {
 					levels.add(BlockDeconvolution.levels(src, recipe.options(), Monitor.NONE));
 				}
 		TASK_NANOS.addAndGet(4, System.nanoTime() - lv);
-		final String prov = ZarrBlockRunner.provenance(recipe, psfFiles, in, l, plans, "SparkRunner blocks", s.threads()).toJson();
+		final var record = ZarrBlockRunner.provenance(recipe, psfFiles, in, l, plans, "SparkRunner blocks", s.threads());
 		final OmeZarr.Writer w = OmeZarr.create(out, l.frames(), l.channels(), l.shape(), l.chunk(), l.voxelSize());
 		final Path fragments = w.hidden().resolveSibling(w.hidden().getFileName() + ".fragments");
 		final List<PsfData> psfData = new ArrayList<>();
@@ -483,14 +488,6 @@ public final class SparkRunner {
 					k[0] == 0 && k[1] == 0 && k[2] == victim ? failOnce : null)).collect());
 			for (final BlockStatus b : done)
 				if (!b.ok()) throw new IllegalStateException("Block " + (b.index() + 1) + " failed: " + b.message());
-			int min = Integer.MAX_VALUE, max = 0, empty = 0;
-			for (final BlockStatus b : done) {
-				if (b.iterations() == 0) empty++;
-				else {
-					min = Math.min(min, b.iterations());
-					max = Math.max(max, b.iterations());
-				}
-			}
 			final List<int[]> seams = new ArrayList<>();
 			for (int t = 0; t < l.frames(); t++)
 				for (int c = 0; c < nc; c++)
@@ -503,8 +500,8 @@ public final class SparkRunner {
 					TASK_NANOS.addAndGet(3, System.nanoTime() - a);
 				});
 			}
-			w.complete(l.voxelSize(), prov);
-			return new BlocksOutcome(out, plans.get(0), levels.get(0), min == Integer.MAX_VALUE ? 0 : min, max, empty, seconds(t0));
+			ZarrBlockRunner.complete(w, l.voxelSize(), recipe, record);
+			return BlocksOutcome.of(out, plans.get(0), levels.get(0), done, t0);
 		} catch (final IOException | RuntimeException | Error e) {
 			w.abort();
 			throw e;
@@ -706,18 +703,6 @@ public final class SparkRunner {
 		return Math.max(1, (heap - (300L << 20)) / 2 / s.heapShare());
 	}
 
-	static Provenance provenance(final Recipe recipe, final Path input, final int[] shape, final Volume psf, final BlockPlan plan, final String runner,
-			final int threads) {
-		final Provenance.Builder prov = Provenance.of("Deconvolve", recipe.text())
-				.input(new Provenance.Input("image", input.getFileName().toString(), input.toAbsolutePath().toString(), null,
-						shape[0] + "x" + shape[1] + "x" + shape[2], null))
-				.run("block_plan", plan.describe()).run("runner", runner);
-		if (recipe.psfPath() != null) prov.input(new Provenance.Input("psf", Path.of(recipe.psfPath()).getFileName().toString(), recipe.psfPath(), null,
-				psf.nx() + "x" + psf.ny() + "x" + psf.nz(), null));
-		return prov.versions(BlockRunner.class.getPackage().getImplementationVersion(), IJ.getVersion(), System.getProperty("java.version"))
-				.timing(0, threads, Instant.now().toString()).build();
-	}
-
 	/** Moves a complete file to its final name, never replacing a file there. */
 	static void publish(final Path tmp, final Path out) throws IOException {
 		try {
@@ -815,34 +800,23 @@ public final class SparkRunner {
 
 	/** The command line; returns the exit code. */
 	public static int runMain(final String[] args) {
-		String budget = null, block = null, psf = null, threads = null;
-		final List<String> pos = new ArrayList<>();
-		for (int i = 0; i < args.length; i++) {
-			final String a = args[i];
-			if (a.startsWith("--") && i + 1 >= args.length) return usage("missing value after " + a);
-			switch (a) {
-			case "--budget" -> budget = args[++i];
-			case "--block" -> block = args[++i];
-			case "--psf" -> psf = args[++i];
-			case "--threads" -> threads = args[++i];
-			default -> {
-				if (a.startsWith("--")) return usage("unknown option " + a);
-				pos.add(a);
-			}
-			}
+		final RunArgs a;
+		try {
+			a = RunArgs.parse(args);
+		} catch (final RunArgs.Usage e) {
+			return usage(e.getMessage());
 		}
+		final List<String> pos = a.positional();
 		if (pos.size() != 4 || !(pos.get(0).equals("stacks") || pos.get(0).equals("blocks"))) return usage(null);
 		final Recipe recipe;
 		final List<String> psfs;
 		final Settings settings;
 		final List<Path> inputs;
 		try {
-			final Recipe base = BlockRunner.readRecipe(pos.get(1));
-			psfs = psf == null ? List.of() : List.of(psf.split(","));
-			recipe = psf != null ? base.withPsfFile(psfs.get(0)) : base;
+			recipe = a.recipe(1);
+			psfs = a.psfs();
 			recipe.requirePsf();
-			settings = new Settings(budget == null ? 0 : (long) (positive(budget, "--budget") * 1024 * 1024), block == null ? null : tiles(block),
-					threads == null ? 0 : (int) positive(threads, "--threads"));
+			settings = new Settings(a.budgetBytes(), a.tile(), a.threads());
 			if (pos.get(0).equals("stacks")) inputs = stacksIn(Path.of(pos.get(2)));
 			else {
 				inputs = List.of(Path.of(pos.get(2)));
@@ -897,33 +871,13 @@ public final class SparkRunner {
 		return c;
 	}
 
-	private static int[] tiles(final String s) {
-		final String[] p = s.split(",");
-		final int[] t = new int[p.length];
-		for (int i = 0; i < p.length; i++) {
-			// 0 leaves an axis uncut (BlockPlan.forTileSize)
-			if (p[i].trim().equals("0")) continue;
-			final double v = positive(p[i], "--block");
-			if (v != Math.rint(v)) throw new IllegalArgumentException("--block takes whole numbers of voxels, got " + p[i]);
-			t[i] = (int) v;
-		}
-		return t;
-	}
-
-	private static double positive(final String s, final String what) {
-		try {
-			final double v = Double.parseDouble(s.trim());
-			if (!(v > 0)) throw new IllegalArgumentException(what + " must be positive, got " + s);
-			return v;
-		} catch (final NumberFormatException e) {
-			throw new IllegalArgumentException(what + " takes a number, got '" + s + "'");
-		}
-	}
-
 	private static int usage(final String problem) {
-		if (problem != null) System.err.println("Error: " + problem);
-		System.err.println("Usage: SparkRunner stacks <recipe> <input folder> <output folder> [--psf FILE] [--budget MB] [--block X,Y,Z] [--threads N]");
-		System.err.println("       SparkRunner blocks <recipe> <input.tif|.zarr> <output.tif|.zarr> [--psf FILE[,FILE per channel]] [--budget MB] [--block X,Y,Z] [--threads N]");
+		if (problem != null) {
+			System.err.println("Error: " + problem);
+			return 2;
+		}
+		System.err.println("Usage: SparkRunner stacks <recipe> <input folder> <output folder> [options: " + RunArgs.OPTIONS + "]");
+		System.err.println("       SparkRunner blocks <recipe> <input.tif|.zarr> <output.tif|.zarr> [options]");
 		return 2;
 	}
 }

@@ -209,6 +209,42 @@ class SparkRunnerTest {
 		assertTrue(p.run().get("block_plan").toString().contains("blocks=2x2x1"), p.run().toString());
 	}
 
+	/**
+	 * {@code output=16-bit} (issue 17, item 9): Spark's assembled TIFF is 16-bit with the scale and offset the
+	 * single-machine block run records, the same stored values, and the record maps them back to the 32-bit
+	 * Spark result within half a step.
+	 */
+	@Test
+	void sixteenBitBlocksMatchTheSingleMachineSixteenBitRun() throws Exception {
+		final Volume h = psf(7, 5, 1.3, 1.0);
+		write(h, dir.resolve("psf.tif"));
+		write(recording(4, 64, 56, 18, h), dir.resolve("big.tif"));
+		final String text = recipe(dir.resolve("psf.tif"), 6);
+		final int[] tile = { 32, 28, 0 };
+		final SparkRunner.Settings settings = new SparkRunner.Settings(0, tile, 0);
+		SparkRunner.runBlocks(sc, Recipe.parse(text), dir.resolve("big.tif"), dir.resolve("f.tif"), settings);
+		SparkRunner.runBlocks(sc, Recipe.parse(text + " output=16-bit"), dir.resolve("big.tif"), dir.resolve("s.tif"), settings);
+		BlockRunner.run(Recipe.parse(text + " output=16-bit"), dir.resolve("big.tif"), dir.resolve("single.tif"), 0, tile, Monitor.NONE);
+		final ImagePlus f = IJ.openImage(dir.resolve("f.tif").toString()), s = IJ.openImage(dir.resolve("s.tif").toString()),
+				one = IJ.openImage(dir.resolve("single.tif").toString());
+		assertEquals(ImagePlus.GRAY16, s.getType());
+		final Provenance p = Provenance.findIn((String) s.getProperty("Info")).orElseThrow(),
+				q = Provenance.findIn((String) one.getProperty("Info")).orElseThrow();
+		final double offset = ((Number) p.run().get("output_offset")).doubleValue(), scale = ((Number) p.run().get("output_scale")).doubleValue();
+		assertEquals(((Number) q.run().get("output_scale")).doubleValue(), scale, 1e-6 * scale);
+		double worst = 0;
+		for (int z = 1; z <= f.getStackSize(); z++) {
+			final float[] v = (float[]) f.getStack().getPixels(z);
+			final short[] a = (short[]) s.getStack().getPixels(z), b = (short[]) one.getStack().getPixels(z);
+			for (int i = 0; i < v.length; i++) {
+				assertTrue(Math.abs((a[i] & 0xffff) - (b[i] & 0xffff)) <= 1, "stored values of Spark and the single machine");
+				worst = Math.max(worst, Math.abs(offset + scale * (a[i] & 0xffff) - v[i]) / scale);
+			}
+		}
+		System.out.printf("Spark blocks 16-bit: scale %.6g, largest error %.6f step(s)%n", scale, worst);
+		assertTrue(worst <= 0.5 + 1e-6, "within half a step: " + worst);
+	}
+
 	@Test
 	void aStackChangedDuringABlockRunLeavesNothing() throws Exception {
 		final Volume h = psf(5, 3, 1.0, 0.8);
@@ -248,6 +284,15 @@ class SparkRunnerTest {
 		try {
 			assertEquals(2, SparkRunner.runMain(new String[] { "stacks", "psf=from_optics" }));
 			assertEquals(2, SparkRunner.runMain(new String[] { "sideways", "a", "b", "c" }));
+			buf.reset();
+			// the one parser of the block runners (org.parfocal.cli.RunArgs): BlockRunner prints this same line (RunArgsTest)
+			assertEquals(2, SparkRunner.runMain(new String[] { "blocks", "r", "a.tif", "b.tif", "--blok", "8" }));
+			assertEquals("Error: unknown option --blok (the options are --budget MB, --block X,Y,Z, --psf FILE[,FILE per channel], --threads N)",
+					buf.toString().strip());
+			buf.reset();
+			// a recipe key Deconvolve... does not have: the line BlockRunner prints (BlockRunnerMessagesTest)
+			assertEquals(1, SparkRunner.runMain(new String[] { "blocks", "psf=/a/p.tif iteration=2", "a.tif", "b.tif" }));
+			assertEquals("Error: Unknown key 'iteration' — did you mean 'iterations'?", buf.toString().strip());
 			buf.reset();
 			write(psf(5, 3, 1, 1), dir.resolve("psf.tif"));
 			assertEquals(1, SparkRunner.runMain(new String[] { "stacks", recipe(dir.resolve("psf.tif"), 2), dir.resolve("missing").toString(),

@@ -95,6 +95,30 @@ class SparkZarrTest {
 				"no hidden output or fragment folder left");
 	}
 
+	/**
+	 * {@code output=16-bit} into OME-Zarr (issue 17, item 9): Spark's uint16 output equals the single-machine 16-bit
+	 * run, with the same recorded scale, one for both channels.
+	 */
+	@Test
+	void sixteenBitZarrBlocksEqualTheSingleMachineRun() throws Exception {
+		final Volume h = SparkRunnerTest.psf(7, 5, 1.2, 1.0);
+		final Path psf = dir.resolve("psf.tif");
+		SparkRunnerTest.write(h, psf);
+		final Path in = dir.resolve("cell.zarr");
+		OmeZarr.write(in, 1, 2, List.of(SparkRunnerTest.recording(3, 40, 36, 12, h), SparkRunnerTest.recording(4, 40, 36, 12, h)),
+				new int[] { 16, 16, 8 }, null);
+		final Recipe recipe = BlockRunner.readRecipe(new SparkRunnerTest().recipe(psf, 4) + " output=16-bit");
+		final int[] tile = { 20, 20, 0 };
+		final Path ref = dir.resolve("ref.zarr"), got = dir.resolve("spark.zarr");
+		ZarrBlockRunner.run(recipe, null, in, ref, 0, tile, Monitor.NONE);
+		SparkRunner.runZarrBlocks(sc, recipe, List.of(), in, got, new SparkRunner.Settings(0, tile, 1), null);
+		assertEquals(org.parfocal.zarr.ZarrArray.UINT16, OmeZarr.open(got).array().dtype());
+		assertSame(ref, got);
+		final Provenance a = Provenance.fromJson(OmeZarr.open(ref).provenanceJson()), b = Provenance.fromJson(OmeZarr.open(got).provenanceJson());
+		assertEquals(a.run().get("output_scale"), b.run().get("output_scale"));
+		assertEquals(a.run().get("output_offset"), b.run().get("output_offset"));
+	}
+
 	@Test
 	void stacksModeTakesZarrImages() throws Exception {
 		final Path in = Files.createDirectory(dir.resolve("in")), out = dir.resolve("out");

@@ -19,13 +19,14 @@ import org.parfocal.provenance.Provenance.Builder;
 import org.parfocal.provenance.Provenance.Input;
 
 /**
- * ImageJ side of the provenance record ({@link org.parfocal.provenance.Provenance}): describes input images
- * (with a SHA-256 of their pixels and their own record if they have one), fills in versions and timing, and
- * appends the record to an output's "Info", which ImageJ's TIFF writer saves and its reader restores.
+ * Reads and writes provenance records ({@link org.parfocal.provenance.Provenance}, the record itself) on
+ * ImageJ images: describes input images (with a SHA-256 of their pixels and their own record if they have
+ * one), fills in versions and timing, appends the record to an output's "Info", which ImageJ's TIFF writer
+ * saves and its reader restores, and finds it there again ({@link #of}).
  */
-final class Provenance {
+final class ImageProvenance {
 
-	private Provenance() {}
+	private ImageProvenance() {}
 
 	/** A builder for {@code command} with {@code macroOptions}; call {@link #attach} when the output exists. */
 	static Builder start(final String command, final String macroOptions) {
@@ -116,7 +117,7 @@ final class Provenance {
 
 	/** Version from the jar manifest, or "development" when run from classes. */
 	static String version() {
-		final String v = Provenance.class.getPackage().getImplementationVersion();
+		final String v = ImageProvenance.class.getPackage().getImplementationVersion();
 		return v == null ? "development" : v;
 	}
 }

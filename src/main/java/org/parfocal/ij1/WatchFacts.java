@@ -1,0 +1,62 @@
+package org.parfocal.ij1;
+
+import java.util.List;
+import java.util.Locale;
+
+import org.parfocal.core.Volume;
+import org.parfocal.ij1.Deconvolve.Watch;
+import org.parfocal.provenance.MacroOptions;
+import org.parfocal.quality.StoppingRule;
+import org.parfocal.quality.WatchedRun;
+
+/**
+ * Watch mode's side of a run (Deconvolve, Blind Deconvolve, Compare with References' χ²): the noise model of the
+ * χ² for a recording, and the facts the record keeps (rule, suggestions, returned iterate, curves).
+ */
+final class WatchFacts {
+
+	private WatchFacts() {}
+
+	/**
+	 * {photons per unit, read noise} of the χ² for one recording: estimated from it with
+	 * {@code w.estimateNoise()} ({@link org.parfocal.quality.ReblurConsistency.NoiseModel#fromCamera}; the
+	 * given values when that fails, with a note), else the given values.
+	 */
+	static double[] noise(final Watch w, final Volume recording, final double offset, final List<String> notes) {
+		if (!w.estimateNoise()) return new double[] { w.photons(), w.readNoise() };
+		try {
+			final org.parfocal.core.CameraNoise c = org.parfocal.core.CameraNoise.estimate(recording, offset);
+			final var m = org.parfocal.quality.ReblurConsistency.NoiseModel.fromCamera(c, 0, offset);
+			final String note = String.format(Locale.ROOT, "watch noise model estimated from the recording: %.4g photons per unit, read noise %.4g units",
+					m.photonsPerUnit(), m.readNoise());
+			if (!notes.contains(note)) notes.add(note);
+			return new double[] { m.photonsPerUnit(), m.readNoise() };
+		} catch (final IllegalArgumentException e) {
+			notes.add("watch noise model not estimated (" + e.getMessage() + "): photons=" + MacroOptions.number(w.photons()) + " read_noise="
+					+ MacroOptions.number(w.readNoise()) + " used");
+			return new double[] { w.photons(), w.readNoise() };
+		}
+	}
+
+	/** Watch-mode facts: the rule, the suggestion(s), what was returned, and the curve(s). */
+	static void record(final org.parfocal.provenance.Provenance.Builder prov, final Watch w, final List<? extends WatchedRun> watches,
+			final List<CompareWithReferences.Reference> refs) {
+		prov.run("watch_rule", StoppingRule.DESCRIPTION).run("watch_references", refs.size());
+		for (final CompareWithReferences.Reference r : refs) prov.input(ImageProvenance.input("reference", r.image()));
+		final int n = watches.size();
+		for (int i = 0; i < n; i++) {
+			final WatchedRun q = watches.get(i);
+			final String suffix = n > 1 ? "_" + (i + 1) : "";
+			final StoppingRule.Suggestion s = q.suggestion();
+			prov.run("suggested_iteration" + suffix, s.iteration()).run("suggestion" + suffix, s.reason()).run("suggestion_interior" + suffix, s.interior());
+			if (w.stopAtSuggestion()) prov.run("returned_iteration" + suffix, q.best() != null ? s.iteration() : q.points().isEmpty() ? 0 : q.points().get(q.points().size() - 1).iteration());
+			if (!Double.isNaN(q.floor())) prov.run("watch_floor" + suffix, q.floor());
+			final StringBuilder sb = new StringBuilder();
+			for (final StoppingRule.Point p : q.points()) {
+				if (sb.length() > 0) sb.append("; ");
+				sb.append(String.format(Locale.ROOT, "%d: d %.5g chi2 %.5g", p.iteration(), p.distance(), p.chiSquare()));
+			}
+			prov.run("watch_curve" + suffix, sb.toString());
+		}
+	}
+}
