@@ -55,7 +55,7 @@ class PreparationTest {
 
 	/**
 	 * Source: the SI prefixes (1 nm = 10⁻³ µm, 1 mm = 10³ µm; BIPM SI Brochure, 9th ed., 2019), in the spellings
-	 * ImageJ users write. The resampler and the PSF grid read one table ({@code PsfGrid.micronsPer}): they agree
+	 * ImageJ users write. The resampler and the PSF grid read one table ({@code PsfGrid.micronsPerUnit}): they agree
 	 * on every unit, and an unknown or pixel unit is no length.
 	 */
 	@Test
