@@ -309,6 +309,10 @@ final class DialogHelp {
 				.field("Estimate_noise", "estimate_noise", "", "take the chi-square's camera gain and read noise from the input itself "
 						+ "(Poisson&ndash;Gaussian fit, Foi et al., IEEE TIP 2008) instead of Photons and Read_noise (the fallback; values in the Log). "
 						+ "Absent from a macro line: the given values")
+				.field("Match_resolution", "match_resolution", "", "blur each reference to the result's expected resolution before the "
+						+ "comparison: the PSF's FWHM / 2 (else the input's apparent FWHM / 2), so that references sharper than any result can be "
+						+ "(another modality, much finer pixels) cannot rank a blurrier or noisier result higher. Absent from a macro line: "
+						+ "references as they are")
 				.note("<b>The table's columns.</b> <i>value</i>: the distance to the references (smaller is closer; for the re-blur rows, "
 						+ "the chi-square, about 1 when the result explains the data down to the noise, and the whiteness of the residual); "
 						+ "<i>95% low / 95% high</i>: the bootstrap interval of the distance; <i>noise floor</i>: the distance between two halves "

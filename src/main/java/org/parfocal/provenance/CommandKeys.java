@@ -79,7 +79,7 @@ public final class CommandKeys {
 			"edges:W", "offset:T", "background:T", "watch:F"), OPTICS, WATCH);
 	public static final Command COMPARE = define("Compare with Sharp References", List.of("result"), OLD_REFERENCES, List.of("result:T",
 			"reference_folder:T", "reference_images:T", "input:T", "psf:T", "offset:T", "background:T", "photons:N", "read_noise:N",
-			"patch_size:N", "patches:N", "bootstrap:N", "seed:N", "ignore_calibration:F", "estimate_noise:F"));
+			"patch_size:N", "patches:N", "bootstrap:N", "seed:N", "ignore_calibration:F", "estimate_noise:F", "match_resolution:F"));
 	public static final Command EXPORT_MACRO = define("Export Provenance as Macro", List.of(), Map.of(), List.of("macro:T", "replace:F"));
 	public static final Command WRITE_REPORT = define("Write Report", List.of(), Map.of(), List.of("file:T", "replace:F"));
 	public static final Command PARFOCAL_OPTIONS = define("Parfocal Options", List.of(), Map.of(), List.of("fft_library:W"));

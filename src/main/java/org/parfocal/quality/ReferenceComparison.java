@@ -15,8 +15,10 @@ import org.parfocal.core.VoxelSize;
  * The distribution-matching check: how far the local content of a result lies from that of a set of sharp,
  * unmatched reference images, with the scale to read it by.
  * <p>
- * <b>Pipeline.</b> Every image is resampled to the result's voxel size (linear interpolation,
- * {@link Resampling}) and normalised to its own robust percentiles ({@link Normalization}). Then
+ * <b>Pipeline.</b> With {@link Options#resolution}, every reference is first blurred to the result's expected
+ * resolution ({@link MatchedResolution}: so that references sharper than any result can be, e.g. confocal ones for
+ * a widefield result, cannot rank a blurrier result higher). Every image is resampled to the result's voxel size
+ * (anti-aliased linear interpolation, {@link Resampling}) and normalised to its own robust percentiles ({@link Normalization}). Then
  * <ul>
  * <li><i>patches</i>: sliced Wasserstein distance SW_p ({@link SlicedWasserstein}, p = {@link Options#power}) between
  * random patch features ({@link Patches}) of the result and of the pooled references;</li>
@@ -59,9 +61,18 @@ public final class ReferenceComparison {
 	 * @param floorSplits splits of the reference set for the noise floor (≥ 1)
 	 * @param ignoreCalibration compare voxel for voxel without resampling, even if calibrations differ or are missing
 	 * @param seed seed of every random choice
+	 * @param resolution the result's expected resolution, to which the references are blurred before any feature
+	 *        is taken ({@link MatchedResolution}); null: references used at their own resolution
 	 */
 	public record Options(PatchOptions patches, int patchCount, int directions, double power, int marginalSamples, double lowPercentile,
-			double highPercentile, int bootstrap, int floorSplits, boolean ignoreCalibration, long seed) {
+			double highPercentile, int bootstrap, int floorSplits, boolean ignoreCalibration, long seed, MatchedResolution resolution) {
+
+		/** Without matched resolution. */
+		public Options(final PatchOptions patches, final int patchCount, final int directions, final double power, final int marginalSamples,
+				final double lowPercentile, final double highPercentile, final int bootstrap, final int floorSplits, final boolean ignoreCalibration,
+				final long seed) {
+			this(patches, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignoreCalibration, seed, null);
+		}
 
 		public Options {
 			if (patches == null) throw new IllegalArgumentException("No patch options given");
@@ -78,26 +89,32 @@ public final class ReferenceComparison {
 
 		/**
 		 * 7 × 7 (× 3 in 3D) patches at 2 scales, not contrast-normalised; 8192 patches, 64 directions, p = 2;
-		 * 65536 voxel samples; percentiles 1 and 99.5; 50 bootstrap resamples; 4 floor splits; seed 1.
+		 * 65536 voxel samples; percentiles 1 and 99.5; 50 bootstrap resamples; 4 floor splits; seed 1; no matched
+		 * resolution.
 		 */
 		public static Options defaults() {
 			return new Options(new PatchOptions(7, 3, 2, false, true), 8192, 64, 2, 65536, 1, 99.5, 50, 4, false, 1);
 		}
 
 		public Options withSeed(final long s) {
-			return new Options(patches, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignoreCalibration, s);
+			return new Options(patches, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignoreCalibration, s, resolution);
 		}
 
 		public Options withPatches(final PatchOptions p) {
-			return new Options(p, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignoreCalibration, seed);
+			return new Options(p, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignoreCalibration, seed, resolution);
 		}
 
 		public Options withCounts(final int patches, final int samples, final int boot) {
-			return new Options(this.patches, patches, directions, power, samples, lowPercentile, highPercentile, boot, floorSplits, ignoreCalibration, seed);
+			return new Options(this.patches, patches, directions, power, samples, lowPercentile, highPercentile, boot, floorSplits, ignoreCalibration, seed, resolution);
 		}
 
 		public Options withIgnoreCalibration(final boolean ignore) {
-			return new Options(patches, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignore, seed);
+			return new Options(patches, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignore, seed, resolution);
+		}
+
+		/** The references blurred to {@code r} (null: not matched). */
+		public Options withResolution(final MatchedResolution r) {
+			return new Options(patches, patchCount, directions, power, marginalSamples, lowPercentile, highPercentile, bootstrap, floorSplits, ignoreCalibration, seed, r);
 		}
 	}
 
@@ -176,7 +193,8 @@ public final class ReferenceComparison {
 		 * Warnings about the references, one line each: a reference whose voxels differ from the result's by more
 		 * than {@link ReferenceComparison#SAMPLING_MISMATCH}× along an axis (it was resampled with anti-aliasing,
 		 * but a reference of much finer or coarser sampling, or of another modality, shows structure at another
-		 * resolution, which moves the distance).
+		 * resolution, which moves the distance); and a reference whose apparent resolution differs from the
+		 * expected one (or, unmatched, from the result's) by more than {@link MatchedResolution#MISMATCH}×.
 		 */
 		public List<String> notes() { return notes; }
 
@@ -214,9 +232,17 @@ public final class ReferenceComparison {
 		monitor.progress(step++, total, "Preparing the references");
 		final List<Volume> prepared = new ArrayList<>(references.size());
 		final List<String> names = new ArrayList<>(references.size());
+		final List<String> notes = samplingNotes(references, grid, threeD);
+		final double resultFwhm = o.resolution() == null ? MatchedResolution.apparentLateral(resultLike, grid) : Double.NaN;
 		for (int i = 0; i < references.size(); i++) {
 			monitor.checkCancelled();
-			prepared.add(onGrid(references.get(i), grid, o, refName(i)));
+			final Volume r = references.get(i);
+			checkFinite(r, refName(i));
+			if (o.resolution() != null) prepared.add(onGrid(o.resolution().blurred(r, grid, refName(i), notes), grid, o, refName(i)));
+			else {
+				MatchedResolution.compareUnmatched(r, resultFwhm, grid, refName(i), notes);
+				prepared.add(onGrid(r, grid, o, refName(i)));
+			}
 			names.add(refName(i));
 		}
 		final boolean volumetric = o.patches().volumetric() && threeD;
@@ -242,7 +268,7 @@ public final class ReferenceComparison {
 		}
 		for (int k = 0; k < floor.length; k++) floor[k] /= o.floorSplits();
 		monitor.progress(total, total, "References ready");
-		return new References(o, grid, threeD, volumetric, spacing, directions, patches, marginals, floor, references.size(), samplingNotes(references, grid, threeD));
+		return new References(o, grid, threeD, volumetric, spacing, directions, patches, marginals, floor, references.size(), notes);
 	}
 
 	/**
@@ -332,8 +358,7 @@ public final class ReferenceComparison {
 
 	/** Resampled to the grid (when there is one) and normalised. */
 	static Volume onGrid(final Volume v, final VoxelSize grid, final Options o, final String name) {
-		final int bad = v.firstNonFinite();
-		if (bad >= 0) throw new IllegalArgumentException(name + " has a non-finite value (" + v.data()[bad] + ") at " + v.position(bad));
+		checkFinite(v, name);
 		Volume g = v;
 		if (grid != null) {
 			if (!v.voxelSize().isCalibrated())
@@ -341,6 +366,11 @@ public final class ReferenceComparison {
 			g = Resampling.toVoxelSize(v, grid);
 		}
 		return Normalization.robust(g, o.lowPercentile(), o.highPercentile(), name);
+	}
+
+	private static void checkFinite(final Volume v, final String name) {
+		final int bad = v.firstNonFinite();
+		if (bad >= 0) throw new IllegalArgumentException(name + " has a non-finite value (" + v.data()[bad] + ") at " + v.position(bad));
 	}
 
 	/** The common grid: the result's voxel size, or null when nothing is resampled. */

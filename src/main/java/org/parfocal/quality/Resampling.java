@@ -1,11 +1,10 @@
 package org.parfocal.quality;
 
-import java.util.Locale;
-
 import org.parfocal.core.Smoothing;
 import org.parfocal.core.Trilinear;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
+import org.parfocal.psf.PsfGrid;
 
 /**
  * Resampling to another voxel size by linear (bilinear in 2D, trilinear in 3D) interpolation.
@@ -26,18 +25,12 @@ public final class Resampling {
 
 	private Resampling() {}
 
-	/** Micrometres per unit for the length units ImageJ users write; NaN for an unknown unit. */
+	/**
+	 * Micrometres per unit for the length units ImageJ users write; NaN for an unknown unit: {@link
+	 * PsfGrid#micronsPerUnit}, the one table of units in the project.
+	 */
 	public static double micronsPerUnit(final String unit) {
-		switch (unit.trim().toLowerCase(Locale.ROOT)) {
-		case "µm": case "μm": case "um": case "micron": case "microns": case "micrometer": case "micrometre": case "micrometers": case "micrometres":
-			return 1;
-		case "nm": case "nanometer": case "nanometre": case "nanometers": case "nanometres":
-			return 1e-3;
-		case "mm": case "millimeter": case "millimetre":
-			return 1e3;
-		default:
-			return Double.NaN;
-		}
+		return PsfGrid.micronsPerUnit(unit);
 	}
 
 	/** {dx, dy, dz} in µm, or an exception naming the unit if it is not a known length unit. */

@@ -60,6 +60,9 @@ public class CompareWithReferencesCommand extends MenuCommand {
 	@Parameter(persist = false)
 	private boolean estimate_noise;
 
+	@Parameter(persist = false, description = "blur the references to the result's expected resolution (PSF FWHM / 2)")
+	private boolean match_resolution;
+
 	@Override
 	public String menuLabel() {
 		return "Compare with Sharp References...";

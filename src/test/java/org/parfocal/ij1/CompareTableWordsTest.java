@@ -12,9 +12,9 @@ class CompareTableWordsTest {
 
 	@Test
 	void aBlankGapClosedSaysWhy() {
-		assertEquals("no input given", CompareWithReferences.whyNoGap(Double.NaN, 0.1, Double.NaN));
-		assertEquals("input already within the noise floor", CompareWithReferences.whyNoGap(0.08, 0.1, Double.NaN));
-		assertEquals("input already within the noise floor", CompareWithReferences.whyNoGap(0.1, 0.1, Double.NaN));
-		assertEquals("", CompareWithReferences.whyNoGap(0.5, 0.1, 0.75));
+		assertEquals("no input given", ComparisonTable.whyNoGap(Double.NaN, 0.1, Double.NaN));
+		assertEquals("input already within the noise floor", ComparisonTable.whyNoGap(0.08, 0.1, Double.NaN));
+		assertEquals("input already within the noise floor", ComparisonTable.whyNoGap(0.1, 0.1, Double.NaN));
+		assertEquals("", ComparisonTable.whyNoGap(0.5, 0.1, 0.75));
 	}
 }

@@ -32,6 +32,7 @@ import org.parfocal.deconv.DeconvolutionOptions;
 import org.parfocal.deconv.Level;
 import org.parfocal.demo.SampleScene;
 import org.parfocal.provenance.MacroOptions;
+import org.parfocal.quality.MatchedResolution;
 import org.parfocal.quality.PatchOptions;
 import org.parfocal.quality.QualityWatch;
 import org.parfocal.quality.ReblurConsistency;
@@ -127,10 +128,10 @@ class CompareWithReferencesCommandTest {
 			final ReferenceComparison.Row row = core.rows().get(k);
 			assertEquals(row.property(), t.getStringValue("property", k));
 			assertEquals(row.distance(), t.getValue("value", k), 1e-12 * row.distance(), row.property());
-			assertEquals(row.low(), t.getValue(CompareWithReferences.LOW, k), 1e-12);
-			assertEquals(row.floor(), t.getValue(CompareWithReferences.FLOOR, k), 1e-12);
-			assertEquals(row.baseline(), t.getValue(CompareWithReferences.BASELINE, k), 1e-12);
-			assertEquals(row.gapClosed(), t.getValue(CompareWithReferences.GAP, k), 1e-9);
+			assertEquals(row.low(), t.getValue(ComparisonTable.LOW, k), 1e-12);
+			assertEquals(row.floor(), t.getValue(ComparisonTable.FLOOR, k), 1e-12);
+			assertEquals(row.baseline(), t.getValue(ComparisonTable.BASELINE, k), 1e-12);
+			assertEquals(row.gapClosed(), t.getValue(ComparisonTable.GAP, k), 1e-9);
 		}
 		final ReblurConsistency.Result chi = new QualityWatch(null,
 				QualityWatch.Consistency.forDeconvolution(ImageBridge.toCore(rec).first(), psf(), false, 100, 5, 1, 0), 1, false, VOXEL)
@@ -147,6 +148,38 @@ class CompareWithReferencesCommandTest {
 		assertEquals(1 + 4 + 2, p.inputs().size(), "result, 4 references, input, psf");
 		assertEquals(ImageProvenance.sha256(third), p.inputs().get(3).sha256());
 		assertEquals(core.distance(), ((Number) p.run().get("patch_distance")).doubleValue(), 1e-12);
+	}
+
+	/**
+	 * {@code match_resolution}: the command blurs the references to the PSF's FWHM / 2 as the core does with
+	 * {@code MatchedResolution.expectedFromPsf} (checked against the simulation's own figures in
+	 * {@code MatchedResolutionTest}), records the resolution used and the references' notes as warnings; a line
+	 * without the key compares the references as they are (old lines unchanged).
+	 */
+	@Test
+	void matchResolutionBlursTheReferencesToTheExpectedResolution() throws Exception {
+		// references of the same cells recorded at half the voxel size (structures half as large): sharper than the
+		// expected resolution, so they are blurred
+		final List<ImagePlus> refs = new ArrayList<>();
+		for (int i = 0; i < 2; i++) {
+			final ImagePlus imp = ImageBridge.toImagePlus(truth(100 + i).withVoxelSize(VoxelSize.microns(VOXEL.dx() / 2, VOXEL.dy() / 2, VOXEL.dz())), "fine-" + i + ".tif");
+			IJ.saveAsTiff(imp, dir.resolve("fine-" + i + ".tif").toString());
+			refs.add(imp);
+		}
+		final ImagePlus res = image(deconvolved(), "result.tif"), rec = image(recording(), "recording.tif"), psf = image(psf(), "psf.tif");
+		open(res, rec, psf);
+		final ImageJHarness.Result r = ImageJHarness.run(res, CMD, options(dir.toString(), "") + " match_resolution");
+		final var p = ImageProvenance.of(r.created().stream().filter(i -> i.getTitle().startsWith("Marginals of result")).findFirst().orElseThrow()).orElseThrow();
+		assertTrue(p.options().containsKey("match_resolution"), p.options().toString());
+		final MatchedResolution expected = MatchedResolution.expectedFromPsf(ImageBridge.toCore(psf).first(), VOXEL);
+		assertEquals(ComparisonRun.expectedText(expected, true), p.run().get("expected_resolution"));
+		final List<Volume> refVolumes = refs.stream().map(i -> ImageBridge.toCore(i).first()).toList();
+		final Volume result = ImageBridge.toCore(res).first(), input = ImageBridge.toCore(rec).first();
+		final ReferenceComparison.Report matched = ReferenceComparison.compare(result, refVolumes, input, coreOptions().withResolution(expected), Monitor.NONE);
+		final ReferenceComparison.Report plain = ReferenceComparison.compare(result, refVolumes, input, coreOptions(), Monitor.NONE);
+		assertEquals(matched.distance(), ((Number) p.run().get("patch_distance")).doubleValue(), 1e-12);
+		assertTrue(Math.abs(matched.distance() - plain.distance()) > 1e-3 * plain.distance(), "matching changed nothing: " + matched.distance() + " expected " + expected + " refs " + java.util.Arrays.toString(org.parfocal.quality.ApparentResolution.fwhm(refVolumes.get(0), new double[] { VOXEL.dx(), VOXEL.dy(), VOXEL.dz() })));
+		assertEquals(matched.notes(), p.warnings(), "the references' notes are the record's warnings");
 	}
 
 	private static CompareWithReferences.Options parse(final String opts) {

@@ -53,6 +53,23 @@ class PreparationTest {
 		TestVolumes.assertMessage("not a length unit", () -> Resampling.toVoxelSize(v.withVoxelSize(new VoxelSize(1, 1, 1, "parsec-ish")), VoxelSize.microns(1, 1, 1)));
 	}
 
+	/**
+	 * Source: the SI prefixes (1 nm = 10⁻³ µm, 1 mm = 10³ µm; BIPM SI Brochure, 9th ed., 2019), in the spellings
+	 * ImageJ users write. The resampler and the PSF grid read one table ({@code PsfGrid.micronsPerUnit}): they agree
+	 * on every unit, and an unknown or pixel unit is no length.
+	 */
+	@Test
+	void unitFactorsAreTheSiPrefixesAndAgreeWithThePsfGrid() {
+		final String[] units = { "nm", "nanometre", "µm", "μm", "um", "micron", "microns", "micrometer", "mm", "millimetre", " UM " };
+		final double[] factor = { 1e-3, 1e-3, 1, 1, 1, 1, 1, 1, 1e3, 1e3, 1 };
+		for (int i = 0; i < units.length; i++) {
+			assertEquals(factor[i], Resampling.micronsPerUnit(units[i]), 0, units[i]);
+			assertEquals(factor[i], org.parfocal.psf.PsfGrid.micronsPer(new VoxelSize(1, 1, 1, units[i])), 0, units[i]);
+		}
+		for (final String u : new String[] { "pixel", "pixels", "inch", "parsec-ish" }) assertTrue(Double.isNaN(Resampling.micronsPerUnit(u)), u);
+		assertArrayEquals(new double[] { 0.25, 0.25, 1.5 }, Resampling.microns(new VoxelSize(250, 250, 1500, "nm"), "The image"), 1e-12);
+	}
+
 	/** Definition: (v − P1)/(P99.5 − P1) maps the two percentiles to 0 and 1; affine changes of the input cancel. */
 	@Test
 	void normalisationIsAffineInvariant() {
