@@ -172,7 +172,8 @@ public class BlindDeconvolve implements PlugIn {
 			final org.parfocal.core.Monitor monitor, final List<String> notes) {
 		final ReferenceComparison.References prepared = refs.isEmpty() ? null
 				: CompareWithReferences.named(refs, () -> ReferenceComparison.prepare(refs.stream().map(CompareWithReferences.Reference::volume).toList(), image,
-						ReferenceComparison.Options.defaults().withIgnoreCalibration(w.ignoreCalibration()), monitor));
+						ReferenceComparison.Options.defaults().withIgnoreCalibration(w.ignoreCalibration())
+								.withResolution(WatchFacts.expected(w, image, null, notes)), monitor));
 		final double[] lv = QualityWatch.Consistency.levels(image, options.offset(), options.background());
 		final double[] noise = w.noise(image, lv[0], notes);
 		final BlindQualityWatch.Recording rec = new BlindQualityWatch.Recording(image, options.edges() == EdgeMode.PERIODIC, lv[0], lv[1], noise[0],

@@ -105,9 +105,17 @@ public class Deconvolve implements PlugIn {
 	 * @param estimateNoise take gain and read noise estimated from each recording ({@link org.parfocal.core.CameraNoise})
 	 *        instead of {@code photons} and {@code read_noise} (which stay the fallback when the estimate fails);
 	 *        absent from old macros, so they keep their given values
+	 * @param matchResolution blur the references to the result's expected resolution before comparing
+	 *        ({@link org.parfocal.quality.MatchedResolution}); absent from old macros, which compare as before
 	 */
 	public record Watch(int every, String referenceFolder, String openReferences, double photons, double readNoise, boolean stopAtSuggestion,
-			boolean ignoreCalibration, boolean estimateNoise) {
+			boolean ignoreCalibration, boolean estimateNoise, boolean matchResolution) {
+
+		/** Without matched resolution (the references compared at their own resolution). */
+		public Watch(final int every, final String referenceFolder, final String openReferences, final double photons, final double readNoise,
+				final boolean stopAtSuggestion, final boolean ignoreCalibration, final boolean estimateNoise) {
+			this(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, ignoreCalibration, estimateNoise, false);
+		}
 
 		/** Without the noise estimate (the given photons and read noise). */
 		public Watch(final int every, final String referenceFolder, final String openReferences, final double photons, final double readNoise,
@@ -125,11 +133,11 @@ public class Deconvolve implements PlugIn {
 		public String macroOptions() {
 			return "every=" + every + " reference_folder=" + MacroOptions.quote(referenceFolder) + " reference_images=" + MacroOptions.quote(openReferences)
 					+ " photons=" + MacroOptions.number(photons) + " read_noise=" + MacroOptions.number(readNoise) + (stopAtSuggestion ? " stop_at_suggestion" : "")
-					+ (ignoreCalibration ? " ignore_calibration" : "") + (estimateNoise ? " estimate_noise" : "");
+					+ (ignoreCalibration ? " ignore_calibration" : "") + (estimateNoise ? " estimate_noise" : "") + (matchResolution ? " match_resolution" : "");
 		}
 
 		Watch withIgnoreCalibration() {
-			return new Watch(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, true, estimateNoise);
+			return new Watch(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, true, estimateNoise, matchResolution);
 		}
 
 

@@ -116,13 +116,14 @@ final class DeconvolveDialog {
 		gd.addCheckbox("Ignore_calibration of the references", false);
 		gd.addCheckbox("Estimate_noise from the recording (camera gain and read noise, instead of Photons and Read_noise)",
 				!macro && Commands.remembered(PREFS + "estimate_noise", true));
+		gd.addCheckbox("Match_resolution (blur the references to the result's expected resolution)", !macro && Commands.remembered(PREFS + "match_resolution", true));
 		gd.addHelp(DialogHelp.watch().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
 		final double every = Commands.number(gd, "every");
 		final String folder = gd.getNextString().trim(), pattern = gd.getNextString().trim();
 		final double photons = Commands.number(gd, "photons"), readNoise = Commands.number(gd, "read_noise");
-		final boolean stop = gd.getNextBoolean(), ignore = gd.getNextBoolean(), estimate = gd.getNextBoolean();
+		final boolean stop = gd.getNextBoolean(), ignore = gd.getNextBoolean(), estimate = gd.getNextBoolean(), match = gd.getNextBoolean();
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
 		if (every != Math.rint(every)) throw new IllegalArgumentException("Every must be a whole number of iterations, got " + every + " (every=)");
 		if (!macro) {
@@ -132,8 +133,9 @@ final class DeconvolveDialog {
 			Prefs.set(PREFS + "photons", photons);
 			Prefs.set(PREFS + "read_noise", readNoise);
 			Prefs.set(PREFS + "estimate_noise", estimate);
+			Prefs.set(PREFS + "match_resolution", match);
 		}
-		return new Watch((int) every, folder, pattern, photons, readNoise, stop, ignore, estimate);
+		return new Watch((int) every, folder, pattern, photons, readNoise, stop, ignore, estimate, match);
 	}
 
 	/**

@@ -62,7 +62,8 @@ final class DeconvolveRun {
 			final List<DeconvolutionResult> rs = new ArrayList<>();
 			final ReferenceComparison.References prepared = o.watch() == null || refs.isEmpty() ? null
 					: CompareWithReferences.named(refs, () -> ReferenceComparison.prepare(refs.stream().map(CompareWithReferences.Reference::volume).toList(), in.first(),
-							ReferenceComparison.Options.defaults().withIgnoreCalibration(o.watch().ignoreCalibration()), monitor));
+							ReferenceComparison.Options.defaults().withIgnoreCalibration(o.watch().ignoreCalibration())
+									.withResolution(WatchFacts.expected(o.watch(), in.first(), psfs.get(0), notes)), monitor));
 			if (prepared != null) for (final String note : prepared.notes()) if (!notes.contains(note)) notes.add(note);
 			for (int t = 0; t < in.frames(); t++)
 				for (int c = 0; c < in.channels(); c++) {

@@ -237,7 +237,10 @@ final class DialogHelp {
 				.field("Estimate_noise", "estimate_noise", "", "take the camera gain and read noise of the chi-square from the recording itself "
 						+ "(Poisson&ndash;Gaussian fit of the local variance against the local mean, Foi et al., IEEE TIP 2008) instead of Photons and "
 						+ "Read_noise, which stay the fallback when the fit fails; the values go into the Log and the provenance. Absent from a macro "
-						+ "line: the given values");
+						+ "line: the given values")
+				.field("Match_resolution", "match_resolution", "", "blur each reference to the result's expected resolution (the PSF's FWHM / 2; "
+						+ "Blind Deconvolve: the recording's apparent FWHM / 2) before comparing, so references much sharper than any result can be "
+						+ "(another modality, finer pixels) cannot favour the noisiest iterate; on in the dialog, off when a macro line leaves it out");
 	}
 
 	static Page blind() {

@@ -38,6 +38,28 @@ final class WatchFacts {
 		}
 	}
 
+	/**
+	 * With {@code match_resolution}: the resolution the references are blurred to before the comparison, from the
+	 * PSF ({@link org.parfocal.quality.MatchedResolution#expectedFromPsf}) or, without one (Blind Deconvolve), from the
+	 * recording's apparent FWHM; a note says which. Null when the key is off or the resolution cannot be measured
+	 * (then a note says the references were compared as they are).
+	 */
+	static org.parfocal.quality.MatchedResolution expected(final Watch w, final Volume recording, final Volume psf, final List<String> notes) {
+		if (!w.matchResolution()) return null;
+		final boolean calibrated = recording.voxelSize().isCalibrated() && !w.ignoreCalibration();
+		try {
+			final var r = psf != null
+					? org.parfocal.quality.MatchedResolution.expectedFromPsf(psf, calibrated ? recording.voxelSize() : org.parfocal.core.VoxelSize.UNCALIBRATED)
+					: org.parfocal.quality.MatchedResolution.expectedFromInput(recording, calibrated);
+			notes.add(String.format(Locale.ROOT, "watch references blurred to the expected resolution %.3g x %.3g %s (the %s FWHM / %s)", r.lateral(), r.axial(),
+					calibrated ? "µm" : "voxels", psf != null ? "PSF's" : "recording's apparent", MacroOptions.number(org.parfocal.quality.MatchedResolution.DECONVOLUTION_GAIN)));
+			return r;
+		} catch (final IllegalArgumentException e) {
+			notes.add("watch references compared at their own resolution: " + e.getMessage());
+			return null;
+		}
+	}
+
 	/** Watch-mode facts: the rule, the suggestion(s), what was returned, and the curve(s). */
 	static void record(final org.parfocal.provenance.Provenance.Builder prov, final Watch w, final List<? extends WatchedRun> watches,
 			final List<CompareWithReferences.Reference> refs) {

@@ -59,7 +59,7 @@ public final class CommandKeys {
 			"size_xy:N", "size_z:N");
 	/** The watch-mode dialog of Deconvolve and Blind Deconvolve. */
 	public static final List<String> WATCH = List.of("every:N", "reference_folder:T", "reference_images:T", "photons:N", "read_noise:N",
-			"stop_at_suggestion:F", "ignore_calibration:F", "estimate_noise:F");
+			"stop_at_suggestion:F", "ignore_calibration:F", "estimate_noise:F", "match_resolution:F");
 	/** Old names of the reference keys (before 0.1.0's rename: {@code references} is the tail of {@code open_references}). */
 	private static final Map<String, String> OLD_REFERENCES = Map.of("references", "reference_folder", "open_references", "reference_images");
 

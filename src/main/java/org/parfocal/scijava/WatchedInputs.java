@@ -41,6 +41,9 @@ public abstract class WatchedInputs extends OpticsInputs {
 	@Parameter(persist = false)
 	private boolean estimate_noise;
 
+	@Parameter(persist = false)
+	private boolean match_resolution;
+
 	/** True when the command computes its PSF from the optics (no PSF image given). */
 	protected abstract boolean fromOptics();
 
