@@ -45,6 +45,7 @@ public class Screens {
 	public static void main(final String[] args) throws Exception {
 		out = new File(args[0]);
 		out.mkdirs();
+		final String part = args.length > 1 ? args[1] : "all"; // dialogs, outputs or all
 		robot = new Robot();
 		// a modal message (an error ImageJ shows) would stop this run for good: give up after 15 minutes
 		final Thread watchdog = new Thread(() -> {
@@ -71,6 +72,15 @@ public class Screens {
 		screen("sample-stacks-tiled");
 
 		// every dialog with its Help page, cancelled
+		if (!"outputs".equals(part)) dialogs();
+		if (!"dialogs".equals(part)) outputs();
+		IJ.log("Screens: " + n + " screenshots in " + out + (problems.isEmpty() ? "" : "; problems: " + problems));
+		System.out.println("screens: " + n + " in " + out + (problems.isEmpty() ? "" : "\nproblems: " + String.join("\n", problems)));
+		Files.writeString(new File(out, "problems.txt").toPath(), String.join("\n", problems) + "\n");
+		System.exit(0);
+	}
+
+	static void dialogs() throws Exception {
 		dialog("convolve", "Convolve with PSF...");
 		dialog("psf-from-optics", "PSF from Optics...");
 		IJ.selectWindow("quillwort-beads.tif");
@@ -80,6 +90,9 @@ public class Screens {
 		dialog("blind-deconvolve", "Blind Deconvolve...");
 		dialog("compare", "Compare with Sharp References...");
 		dialog("options", "Parfocal Options...");
+	}
+
+	static void outputs() throws Exception {
 
 		// outputs: a default run, a watched run, a blind run with its PSF history, a comparison, a report
 		closeAllBut();
@@ -104,10 +117,6 @@ public class Screens {
 		IJ.run("Export Provenance as Macro...", "macro=[" + macro + "]");
 		pause(1000);
 		screen("after-report-and-macro");
-		IJ.log("Screens: " + n + " screenshots in " + out + (problems.isEmpty() ? "" : "; problems: " + problems));
-		System.out.println("screens: " + n + " in " + out + (problems.isEmpty() ? "" : "\nproblems: " + String.join("\n", problems)));
-		Files.writeString(new File(out, "problems.txt").toPath(), String.join("\n", problems) + "\n");
-		System.exit(0);
 	}
 
 	/** Opens a command's dialog on another thread, captures it and its Help page, then presses its Cancel. */
@@ -208,7 +217,7 @@ public class Screens {
 	}
 
 	static void window(final String name, final Window w) throws Exception {
-		EventQueue.invokeAndWait(w::toFront);
+		EventQueue.invokeLater(w::toFront); // not invokeAndWait: the event thread may be inside a modal dialog's loop
 		pause(700);
 		final Rectangle r = w.getBounds().intersection(new Rectangle(Toolkit.getDefaultToolkit().getScreenSize()));
 		save(name, robot.createScreenCapture(r));
