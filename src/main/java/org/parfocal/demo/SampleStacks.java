@@ -2,7 +2,6 @@ package org.parfocal.demo;
 
 import java.awt.Color;
 import java.io.File;
-import java.util.Arrays;
 import java.util.List;
 import java.util.LinkedHashMap;
 import java.util.Map;
@@ -11,7 +10,6 @@ import ij.CompositeImage;
 import ij.IJ;
 import ij.ImagePlus;
 import ij.ImageStack;
-import ij.process.ImageProcessor;
 import ij.process.LUT;
 import ij.io.FileSaver;
 import ij.process.StackConverter;
@@ -20,6 +18,7 @@ import org.parfocal.conv.Acquisition;
 import org.parfocal.core.Boundary;
 import org.parfocal.core.Hyperstack;
 import org.parfocal.core.Volume;
+import org.parfocal.ij1.FirstView;
 import org.parfocal.ij1.ImageBridge;
 
 /**
@@ -93,7 +92,7 @@ public final class SampleStacks {
 		out.put("quillwort-two-channel.tif", composite(two));
 		final ImagePlus twoPsf = ImageBridge.toImagePlus(new Hyperstack(2, 1, List.of(psf, redPsf)), "quillwort-two-channel-psf.tif", null);
 		out.put("quillwort-two-channel-psf.tif", composite(twoPsf));
-		for (final ImagePlus imp : out.values()) showSomething(imp);
+		for (final ImagePlus imp : out.values()) FirstView.showSomething(imp);
 		return out;
 	}
 
@@ -117,48 +116,6 @@ public final class SampleStacks {
 		c.setChannelLut(LUT.createLutFromColor(Color.green), 1);
 		c.setChannelLut(LUT.createLutFromColor(Color.magenta), 2);
 		return c;
-	}
-
-	/**
-	 * Moves to the plane with the most signal (largest sum above the stack's median) and sets, per channel, a
-	 * display range from the stack's median to its 99.9th percentile, so that faint structure shows beside bright
-	 * puncta. Pixels are not changed.
-	 */
-	static void showSomething(final ImagePlus imp) {
-		final int nc = imp.getNChannels(), nz = imp.getNSlices();
-		int bestZ = 1;
-		double best = Double.NEGATIVE_INFINITY;
-		final double[][] range = new double[nc][];
-		for (int c = 1; c <= nc; c++) {
-			final float[] all = new float[imp.getWidth() * imp.getHeight() * nz];
-			for (int z = 1; z <= nz; z++) {
-				final ImageProcessor ip = imp.getStack().getProcessor(imp.getStackIndex(c, z, 1));
-				for (int i = 0; i < ip.getPixelCount(); i++) all[(z - 1) * ip.getPixelCount() + i] = ip.getf(i);
-			}
-			final float[] sorted = all.clone();
-			Arrays.sort(sorted);
-			final double median = sorted[sorted.length / 2], high = sorted[(int) Math.min(sorted.length - 1, Math.floor(0.999 * sorted.length))];
-			range[c - 1] = new double[] { median, high > median ? high : sorted[sorted.length - 1] };
-			if (c == 1) {
-				final int plane = imp.getWidth() * imp.getHeight();
-				for (int z = 0; z < nz; z++) {
-					double sum = 0;
-					for (int i = 0; i < plane; i++) sum += Math.max(0, all[z * plane + i] - median);
-					if (sum > best) {
-						best = sum;
-						bestZ = z + 1;
-					}
-				}
-			}
-		}
-		imp.setPosition(1, bestZ, 1);
-		if (imp instanceof CompositeImage ci) {
-			for (int c = 1; c <= nc; c++) {
-				ci.setPositionWithoutUpdate(c, bestZ, 1);
-				ci.setDisplayRange(range[c - 1][0], range[c - 1][1]);
-			}
-			ci.setPosition(1, bestZ, 1);
-		} else imp.setDisplayRange(range[0][0], range[0][1]);
 	}
 
 	public static void main(final String[] args) {

@@ -110,6 +110,7 @@ public class BlindDeconvolve implements PlugIn {
 			BlindOutputs.zoomSmall(out.history());
 			out.psf().show();
 			BlindOutputs.zoomSmall(out.psf());
+			FirstView.forPerson(out.image());
 			out.image().show(); // last, so that it is the current image for the next macro line
 		});
 	}

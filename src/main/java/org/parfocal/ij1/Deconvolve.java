@@ -156,6 +156,7 @@ public class Deconvolve implements PlugIn {
 			final Output out = run(DeconvolveDialog.checkCalibration(o));
 			if (out.convergence() != null) out.convergence().show();
 			if (out.quality() != null) out.quality().show();
+			FirstView.forPerson(out.image());
 			out.image().show(); // last, so that it is the current image for the next macro line
 		});
 	}
