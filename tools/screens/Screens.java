@@ -142,7 +142,8 @@ public class Screens {
 			else {
 				pause(1500);
 				window(name + "-help", h);
-				h.dispose();
+				EventQueue.invokeLater(h::dispose);
+				pause(500);
 			}
 		}
 		final Button cancel = button(d, "Cancel");
@@ -208,8 +209,9 @@ public class Screens {
 		return null;
 	}
 
+	/** Presses a button on the event thread without waiting: what it opens may be modal. */
 	static void press(final Button b) throws Exception {
-		EventQueue.invokeAndWait(() -> {
+		EventQueue.invokeLater(() -> {
 			for (final ActionListener l : b.getActionListeners())
 				l.actionPerformed(new ActionEvent(b, ActionEvent.ACTION_PERFORMED, b.getLabel()));
 		});
