@@ -92,6 +92,9 @@ public final class SampleStacks {
 		out.put("quillwort-two-channel.tif", composite(two));
 		final ImagePlus twoPsf = ImageBridge.toImagePlus(new Hyperstack(2, 1, List.of(psf, redPsf)), "quillwort-two-channel-psf.tif", null);
 		out.put("quillwort-two-channel-psf.tif", composite(twoPsf));
+		// made again last, so that it is the newest PSF: Deconvolve preselects it for the widefield stack (the bead PSF was
+		// made after it, for the bead recording); the map keeps its place in the order
+		out.put("quillwort-psf.tif", ImageBridge.toImagePlus(psf, "quillwort-psf.tif"));
 		for (final ImagePlus imp : out.values()) FirstView.showSomething(imp);
 		return out;
 	}

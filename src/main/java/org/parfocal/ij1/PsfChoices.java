@@ -42,7 +42,8 @@ final class PsfChoices {
 	}
 
 	/** One plausible PSF. */
-	record Candidate(String title, Kind kind, int id) {}
+	/** {@code ownChannels}: one PSF channel per channel of the image (a single-channel PSF of a single-channel image too). */
+	record Candidate(String title, Kind kind, int id, boolean ownChannels) {}
 
 	/** The plausible PSFs for {@code image} among the open images, in list order. */
 	static List<Candidate> candidates(final ImagePlus image) {
@@ -61,11 +62,12 @@ final class PsfChoices {
 		for (final ImagePlus p : open) {
 			if (p == null || p == image || (image != null && p.getID() == image.getID())) continue;
 			final Kind k = kind(p, image);
-			if (k != null) out.add(new Candidate(p.getTitle(), k, p.getID()));
+			if (k != null) out.add(new Candidate(p.getTitle(), k, p.getID(), image == null || p.getNChannels() == image.getNChannels()));
 		}
-		// ImageJ numbers images -1, -2, … in the order they are made: the most negative ID is the newest
-		out.sort(Comparator.comparing(Candidate::kind).thenComparing(c -> !c.title().toLowerCase(Locale.ROOT).contains("psf"))
-				.thenComparingInt(Candidate::id));
+		// ImageJ numbers images -1, -2, … in the order they are made: the most negative ID is the newest; a PSF with
+		// a channel per image channel before one PSF for all channels
+		out.sort(Comparator.comparing(Candidate::kind).thenComparing(c -> !c.ownChannels())
+				.thenComparing(c -> !c.title().toLowerCase(Locale.ROOT).contains("psf")).thenComparingInt(Candidate::id));
 		return out;
 	}
 

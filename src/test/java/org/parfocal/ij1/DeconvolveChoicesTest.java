@@ -80,6 +80,15 @@ class DeconvolveChoicesTest {
 	}
 
 	@Test
+	void theSampleStacksPreselectTheirOwnPsfs() {
+		final java.util.Map<String, ImagePlus> samples = org.parfocal.demo.SampleStacks.make();
+		ImageJHarness.open(samples.values().toArray(ImagePlus[]::new));
+		// the widefield stack's own PSF, not the bead PSF made after it; the two-channel stack's PSF of two channels
+		assertEquals("quillwort-psf.tif", PsfChoices.items(samples.get("quillwort-widefield.tif"))[0]);
+		assertEquals("quillwort-two-channel-psf.tif", PsfChoices.items(samples.get("quillwort-two-channel.tif"))[0]);
+	}
+
+	@Test
 	void theDialogsPsfListPreselectsTheNewestParfocalPsfAndEndsWithTheOptics() {
 		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
 		final ImagePlus small = ImageBridge.toImagePlus(SampleScene.gaussianPsf(9, 9, 5).withVoxelSize(VOXEL), "measured-psf.tif");
