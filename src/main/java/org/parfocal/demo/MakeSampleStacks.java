@@ -7,7 +7,7 @@ import ij.IJ;
 import ij.ImagePlus;
 import ij.plugin.PlugIn;
 
-import org.parfocal.provenance.MacroExport;
+import org.parfocal.command.MacroExport;
 import org.parfocal.provenance.Provenance;
 
 /**

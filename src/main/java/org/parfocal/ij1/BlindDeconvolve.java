@@ -91,7 +91,7 @@ public class BlindDeconvolve implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.BLIND_DECONVOLVE, () -> {
+		Commands.run(COMMAND, org.parfocal.command.CommandKeys.BLIND_DECONVOLVE, () -> {
 			BlindDeconvolveOptions o = BlindDeconvolveDialog.show();
 			if (o == null) throw Commands.cancelled();
 			if (o.watch() != null && !o.watch().ignoreCalibration()) {

@@ -14,7 +14,7 @@ import ij.gui.GenericDialog;
 import net.imglib2.parallel.Parallelization;
 
 import org.parfocal.core.Monitor;
-import org.parfocal.provenance.CommandKeys;
+import org.parfocal.command.CommandKeys;
 
 /**
  * What every Parfocal command shares: picking images by title, running the core with ImageJ's thread count,

@@ -102,7 +102,7 @@ public class CompareWithReferences implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.COMPARE, () -> {
+		Commands.run(COMMAND, org.parfocal.command.CommandKeys.COMPARE, () -> {
 			Options o = showDialog();
 			if (o == null) throw Commands.cancelled();
 			if (!o.ignoreCalibration()) {

@@ -49,7 +49,7 @@ public class ConvolveWithPsf implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.CONVOLVE, () -> {
+		Commands.run(COMMAND, org.parfocal.command.CommandKeys.CONVOLVE, () -> {
 			final Options o = showDialog();
 			if (o == null) throw Commands.cancelled();
 			WindowManagerShow.show(run(o));

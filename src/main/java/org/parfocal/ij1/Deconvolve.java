@@ -136,6 +136,12 @@ public class Deconvolve implements PlugIn {
 					+ (ignoreCalibration ? " ignore_calibration" : "") + (estimateNoise ? " estimate_noise" : "") + (matchResolution ? " match_resolution" : "");
 		}
 
+		/** The watch settings of a run's options ({@link org.parfocal.command.DeconvolveKeys#WATCH}; defaults for keys not given). */
+		public static Watch from(final org.parfocal.command.KeyTable.Values v) {
+			return new Watch(v.whole("every"), v.text("reference_folder"), v.text("reference_images"), v.number("photons"), v.number("read_noise"),
+					v.flag("stop_at_suggestion"), v.flag("ignore_calibration"), v.flag("estimate_noise"), v.flag("match_resolution"));
+		}
+
 		Watch withIgnoreCalibration() {
 			return new Watch(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, true, estimateNoise, matchResolution);
 		}
@@ -150,7 +156,7 @@ public class Deconvolve implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.DECONVOLVE, () -> {
+		Commands.run(COMMAND, org.parfocal.command.CommandKeys.DECONVOLVE, () -> {
 			final Options o = DeconvolveDialog.show();
 			if (o == null) throw Commands.cancelled();
 			final Output out = run(DeconvolveDialog.checkCalibration(o));

@@ -4,6 +4,10 @@ import ij.Prefs;
 import ij.WindowManager;
 import ij.gui.GenericDialog;
 
+import java.util.Map;
+
+import org.parfocal.command.DeconvolveKeys;
+import org.parfocal.command.DeconvolveRequest;
 import org.parfocal.deconv.DeconvolutionMethod;
 import org.parfocal.deconv.DeconvolutionOptions;
 import org.parfocal.deconv.DefaultRun;
@@ -33,23 +37,19 @@ final class DeconvolveDialog {
 		final String[] psfChoices = PsfChoices.items(WindowManager.getImage(imageDefault)); // plausible PSFs, newest Parfocal PSF first
 		Commands.acceptOldValue("edges", EdgeMode.OLD_NON_CIRCULANT_KEY, EdgeMode.NON_CIRCULANT.key());
 		final GenericDialog gd = new GenericDialog(COMMAND);
-		gd.addChoice("Image:", titles, imageDefault);
-		gd.addChoice("PSF:", psfChoices, psfChoices[0]);
-		// the default run (DefaultRun) when method, iterations or stop are left out; a macro line that gives iterations without stop runs them all
+		// labels and defaults from the one description of the keys (DeconvolveKeys); the screen adds items, digits and hints
+		final KeyFields f = new KeyFields(gd, DeconvolveKeys.MAIN, PREFS);
+		f.choice("image", titles, imageDefault).choice("psf", psfChoices, psfChoices[0]);
+		f.choice("method", DeconvolutionMethod.keys(), null);
+		f.number("iterations", 0, 6, "at most, with relative-change or held-out stop");
+		f.number("regularization", 4, 8, "TV weight (RL-TV) or Wiener weight");
+		// the default run (DefaultRun) when stop is left out: a macro line that gives iterations without stop runs them all
 		final boolean iterationsGiven = Commands.isMacro() && ij.Macro.getValue(ij.Macro.getOptions(), "iterations", null) != null;
-		gd.addChoice("Method:", DeconvolutionMethod.keys(), Commands.remembered(PREFS + "method", DefaultRun.METHOD.key()));
-		gd.addNumericField("Iterations:", Commands.remembered(PREFS + "iterations", DefaultRun.CAP), 0, 6, "at most, with relative-change or held-out stop");
-		gd.addNumericField("Regularization:", Commands.remembered(PREFS + "regularization", 0.002), 4, 8, "TV weight (RL-TV) or Wiener weight");
-		gd.addChoice("Stop:", new String[] { Stopping.FIXED.key(), Stopping.RELATIVE_CHANGE.key(), Stopping.HELD_OUT.key() },
+		f.choice("stop", new String[] { Stopping.FIXED.key(), Stopping.RELATIVE_CHANGE.key(), Stopping.HELD_OUT.key() },
 				Commands.remembered(PREFS + "stop", DefaultRun.stop(iterationsGiven).key()));
-		gd.addNumericField("Threshold:", Commands.remembered(PREFS + "threshold", 0.001), 5, 8, "relative change that stops");
-		gd.addChoice("Edges:", EdgeMode.keys(), Commands.remembered(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
-		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
-		gd.addStringField("Background:", Commands.remembered(PREFS + "background", DefaultRun.BACKGROUND), 8);
-		gd.addChoice("Output:", OutputDepth.keys(), Commands.remembered(PREFS + "output", OutputDepth.FLOAT.key()));
-		gd.addCheckbox("Plot convergence", true);
-		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
-		gd.addCheckbox("Recentre the PSF (shift its centre of mass to the centre voxel)", false);
+		f.number("threshold", 5, 8, "relative change that stops");
+		f.choice("edges", EdgeMode.keys(), null).text("offset", 8).text("background", 8).choice("output", OutputDepth.keys(), null);
+		f.checkbox("plot").checkbox("watch").checkbox("recentre");
 		gd.addHelp(DialogHelp.deconvolve().html());
 		ChoiceWords.show(gd, "image", "psf", "method", "stop", "edges", "output");
 		PsfChoices.follow(gd);
@@ -61,24 +61,21 @@ final class DeconvolveDialog {
 			if (preview != null) preview.close();
 		}
 		if (gd.wasCanceled()) return null;
-		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
-		final String psf = Commands.checkChoice("psf", gd.getNextChoice(), "PSF (an open image or " + FROM_OPTICS + ")");
-		final DeconvolutionMethod method = DeconvolutionMethod.parse(Commands.checkChoice("method", gd.getNextChoice(), "method"));
-		final double iterations = Commands.number(gd, "iterations"), regularization = Commands.number(gd, "regularization");
-		final Stopping stop = Stopping.parse(Commands.checkChoice("stop", gd.getNextChoice(), "stopping rule (fixed, relative-change or held-out)"));
-		final double threshold = Commands.number(gd, "threshold");
-		final EdgeMode edges = EdgeMode.parse(Commands.checkChoice("edges", gd.getNextChoice(), "edge mode"));
-		final String offset = gd.getNextString().trim(), background = gd.getNextString().trim();
-		final boolean plot = gd.getNextBoolean();
-		final boolean watch = gd.getNextBoolean();
-		final boolean recentre = gd.getNextBoolean();
-		final OutputDepth output = OutputDepth.parse(Commands.checkChoice("output", gd.getNextChoice(), "output depth (32-bit or 16-bit)"));
+		final String image = f.readChoice("image", "image title");
+		final String psf = f.readChoice("psf", "PSF (an open image or " + FROM_OPTICS + ")");
+		f.readChoice("method", "method");
+		f.readNumber("iterations");
+		f.readNumber("regularization");
+		f.readChoice("stop", "stopping rule (fixed, relative-change or held-out)");
+		f.readNumber("threshold");
+		f.readChoice("edges", "edge mode");
+		f.readText("offset");
+		f.readText("background");
+		final boolean plot = f.readCheckbox("plot"), watch = f.readCheckbox("watch"), recentre = f.readCheckbox("recentre");
+		final OutputDepth output = OutputDepth.parse(f.readChoice("output", "output depth (32-bit or 16-bit)"));
 		if (output == OutputDepth.FLOAT) ChoiceWords.forgetRecorded("output"); // the default is left out, as in lines recorded before the key
-		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
-		if (iterations != Math.rint(iterations)) throw new IllegalArgumentException("Iterations must be a whole number, got " + iterations);
-		final DeconvolutionOptions d = new DeconvolutionOptions(method, (int) iterations, regularization, stop,
-				stop == Stopping.RELATIVE_CHANGE ? threshold : threshold > 0 && threshold < 1 ? threshold : 0.001, edges, Level.parse("offset", offset, false),
-				Level.parse("background", background, true));
+		final Map<String, String> values = f.values();
+		final DeconvolutionOptions d = DeconvolveRequest.deconvolution(DeconvolveKeys.MAIN.read(values)); // the reader of the command line too
 		PsfFromOptics.Options optics = null;
 		if (FROM_OPTICS.equals(psf)) {
 			optics = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
@@ -89,53 +86,29 @@ final class DeconvolveDialog {
 			w = showWatch();
 			if (w == null) return null;
 		}
-		if (!Commands.isMacro()) {
-			Prefs.set(PREFS + "method", method.key());
-			Prefs.set(PREFS + "iterations", (int) iterations);
-			Prefs.set(PREFS + "regularization", regularization);
-			Prefs.set(PREFS + "stop", stop.key());
-			Prefs.set(PREFS + "threshold", threshold);
-			Prefs.set(PREFS + "edges", edges.key());
-			Prefs.set(PREFS + "offset", offset);
-			Prefs.set(PREFS + "background", background);
-			Prefs.set(PREFS + "output", output.key());
-		}
+		f.remember("method", "iterations", "regularization", "stop", "threshold", "edges", "offset", "background", "output");
 		return new Options(image, psf, optics, d, plot, w, recentre, output);
 	}
 
 	/** The watch-mode dialog; in a macro, values not given take the defaults (never remembered ones). */
 	static Watch showWatch() {
-		final boolean macro = Commands.isMacro();
 		final GenericDialog gd = new GenericDialog(COMMAND + ": watch quality");
-		gd.addNumericField("Every:", macro ? 5 : Commands.remembered(PREFS + "every", 5), 0, 6, "iterations");
-		gd.addStringField("Reference_folder:", macro ? "" : Commands.remembered(PREFS + "references", ""), 30);
-		gd.addStringField("Reference_images:", macro ? "" : Commands.remembered(PREFS + "open_references", ""), 20);
-		gd.addNumericField("Photons:", macro ? 1 : Commands.remembered(PREFS + "photons", 1), 4, 8, "per intensity unit (1 = photon counts)");
-		gd.addNumericField("Read_noise:", macro ? 0 : Commands.remembered(PREFS + "read_noise", 0), 3, 8, "sigma, intensity units");
-		gd.addCheckbox("Stop_at_suggestion (return the suggested iterate)", false);
-		gd.addCheckbox("Ignore_calibration of the references", false);
-		gd.addCheckbox("Estimate_noise from the recording (camera gain and read noise, instead of Photons and Read_noise)",
-				!macro && Commands.remembered(PREFS + "estimate_noise", true));
-		gd.addCheckbox("Match_resolution (blur the references to the result's expected resolution)", !macro && Commands.remembered(PREFS + "match_resolution", true));
+		final KeyFields f = new KeyFields(gd, DeconvolveKeys.WATCH, PREFS);
+		f.number("every", 0, 6, "iterations").text("reference_folder", 30).text("reference_images", 20);
+		f.number("photons", 4, 8, "per intensity unit (1 = photon counts)").number("read_noise", 3, 8, "sigma, intensity units");
+		f.checkbox("stop_at_suggestion").checkbox("ignore_calibration").rememberedCheckbox("estimate_noise").rememberedCheckbox("match_resolution");
 		gd.addHelp(DialogHelp.watch().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
-		final double every = Commands.number(gd, "every");
-		final String folder = gd.getNextString().trim(), pattern = gd.getNextString().trim();
-		final double photons = Commands.number(gd, "photons"), readNoise = Commands.number(gd, "read_noise");
-		final boolean stop = gd.getNextBoolean(), ignore = gd.getNextBoolean(), estimate = gd.getNextBoolean(), match = gd.getNextBoolean();
-		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
-		if (every != Math.rint(every)) throw new IllegalArgumentException("Every must be a whole number of iterations, got " + every + " (every=)");
-		if (!macro) {
-			Prefs.set(PREFS + "every", (int) every);
-			Prefs.set(PREFS + "references", folder);
-			Prefs.set(PREFS + "open_references", pattern);
-			Prefs.set(PREFS + "photons", photons);
-			Prefs.set(PREFS + "read_noise", readNoise);
-			Prefs.set(PREFS + "estimate_noise", estimate);
-			Prefs.set(PREFS + "match_resolution", match);
-		}
-		return new Watch((int) every, folder, pattern, photons, readNoise, stop, ignore, estimate, match);
+		f.readNumber("every");
+		f.readText("reference_folder");
+		f.readText("reference_images");
+		f.readNumber("photons");
+		f.readNumber("read_noise");
+		for (final String flag : new String[] { "stop_at_suggestion", "ignore_calibration", "estimate_noise", "match_resolution" }) f.readCheckbox(flag);
+		final Watch w = Watch.from(DeconvolveKeys.WATCH.read(f.values()));
+		f.remember("every", "reference_folder", "reference_images", "photons", "read_noise", "estimate_noise", "match_resolution");
+		return w;
 	}
 
 	/**

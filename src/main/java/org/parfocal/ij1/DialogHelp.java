@@ -3,6 +3,9 @@ package org.parfocal.ij1;
 import java.util.ArrayList;
 import java.util.List;
 
+import org.parfocal.command.DeconvolveKeys;
+import org.parfocal.command.Key;
+import org.parfocal.command.KeyTable;
 import org.parfocal.psf.OpticsFields.Group;
 
 /**
@@ -32,6 +35,27 @@ final class DialogHelp {
 		Page field(final String label, final String key, final String unit, final String meaning) {
 			rows.add(new Field(label, key, unit, meaning));
 			return this;
+		}
+
+		/** Rows for keys of a table, as their {@link Key} describes them (label, key, unit, meaning). */
+		Page fields(final KeyTable table, final String... names) {
+			for (final String n : names) {
+				final Key k = table.key(n);
+				field(k.helpLabel(), k.name(), k.unit(), k.help() + (k.rangeText().isEmpty() || k.kind() != org.parfocal.command.CommandKeys.Kind.NUMBER ? ""
+						: " (" + k.rangeText() + ")") + macroDefault(k));
+			}
+			return this;
+		}
+
+		/** What a macro that leaves the key out gets, in words. */
+		private static String macroDefault(final Key k) {
+			if (k.kind() == org.parfocal.command.CommandKeys.Kind.FLAG) return k.shownChecked() ? ". Ticked at first in the dialog; a macro line without it: off" : "";
+			return k.defaultValue().isEmpty() ? "" : ". Macro default: <code>" + k.defaultValue() + "</code>";
+		}
+
+		/** Rows for every key of a table, in its order. */
+		Page fields(final KeyTable table) {
+			return fields(table, table.names().toArray(String[]::new));
 		}
 
 		/** A group heading, as the dialog's own headings. */
@@ -67,7 +91,7 @@ final class DialogHelp {
 		}
 	}
 
-	private static final String LEVEL = "a number, <code>auto</code> (estimated from the data) or 0 (none)";
+	private static final String LEVEL = DeconvolveKeys.LEVEL;
 
 	static Page convolve() {
 		return new Page("Convolve with PSF", "Simulates a recording of an object: the object is blurred with the PSF, a background is "
@@ -96,38 +120,12 @@ final class DialogHelp {
 				+ "greyed out and ignored: the Log and the record's <code>ignored</code> entry name them with the reason. Opened from the menu, the fields start from the optics in the current image's "
 				+ "record, or in its inputs' records (a PSF from Optics, a run with <code>psf=from_optics</code>); a macro always gets "
 				+ "the defaults below.")
-				.field("Model", "model", "", "<code>gaussian</code>: Gaussian fit to the widefield/confocal PSF (Zhang et al., Appl. Opt. 2007); "
-						+ "<code>born-wolf</code>: scalar diffraction, in focus in a matched sample; <code>gibson-lanni</code>: scalar, with the "
-						+ "aberration of a sample or coverslip that differs from what the objective was made for, growing with depth "
-						+ "(Gibson &amp; Lanni, J. Opt. Soc. Am. A 1991); <code>richards-wolf</code>: vectorial, for high NA (Richards &amp; Wolf, "
-						+ "Proc. R. Soc. A 1959)")
-				.field("Modality", "modality", "", "<code>widefield</code>, <code>confocal</code> (pinhole), <code>two-photon</code> "
-						+ "(excitation only) or <code>light-sheet</code> (sheet thickness)")
-				.group(html(Group.OBJECTIVE))
-				.field("NA", "na", "", "numerical aperture of the objective; below the immersion index")
-				.field("Immersion_index", "immersion_index", "", "refractive index of the immersion medium actually used (oil 1.518, water 1.333, glycerol 1.47)")
-				.field("Sample_index", "sample_index", "", "refractive index of the sample around the emitters (the models without depth aberration use it only to size an automatic box)")
-				.group(html(Group.LAYERS))
-				.field("Coverslip_index", "coverslip_index", "", "refractive index of the coverslip used")
-				.field("Coverslip_thickness", "coverslip_thickness", "&micro;m", "thickness of the coverslip used (No. 1.5: 170)")
-				.field("Depth", "depth", "&micro;m", "depth of the emitters below the coverslip (the models without depth aberration use it only to size an automatic box)")
-				.group(html(Group.DESIGN))
-				.field("Immersion_index_design", "immersion_index_design", "", "immersion index the objective is corrected for (printed on it)")
-				.field("Coverslip_index_design", "coverslip_index_design", "", "coverslip index the objective is corrected for")
-				.field("Coverslip_thickness_design", "coverslip_thickness_design", "&micro;m", "coverslip thickness the objective is corrected for (on the barrel)")
-				.field("Working_distance", "working_distance", "&micro;m", "free working distance of the objective")
-				.group(html(Group.LIGHT))
-				.field("Emission", "emission", "&micro;m", "emission wavelength (e.g. 0.52 for a green dye)")
-				.group(html(Group.SCANNING))
-				.field("Excitation", "excitation", "&micro;m", "excitation wavelength; used by confocal and two-photon only")
-				.field("Pinhole", "pinhole", "Airy units", "pinhole diameter; used by confocal only")
-				.group(html(Group.SHEET))
-				.field("Sheet_thickness", "sheet_thickness", "&micro;m (FWHM)", "thickness of the light sheet; used by light-sheet only")
-				.group(html(Group.SAMPLING))
-				.field("Voxel_xy", "voxel_xy", "&micro;m", "lateral voxel size of the stack to be deconvolved (taken from the current image)")
-				.field("Voxel_z", "voxel_z", "&micro;m", "axial step of the stack")
-				.field("Size_xy", "size_xy", "voxels (odd)", "PSF width; 0 = enough for the model's rings (from the optics)")
-				.field("Size_z", "size_z", "voxels (odd)", "PSF depth; 0 = from the optics");
+				.fields(DeconvolveKeys.OPTICS, "model", "modality");
+		Group group = null;
+		for (final org.parfocal.psf.OpticsFields.Field f : org.parfocal.psf.OpticsFields.FIELDS) {
+			if (f.group() != group) p.group(html(group = f.group()));
+			p.fields(DeconvolveKeys.OPTICS, f.key());
+		}
 		if (withProfiles) p.field("Show_profiles and FWHM table", "show_profiles", "", "also show a plot of the lateral and axial profiles and a table of FWHM");
 		return p.note("A warning is given (and recorded) when the voxel size is coarser than the Nyquist step &lambda;/(4&middot;NA) laterally.");
 	}
@@ -183,64 +181,24 @@ final class DialogHelp {
 	}
 
 	static Page deconvolve() {
-		final Page p = new Page("Deconvolve", "Removes blur from every channel and time point of a stack with a known PSF. The result is a new "
+		return new Page("Deconvolve", "Removes blur from every channel and time point of a stack with a known PSF. The result is a new "
 				+ "calibrated 32-bit image with its provenance in Image &gt; Show Info; Esc cancels and nothing is made. "
 				+ "The result is an estimate: check it against controls before you measure.")
-				.field("Image", "image", "", "the recording (widefield, confocal or light-sheet stack; RGB is refused)")
-				.field("PSF", "psf", "", "an open PSF (one for all channels, or one channel per image channel), or <code>from_optics</code> "
-						+ "to compute it from the optics in the next dialog")
-				.field("Method", "method", "", "<code>richardson-lucy</code> (Richardson 1972, Lucy 1974); <code>richardson-lucy-tv</code> with "
-						+ "total variation against noise (Dey et al., Microsc. Res. Tech. 2006); <code>accelerated-richardson-lucy</code> "
-						+ "(Biggs &amp; Andrews, Appl. Opt. 1997); <code>wiener</code>: one-step linear filter")
-				.field("Iterations", "iterations", "", "number of iterations; with Stop = relative-change or held-out, the most it may run")
-				.field("Regularization", "regularization", "", "weight of total variation (richardson-lucy-tv) or of the Wiener filter; "
-						+ "ignored by the other methods. Larger = smoother")
-				.field("Stop", "stop", "", "<code>fixed</code>: run all iterations; <code>relative-change</code>: stop when the iterate changes less than Threshold; "
-						+ "<code>held-out</code> (default): the photons are split at random into two halves, the method runs on one half and "
-						+ "stops where its iterate best predicts the other half (Coakley, IEEE Trans. Nucl. Sci. 1991); the full data then get "
-						+ "that many iterations. The Log says when no interior peak was found within Iterations. A macro line that gives "
-						+ "<code>iterations</code> without <code>stop</code> runs them all (<code>fixed</code>), as before")
-				.field("Threshold", "threshold", "relative change", "relative change between two iterates below which the run stops (with relative-change only)")
-				.field("Edges", "edges", "", "what lies past the stack's edges: " + EDGES);
-		return levels(p, true).field("Plot convergence", "plot", "", "show the relative change per iteration")
-				.field("Watch quality", "watch", "", "every few iterations, compare the iterate with sharp references and the data (next dialog)")
-				.field("Recentre the PSF", "recentre", "", "shift an open PSF so its centre of mass sits on the centre voxel (a PSF off centre shifts the result)")
-				.field("Output", "output", "", "<code>32-bit</code> (default; left out of recorded lines and records, so a macro without the key gets it): the computed values; <code>16-bit</code>: "
-						+ "for tools that expect camera-like data, stored as value = offset + scale &times; stored, with offset (the smallest value) "
-						+ "and scale (the range &divide; 65535) in the record, the Info and ImageJ's calibration; each value is within half a step "
-						+ "(scale &divide; 2) of the 32-bit one")
+				.fields(DeconvolveKeys.MAIN)
 				.note("<b>Preview</b> (no macro key, never recorded): a few iterations on a small region around the view and a few planes around the current one, in a "
 						+ "temporary window; updated when a field changes, stopped by Esc or by closing the dialog.")
 				.note("With <code>psf=from_optics</code> the keys of PSF from Optics follow (see its Help).");
 	}
 
 	/** Words of the edge modes, shared by Deconvolve and Blind Deconvolve. */
-	static final String EDGES = "<code>extended</code> (default; the old value <code>non-circulant</code> still works): the object is estimated "
-			+ "on a domain larger than the stack, so light from just outside the field is accounted for and the edges do not ring "
-			+ "(Bertero &amp; Boccacci, Astron. Astrophys. 2005); <code>periodic</code>: the stack repeats itself (fast, rings at real edges); "
-			+ "<code>zero</code>: nothing outside (for comparison with other software)";
+	static final String EDGES = DeconvolveKeys.EDGES;
 
 	static Page watch() {
 		return new Page("Watch quality", "Every few iterations the iterate is compared with sharp reference images of the same kind of "
 				+ "structure (a sliced Wasserstein distance between patches) and re-blurred against the data (chi-square). The suggested "
 				+ "iteration is the one closest to the references; without references, the last whose chi-square is still at least 1 "
 				+ "(Morozov's discrepancy principle). Treat it as a region to inspect, not an exact answer.")
-				.field("Every", "every", "iterations", "evaluate every this many iterations")
-				.field("Reference_folder", "reference_folder", "folder", "folder whose .tif/.tiff files are the sharp references; may be empty "
-						+ "(formerly <code>references</code>)")
-				.field("Reference_images", "reference_images", "title pattern", "open images whose title matches (* and ? wildcards); may be empty "
-						+ "(formerly <code>open_references</code>)")
-				.field("Photons", "photons", "photons per intensity unit", "noise model of the chi-square (1 = the data are photon counts)")
-				.field("Read_noise", "read_noise", "intensity units (&sigma;)", "camera read noise")
-				.field("Stop_at_suggestion", "stop_at_suggestion", "", "return the suggested iterate instead of the last one (kept in memory during the run)")
-				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when the references' calibration is missing or differs")
-				.field("Estimate_noise", "estimate_noise", "", "take the camera gain and read noise of the chi-square from the recording itself "
-						+ "(Poisson&ndash;Gaussian fit of the local variance against the local mean, Foi et al., IEEE TIP 2008) instead of Photons and "
-						+ "Read_noise, which stay the fallback when the fit fails; the values go into the Log and the provenance. Absent from a macro "
-						+ "line: the given values")
-				.field("Match_resolution", "match_resolution", "", "blur each reference to the result's expected resolution (the PSF's FWHM / 2; "
-						+ "Blind Deconvolve: the recording's apparent FWHM / 2) before comparing, so references much sharper than any result can be "
-						+ "(another modality, finer pixels) cannot favour the noisiest iterate; on in the dialog, off when a macro line leaves it out");
+				.fields(DeconvolveKeys.WATCH);
 	}
 
 	static Page blind() {

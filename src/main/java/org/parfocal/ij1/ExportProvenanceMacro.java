@@ -13,7 +13,7 @@ import ij.gui.GenericDialog;
 import ij.io.SaveDialog;
 import ij.plugin.PlugIn;
 
-import org.parfocal.provenance.MacroExport;
+import org.parfocal.command.MacroExport;
 import org.parfocal.provenance.MacroOptions;
 
 /**
@@ -36,7 +36,7 @@ public class ExportProvenanceMacro implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.EXPORT_MACRO, () -> {
+		Commands.run(COMMAND, org.parfocal.command.CommandKeys.EXPORT_MACRO, () -> {
 			final ImagePlus imp = WindowManager.getCurrentImage();
 			if (imp == null) throw new IllegalArgumentException("No image is open");
 			macroText(imp); // checks the record before asking for a file

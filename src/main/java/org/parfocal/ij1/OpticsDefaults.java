@@ -6,7 +6,7 @@ import java.util.Optional;
 
 import ij.ImagePlus;
 
-import org.parfocal.provenance.CommandKeys;
+import org.parfocal.command.CommandKeys;
 import org.parfocal.provenance.Provenance;
 
 /**

@@ -4,6 +4,9 @@ import ij.ImagePlus;
 import ij.Prefs;
 import ij.gui.GenericDialog;
 
+import org.parfocal.command.DeconvolveKeys;
+import org.parfocal.command.KeyTable;
+
 import org.parfocal.core.VoxelSize;
 import org.parfocal.psf.Modality;
 import org.parfocal.psf.Optics;
@@ -40,33 +43,34 @@ final class OpticsDialog {
 		// interactively, the optics of the image's record (or of its inputs' records) come first (OpticsDefaults)
 		final java.util.Map<String, String> rec = OpticsDefaults.of(cur);
 		final GenericDialog gd = new GenericDialog(COMMAND);
-		gd.addChoice("Model:", PsfModels.keys(), OpticsDefaults.word(rec, "model", PsfModels.keys(), Commands.remembered(PREFS + "model", "gibson-lanni")));
-		gd.addChoice("Modality:", Modality.keys(), OpticsDefaults.word(rec, "modality", Modality.keys(), Commands.remembered(PREFS + "modality", "widefield")));
+		final KeyTable O = DeconvolveKeys.OPTICS; // labels and first-use defaults: the one description of the optics keys
+		gd.addChoice(O.key("model").label(), PsfModels.keys(), OpticsDefaults.word(rec, "model", PsfModels.keys(), Commands.remembered(PREFS + "model", O.key("model").shownValue())));
+		gd.addChoice(O.key("modality").label(), Modality.keys(), OpticsDefaults.word(rec, "modality", Modality.keys(), Commands.remembered(PREFS + "modality", O.key("modality").shownValue())));
 		gd.addMessage(Group.OBJECTIVE.heading());
-		gd.addNumericField("NA:", OpticsDefaults.number(rec, "na", Commands.remembered(PREFS + "na", 1.4)), 3);
-		gd.addNumericField("Immersion_index:", OpticsDefaults.number(rec, "immersion_index", Commands.remembered(PREFS + "ni", 1.518)), 4, 8, "medium in use");
-		gd.addNumericField("Sample_index:", OpticsDefaults.number(rec, "sample_index", Commands.remembered(PREFS + "ns", 1.518)), 4);
+		gd.addNumericField(O.key("na").label(), OpticsDefaults.number(rec, "na", Commands.remembered(PREFS + "na", O.key("na").shownNumber())), 3);
+		gd.addNumericField(O.key("immersion_index").label(), OpticsDefaults.number(rec, "immersion_index", Commands.remembered(PREFS + "ni", O.key("immersion_index").shownNumber())), 4, 8, "medium in use");
+		gd.addNumericField(O.key("sample_index").label(), OpticsDefaults.number(rec, "sample_index", Commands.remembered(PREFS + "ns", O.key("sample_index").shownNumber())), 4);
 		gd.addMessage(Group.LAYERS.heading());
-		gd.addNumericField("Coverslip_index:", OpticsDefaults.number(rec, "coverslip_index", 1.522), 4, 8, "glass in use");
-		gd.addNumericField("Coverslip_thickness:", OpticsDefaults.number(rec, "coverslip_thickness", 170), 1, 8, "µm, glass in use");
-		gd.addNumericField("Depth:", OpticsDefaults.number(rec, "depth", Commands.remembered(PREFS + "depth", 0)), 2, 8, "µm below the coverslip");
+		gd.addNumericField(O.key("coverslip_index").label(), OpticsDefaults.number(rec, "coverslip_index", O.key("coverslip_index").shownNumber()), 4, 8, "glass in use");
+		gd.addNumericField(O.key("coverslip_thickness").label(), OpticsDefaults.number(rec, "coverslip_thickness", O.key("coverslip_thickness").shownNumber()), 1, 8, "µm, glass in use");
+		gd.addNumericField(O.key("depth").label(), OpticsDefaults.number(rec, "depth", Commands.remembered(PREFS + "depth", O.key("depth").shownNumber())), 2, 8, "µm below the coverslip");
 		gd.addMessage(Group.DESIGN.heading());
-		gd.addNumericField("Immersion_index_design:", OpticsDefaults.number(rec, "immersion_index_design", Commands.remembered(PREFS + "nid", 1.518)), 4, 8, "on the objective");
-		gd.addNumericField("Coverslip_index_design:", OpticsDefaults.number(rec, "coverslip_index_design", 1.522), 4);
-		gd.addNumericField("Coverslip_thickness_design:", OpticsDefaults.number(rec, "coverslip_thickness_design", 170), 1, 8, "µm, on the barrel");
-		gd.addNumericField("Working_distance:", OpticsDefaults.number(rec, "working_distance", 150), 1, 8, "µm");
+		gd.addNumericField(O.key("immersion_index_design").label(), OpticsDefaults.number(rec, "immersion_index_design", Commands.remembered(PREFS + "nid", O.key("immersion_index_design").shownNumber())), 4, 8, "on the objective");
+		gd.addNumericField(O.key("coverslip_index_design").label(), OpticsDefaults.number(rec, "coverslip_index_design", O.key("coverslip_index_design").shownNumber()), 4);
+		gd.addNumericField(O.key("coverslip_thickness_design").label(), OpticsDefaults.number(rec, "coverslip_thickness_design", O.key("coverslip_thickness_design").shownNumber()), 1, 8, "µm, on the barrel");
+		gd.addNumericField(O.key("working_distance").label(), OpticsDefaults.number(rec, "working_distance", O.key("working_distance").shownNumber()), 1, 8, "µm");
 		gd.addMessage(Group.LIGHT.heading());
-		gd.addNumericField("Emission:", OpticsDefaults.number(rec, "emission", Commands.remembered(PREFS + "emission", 0.52)), 3, 6, "µm");
+		gd.addNumericField(O.key("emission").label(), OpticsDefaults.number(rec, "emission", Commands.remembered(PREFS + "emission", O.key("emission").shownNumber())), 3, 6, "µm");
 		gd.addMessage(Group.SCANNING.heading());
-		gd.addNumericField("Excitation:", OpticsDefaults.number(rec, "excitation", Commands.remembered(PREFS + "excitation", 0.488)), 3, 6, "µm (laser line; two-photon: the laser wavelength)");
-		gd.addNumericField("Pinhole:", OpticsDefaults.number(rec, "pinhole", 1), 2, 6, "Airy units (confocal only)");
+		gd.addNumericField(O.key("excitation").label(), OpticsDefaults.number(rec, "excitation", Commands.remembered(PREFS + "excitation", O.key("excitation").shownNumber())), 3, 6, "µm (laser line; two-photon: the laser wavelength)");
+		gd.addNumericField(O.key("pinhole").label(), OpticsDefaults.number(rec, "pinhole", O.key("pinhole").shownNumber()), 2, 6, "Airy units (confocal only)");
 		gd.addMessage(Group.SHEET.heading());
-		gd.addNumericField("Sheet_thickness:", OpticsDefaults.number(rec, "sheet_thickness", 2), 2, 6, "µm FWHM along z");
+		gd.addNumericField(O.key("sheet_thickness").label(), OpticsDefaults.number(rec, "sheet_thickness", O.key("sheet_thickness").shownNumber()), 2, 6, "µm FWHM along z");
 		gd.addMessage(Group.SAMPLING.heading());
-		gd.addNumericField("Voxel_xy:", dxy, 4, 8, "µm (from the current image)");
-		gd.addNumericField("Voxel_z:", dz, 4, 8, "µm");
-		gd.addNumericField("Size_xy:", 0, 0, 6, "voxels, odd; 0 = from the optics");
-		gd.addNumericField("Size_z:", 0, 0, 6, "voxels, odd; 0 = from the optics");
+		gd.addNumericField(O.key("voxel_xy").label(), dxy, 4, 8, "µm (from the current image)");
+		gd.addNumericField(O.key("voxel_z").label(), dz, 4, 8, "µm");
+		gd.addNumericField(O.key("size_xy").label(), O.key("size_xy").shownNumber(), 0, 6, "voxels, odd; 0 = from the optics");
+		gd.addNumericField(O.key("size_z").label(), O.key("size_z").shownNumber(), 0, 6, "voxels, odd; 0 = from the optics");
 		if (withProfiles) gd.addCheckbox("Show_profiles and FWHM table", true);
 		gd.addHelp(DialogHelp.psfFromOptics(withProfiles).html());
 		ChoiceWords.show(gd, "model", "modality"); // shown in words, recorded as the macro values

@@ -25,7 +25,7 @@ public class ParfocalOptions implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.PARFOCAL_OPTIONS, () -> {
+		Commands.run(COMMAND, org.parfocal.command.CommandKeys.PARFOCAL_OPTIONS, () -> {
 			applySaved();
 			final GenericDialog gd = new GenericDialog(COMMAND);
 			gd.addChoice("FFT_library:", CHOICES, System.getProperty(FftBackend.PROPERTY, "auto"));

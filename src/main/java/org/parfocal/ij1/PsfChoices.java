@@ -11,7 +11,7 @@ import ij.ImagePlus;
 import ij.ImageStack;
 import ij.WindowManager;
 
-import org.parfocal.provenance.MacroExport;
+import org.parfocal.command.MacroExport;
 
 /**
  * The PSF list of a deconvolution dialog: only images that can be the PSF of the chosen image. First the PSFs

@@ -84,7 +84,7 @@ public class PsfFromBeads implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.PSF_FROM_BEADS, () -> {
+		Commands.run(COMMAND, org.parfocal.command.CommandKeys.PSF_FROM_BEADS, () -> {
 			final Options o = PsfFromBeadsDialog.show();
 			if (o == null) throw Commands.cancelled();
 			final Result r = run(o);

@@ -78,7 +78,7 @@ public class PsfFromOptics implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.PSF_FROM_OPTICS, () -> {
+		Commands.run(COMMAND, org.parfocal.command.CommandKeys.PSF_FROM_OPTICS, () -> {
 			final Options o = showDialog(WindowManager.getCurrentImage(), true);
 			if (o == null) throw Commands.cancelled();
 			final Result r = run(o);

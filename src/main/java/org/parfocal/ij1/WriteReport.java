@@ -40,7 +40,7 @@ public class WriteReport implements PlugIn {
 
 	@Override
 	public void run(final String arg) {
-		Commands.run(COMMAND, org.parfocal.provenance.CommandKeys.WRITE_REPORT, () -> {
+		Commands.run(COMMAND, org.parfocal.command.CommandKeys.WRITE_REPORT, () -> {
 			final ImagePlus imp = WindowManager.getCurrentImage();
 			if (imp == null) throw new IllegalArgumentException("No image is open");
 			if (ImageProvenance.of(imp).isEmpty())

@@ -6,6 +6,7 @@ import java.io.File;
 import java.util.List;
 import java.util.Map;
 
+import org.parfocal.command.DeconvolveKeys;
 import org.scijava.ItemIO;
 import org.scijava.command.Command;
 import org.scijava.plugin.Parameter;
@@ -15,6 +16,10 @@ import org.scijava.plugin.Plugin;
 @Plugin(type = Command.class, headless = true, label = "Deconvolve (Parfocal)", name = "parfocal.deconvolve")
 public class DeconvolveCommand extends WatchedInputs {
 
+	/** The defaults below are the table's ({@link DeconvolveKeys}); annotations need constants, so their ranges are checked against it by a test. */
+	private static final org.parfocal.command.KeyTable K = DeconvolveKeys.MAIN;
+
+
 	@Parameter(label = "Stack", persist = false)
 	private ImagePlus image;
 
@@ -22,28 +27,28 @@ public class DeconvolveCommand extends WatchedInputs {
 	private ImagePlus psf;
 
 	@Parameter(description = "richardson-lucy, richardson-lucy-tv, accelerated-richardson-lucy, wiener", persist = false)
-	private String method = "accelerated-richardson-lucy"; // the default run (DefaultRun), as a macro line without method
+	private String method = K.key("method").defaultValue(); // the default run (DefaultRun), as a macro line without method
 
 	@Parameter(min = "1", persist = false)
-	private Integer iterations = 100;
+	private Integer iterations = (int) K.key("iterations").defaultNumber();
 
 	@Parameter(min = "0", persist = false)
-	private Double regularization = 0.002;
+	private Double regularization = K.key("regularization").defaultNumber();
 
 	@Parameter(description = "fixed, relative-change, held-out", persist = false)
-	private String stop = "held-out";
+	private String stop = K.key("stop").defaultValue();
 
 	@Parameter(min = "0", persist = false)
-	private Double threshold = 0.001;
+	private Double threshold = K.key("threshold").defaultNumber();
 
 	@Parameter(persist = false)
-	private String edges = "non-circulant";
+	private String edges = K.key("edges").defaultValue();
 
 	@Parameter(description = "auto or a number", persist = false)
-	private String offset = "auto";
+	private String offset = K.key("offset").defaultValue();
 
 	@Parameter(description = "dark, auto, fit, fit-smooth or a number", persist = false)
-	private String background = "dark"; // DefaultRun.BACKGROUND
+	private String background = K.key("background").defaultValue();
 
 	@Parameter(persist = false)
 	private boolean plot;
@@ -55,7 +60,7 @@ public class DeconvolveCommand extends WatchedInputs {
 	private boolean recentre;
 
 	@Parameter(description = "32-bit or 16-bit (offset and scale recorded)", persist = false)
-	private String output = "32-bit";
+	private String output = K.key("output").defaultValue();
 
 	@Parameter(type = ItemIO.OUTPUT)
 	private ImagePlus result;

@@ -43,8 +43,8 @@ public class MakeSampleStacksCommand extends MenuCommand {
 	}
 
 	@Override
-	protected org.parfocal.provenance.CommandKeys.Command keys() {
-		return new org.parfocal.provenance.CommandKeys.Command("Make Sample Stacks", Map.of(), java.util.Set.of(), Map.of());
+	protected org.parfocal.command.CommandKeys.Command keys() {
+		return new org.parfocal.command.CommandKeys.Command("Make Sample Stacks", Map.of(), java.util.Set.of(), Map.of());
 	}
 
 	@Override

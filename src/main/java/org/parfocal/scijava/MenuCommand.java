@@ -9,7 +9,7 @@ import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
 
-import org.parfocal.provenance.CommandKeys;
+import org.parfocal.command.CommandKeys;
 import org.parfocal.provenance.MacroOptions;
 import org.scijava.ItemIO;
 import org.scijava.command.ContextCommand;

@@ -18,7 +18,7 @@ import org.scijava.plugin.Plugin;
 public abstract class WatchedInputs extends OpticsInputs {
 
 	@Parameter(min = "1", label = "Watch every (iterations)", persist = false)
-	private Integer every = 5;
+	private Integer every = (int) org.parfocal.command.DeconvolveKeys.WATCH.key("every").defaultNumber();
 
 	@Parameter(required = false, style = "directory", persist = false)
 	private File reference_folder;
@@ -27,10 +27,10 @@ public abstract class WatchedInputs extends OpticsInputs {
 	private String reference_images = "";
 
 	@Parameter(min = "0", persist = false)
-	private Double photons = 1.0;
+	private Double photons = org.parfocal.command.DeconvolveKeys.WATCH.key("photons").defaultNumber();
 
 	@Parameter(min = "0", persist = false)
-	private Double read_noise = 0.0;
+	private Double read_noise = org.parfocal.command.DeconvolveKeys.WATCH.key("read_noise").defaultNumber();
 
 	@Parameter(persist = false)
 	private boolean stop_at_suggestion;
@@ -52,8 +52,8 @@ public abstract class WatchedInputs extends OpticsInputs {
 
 	@Override
 	protected boolean include(final String key) {
-		if (org.parfocal.provenance.CommandKeys.OPTICS.stream().anyMatch(s -> s.startsWith(key + ":"))) return fromOptics();
-		if (org.parfocal.provenance.CommandKeys.WATCH.stream().anyMatch(s -> s.startsWith(key + ":"))) return watching();
+		if (org.parfocal.command.CommandKeys.OPTICS.stream().anyMatch(s -> s.startsWith(key + ":"))) return fromOptics();
+		if (org.parfocal.command.CommandKeys.WATCH.stream().anyMatch(s -> s.startsWith(key + ":"))) return watching();
 		return true;
 	}
 }

@@ -14,7 +14,7 @@ import ij.Macro;
 
 import org.junit.jupiter.api.AfterEach;
 import org.junit.jupiter.api.Test;
-import org.parfocal.provenance.CommandKeys;
+import org.parfocal.command.CommandKeys;
 import org.parfocal.provenance.MacroOptions;
 import org.parfocal.testing.ImageJCommandException;
 import org.parfocal.testing.ImageJHarness;

@@ -21,7 +21,7 @@ import org.junit.jupiter.api.AfterAll;
 import org.junit.jupiter.api.AfterEach;
 import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
-import org.parfocal.provenance.CommandKeys;
+import org.parfocal.command.CommandKeys;
 import org.parfocal.testing.ImageJHarness;
 import org.scijava.Context;
 import org.scijava.command.CommandInfo;

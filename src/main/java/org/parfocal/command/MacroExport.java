@@ -1,6 +1,9 @@
-package org.parfocal.provenance;
+package org.parfocal.command;
 
 import java.util.LinkedHashMap;
+
+import org.parfocal.provenance.MacroOptions;
+import org.parfocal.provenance.Provenance;
 import java.util.Map;
 import java.util.regex.Pattern;
 

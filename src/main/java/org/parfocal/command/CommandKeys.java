@@ -1,6 +1,8 @@
-package org.parfocal.provenance;
+package org.parfocal.command;
 
 import java.util.ArrayList;
+
+import org.parfocal.provenance.MacroOptions;
 import java.util.LinkedHashMap;
 import java.util.LinkedHashSet;
 import java.util.List;
@@ -52,14 +54,10 @@ public final class CommandKeys {
 
 	private static final Map<String, Command> COMMANDS = new LinkedHashMap<>();
 
-	/** Keys of {@code PSF from Optics...} without {@code show_profiles}: also the second dialog of the deconvolution commands. */
-	public static final List<String> OPTICS = List.of("model:W", "modality:W", "na:N", "immersion_index:N", "immersion_index_design:N",
-			"sample_index:N", "coverslip_index:N", "coverslip_index_design:N", "coverslip_thickness:N", "coverslip_thickness_design:N",
-			"working_distance:N", "depth:N", "emission:N", "excitation:N", "pinhole:N", "sheet_thickness:N", "voxel_xy:N", "voxel_z:N",
-			"size_xy:N", "size_z:N");
-	/** The watch-mode dialog of Deconvolve and Blind Deconvolve. */
-	public static final List<String> WATCH = List.of("every:N", "reference_folder:T", "reference_images:T", "photons:N", "read_noise:N",
-			"stop_at_suggestion:F", "ignore_calibration:F", "estimate_noise:F", "match_resolution:F");
+	/** Keys of {@code PSF from Optics...} without {@code show_profiles}: also the second dialog of the deconvolution commands ({@link DeconvolveKeys#OPTICS}). */
+	public static final List<String> OPTICS = DeconvolveKeys.OPTICS.specs();
+	/** The watch-mode dialog of Deconvolve and Blind Deconvolve ({@link DeconvolveKeys#WATCH}). */
+	public static final List<String> WATCH = DeconvolveKeys.WATCH.specs();
 	/** Old names of the reference keys (before 0.1.0's rename: {@code references} is the tail of {@code open_references}). */
 	private static final Map<String, String> OLD_REFERENCES = Map.of("references", "reference_folder", "open_references", "reference_images");
 
@@ -70,9 +68,9 @@ public final class CommandKeys {
 			"bead_diameter:N", "threshold:N", "reject_saturated:F", "outlier_z:N", "background:W", "averaging:W", "symmetrize:F", "voxel_xy:N",
 			"voxel_z:N", "optics:W", "modality:W", "na:N", "immersion_index:N", "sample_index:N", "depth:N", "emission:N", "excitation:N",
 			"pinhole:N", "sheet_thickness:N"));
-	public static final Command DECONVOLVE = define("Deconvolve", List.of("image", "psf"), OLD_REFERENCES, List.of("image:T", "psf:T",
-			"method:W", "iterations:N", "regularization:N", "stop:W", "threshold:N", "edges:W", "offset:T", "background:T", "plot:F", "watch:F",
-			"recentre:F", "output:W"), OPTICS, WATCH);
+	/** Deconvolve: its main dialog, then the optics and the watch ({@link DeconvolveKeys}, where each key is described). */
+	public static final Command DECONVOLVE = define("Deconvolve", List.of("image", "psf"), DeconvolveKeys.WATCH.oldNames(), DeconvolveKeys.MAIN.specs(),
+			OPTICS, WATCH);
 	public static final Command BLIND_DECONVOLVE = define("Blind Deconvolve", List.of("image", "psf"), OLD_REFERENCES, List.of("image:T",
 			"psf:T", "fwhm_xy:N", "fwhm_z:N", "iterations:N", "object_updates:N", "psf_updates:N", "object_tv:N", "psf_tv:N", "estimate:W",
 			"trust_radius:N", "band_limit:F", "symmetric:F", "centring:F", "support_xy:N", "support_z:N", "support_units:W", "snapshot_interval:N",

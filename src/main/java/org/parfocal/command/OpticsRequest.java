@@ -1,0 +1,47 @@
+package org.parfocal.command;
+
+import org.parfocal.core.Volume;
+import org.parfocal.psf.Modality;
+import org.parfocal.psf.Optics;
+import org.parfocal.psf.PsfGrid;
+import org.parfocal.psf.PsfModels;
+
+/**
+ * A PSF from the optics, as the keys of {@link DeconvolveKeys#OPTICS} describe it: the model's key, the optics,
+ * the voxel sizes (µm) and the grid sizes (0 = from the optics).
+ */
+public record OpticsRequest(String model, Optics optics, double voxelXY, double voxelZ, int sizeXY, int sizeZ) {
+
+	public OpticsRequest {
+		PsfModels.get(model); // validates the key in one line
+		if (!(voxelXY > 0) || !(voxelZ > 0))
+			throw new IllegalArgumentException("Give the voxel size (voxel_xy and voxel_z in µm): the PSF cannot assume 1 pixel = 1 µm");
+		if (sizeXY < 0 || sizeZ < 0) throw new IllegalArgumentException("Sizes must be 0 (from the optics) or positive odd numbers");
+	}
+
+	/** The optics keys of a run (defaults from {@link DeconvolveKeys#OPTICS} for those not given). */
+	public static OpticsRequest from(final KeyTable.Values v) {
+		final Modality modality = Modality.parse(v.text("modality"));
+		final double emission = v.number("emission"), excitation = v.number("excitation");
+		final Optics optics = Optics.builder().modality(modality).na(v.number("na")).immersionIndex(v.number("immersion_index"))
+				.immersionIndexDesign(v.number("immersion_index_design")).sampleIndex(v.number("sample_index"))
+				.coverslipIndex(v.number("coverslip_index")).coverslipIndexDesign(v.number("coverslip_index_design"))
+				.coverslipThickness(v.number("coverslip_thickness")).coverslipThicknessDesign(v.number("coverslip_thickness_design"))
+				.workingDistance(v.number("working_distance")).depth(v.number("depth"))
+				.emissionWavelength(modality.usesEmission() || emission > 0 ? emission : Double.NaN)
+				.excitationWavelength(modality.usesExcitation() ? excitation : Double.NaN).pinholeAiryUnits(v.number("pinhole"))
+				.sheetThickness(modality == Modality.LIGHT_SHEET ? v.number("sheet_thickness") : Double.NaN).build();
+		return new OpticsRequest(v.text("model"), optics, v.number("voxel_xy"), v.number("voxel_z"), v.whole("size_xy"), v.whole("size_z"));
+	}
+
+	/** The grid the PSF is sampled on (as {@code PSF from Optics...} chooses it). */
+	public PsfGrid grid() {
+		final PsfGrid auto = PsfGrid.forOptics(optics, voxelXY, voxelXY, voxelZ);
+		return new PsfGrid(sizeXY == 0 ? auto.nx() : sizeXY, sizeXY == 0 ? auto.ny() : sizeXY, sizeZ == 0 ? auto.nz() : sizeZ, voxelXY, voxelXY, voxelZ);
+	}
+
+	/** Computes the PSF (µm, unit sum, centred). */
+	public Volume compute() {
+		return PsfModels.get(model).compute(optics, grid());
+	}
+}
