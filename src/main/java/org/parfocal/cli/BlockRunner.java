@@ -5,6 +5,8 @@ import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Instant;
+import java.util.ArrayList;
+import java.util.List;
 import java.util.Locale;
 
 import ij.IJ;
@@ -15,6 +17,8 @@ import net.imglib2.parallel.Parallelization;
 import org.parfocal.blocks.BlockDeconvolution;
 import org.parfocal.blocks.BlockPlan;
 import org.parfocal.blocks.Recipe;
+import org.parfocal.command.PsfSource;
+import org.parfocal.deconv.PsfPreparation;
 import org.parfocal.conv.Psfs;
 import org.parfocal.core.Monitor;
 import org.parfocal.core.SixteenBit;
@@ -119,11 +123,14 @@ public final class BlockRunner {
 		if (input.toAbsolutePath().normalize().equals(output.toAbsolutePath().normalize()))
 			throw new IllegalArgumentException("The output must differ from the input (inputs are never written)");
 		try (TiffBlockSource source = TiffBlockSource.open(input)) {
-			final Volume psf = loadPsf(recipe, source.voxelSize(), source.shape()[2]);
+			final List<String> notes = new ArrayList<>();
+			final Volume psf = loadPsf(recipe, source.voxelSize(), source.shape(), notes);
+			for (final String n : notes) System.err.println("Note: " + n); // resampling and PSF box warnings, as the menu command's Log lines
 			final BlockPlan plan = tile != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), tile)
 					: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), budget > 0 ? budget : BlockPlan.heapBudget());
-			final TiffBlockSink sink = sink(output, source.shape(), source.voxelSize(), recipe,
-					provenance(recipe, input, source.shape(), psf, plan, "BlockRunner", Parallelization.getTaskExecutor().getParallelism()));
+			final Provenance.Builder prov = provenance(recipe, input, source.shape(), psf, plan, "BlockRunner", Parallelization.getTaskExecutor().getParallelism());
+			if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes)); // as the menu command records them
+			final TiffBlockSink sink = sink(output, source.shape(), source.voxelSize(), recipe, prov);
 			final BlockDeconvolution.Result r = BlockDeconvolution.run(source, psf, recipe.options(), plan, sink, monitor);
 			return new Outcome(plan, r, sink.output());
 		}
@@ -173,33 +180,32 @@ public final class BlockRunner {
 	}
 
 	/**
-	 * The recipe's PSF, as {@code Deconvolve...} prepares it: a file resampled to the image's voxel size when
-	 * both are calibrated, or computed from the optics (its central plane for a 2D image).
+	 * The recipe's PSF, prepared as {@code Deconvolve...} prepares it ({@link PsfSource#prepare}, one code path):
+	 * computed from the optics on a box fitted to the stack (its central plane for a 2D image), or read from a
+	 * file and resampled to the image's voxel size when both are calibrated. Notes for the user are dropped; see
+	 * {@link #loadPsf(Recipe, VoxelSize, int[], List)}.
+	 *
+	 * @param shape the image's {nx, ny, nz}
 	 */
-	public static Volume loadPsf(final Recipe recipe, final VoxelSize image, final int nz) {
+	public static Volume loadPsf(final Recipe recipe, final VoxelSize image, final int[] shape) {
+		return loadPsf(recipe, image, shape, new ArrayList<>());
+	}
+
+	/** See {@link #loadPsf(Recipe, VoxelSize, int[])}; the preparation's notes (resampling, box warnings) go to {@code notes}. */
+	public static Volume loadPsf(final Recipe recipe, final VoxelSize image, final int[] shape, final List<String> notes) {
 		recipe.requirePsf();
-		if (recipe.optics() != null) {
-			final Volume v = recipe.optics().compute();
-			if (nz > 1 || v.nz() == 1) return v;
-			final Volume out = Volume.zeros(v.nx(), v.ny(), 1, v.voxelSize());
-			System.arraycopy(v.data(), ((v.nz() - 1) / 2) * v.nx() * v.ny(), out.data(), 0, v.nx() * v.ny());
-			return Psfs.normalized(out);
+		final PsfSource source;
+		if (recipe.optics() != null) source = new PsfSource.FromOptics(recipe.optics());
+		else {
+			final Path p = Path.of(recipe.psfPath());
+			if (!Files.isRegularFile(p)) throw new IllegalArgumentException("PSF file " + p + " does not exist");
+			if (TiffCheck.hasTiffName(p)) TiffCheck.requireComplete(p);
+			final ImagePlus imp = IJ.openImage(p.toString());
+			if (imp == null) throw new IllegalArgumentException("PSF file " + p + " cannot be opened as an image");
+			if (imp.getBitDepth() == 24) throw new IllegalArgumentException("PSF file " + p + " is an RGB image: a PSF is one grey channel");
+			source = new PsfSource.Given(ImageBridge.toCore(imp), p.getFileName().toString(), false);
 		}
-		final Path p = Path.of(recipe.psfPath());
-		if (!Files.isRegularFile(p)) throw new IllegalArgumentException("PSF file " + p + " does not exist");
-		if (TiffCheck.hasTiffName(p)) TiffCheck.requireComplete(p);
-		final ImagePlus imp = IJ.openImage(p.toString());
-		if (imp == null) throw new IllegalArgumentException("PSF file " + p + " cannot be opened as an image");
-		Volume psf = ImageBridge.toVolume(imp, "PSF");
-		final VoxelSize pv = psf.voxelSize();
-		if (pv.isCalibrated() && image.isCalibrated()) {
-			final double fp = PsfGrid.micronsPer(pv), fi = PsfGrid.micronsPer(image);
-			final double[] a = { pv.dx() * fp, pv.dy() * fp, pv.dz() * fp }, b = { image.dx() * fi, image.dy() * fi, image.dz() * fi };
-			boolean same = true;
-			for (int d = 0; d < (psf.nz() > 1 ? 3 : 2); d++) same &= Math.abs(a[d] - b[d]) <= 1e-3 * b[d];
-			if (!same) psf = Psfs.resampleTo(psf.withVoxelSize(VoxelSize.microns(a[0], a[1], a[2])), VoxelSize.microns(b[0], b[1], b[2]));
-		}
-		return psf;
+		return source.prepare(new PsfPreparation.Target(shape[0], shape[1], shape[2], 1, image), notes).get(0);
 	}
 
 	private static int usage(final String problem) {

@@ -88,7 +88,7 @@ public final class ZarrBlockRunner {
 		final List<Volume> out = new ArrayList<>();
 		for (int c = 0; c < l.channels(); c++) {
 			final Recipe r = psfFiles == null || psfFiles.isEmpty() ? recipe : recipe.withPsfFile(psfFiles.get(psfFiles.size() == 1 ? 0 : c));
-			out.add(BlockRunner.loadPsf(r, l.voxelSize(), l.shape()[2]));
+			out.add(BlockRunner.loadPsf(r, l.voxelSize(), l.shape()));
 		}
 		return out;
 	}

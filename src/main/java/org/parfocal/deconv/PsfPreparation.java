@@ -22,6 +22,22 @@ public final class PsfPreparation {
 	private PsfPreparation() {}
 
 	/**
+	 * The stack a PSF is prepared for: its shape, channel count and voxel size (all a preparation needs, so a
+	 * block-wise run that never holds the stack prepares its PSF the same way as a whole-stack run).
+	 */
+	public record Target(int nx, int ny, int nz, int channels, VoxelSize voxelSize) {
+
+		/** The target of a stack in memory. */
+		public static Target of(final Hyperstack in) {
+			return new Target(in.nx(), in.ny(), in.nz(), in.channels(), in.voxelSize());
+		}
+
+		int[] shape() {
+			return new int[] { nx, ny, nz };
+		}
+	}
+
+	/**
 	 * The grid of a PSF from optics for a stack of {@code nx × ny × nz}: sizes given ({@code sizeXY},
 	 * {@code sizeZ} not 0) are kept; a size of 0 ("from the optics") is chosen for the stack
 	 * ({@link PsfExtent#forStack}: a widefield box spans the stack's depth and holds the defocus cone over it).
@@ -35,11 +51,16 @@ public final class PsfPreparation {
 
 	/** A PSF computed from {@code optics}, used for every channel of {@code in} (its central plane for a 2D stack). */
 	public static List<Volume> fromOptics(final Volume computed, final Hyperstack in, final Optics optics, final List<String> notes) {
+		return fromOptics(computed, Target.of(in), optics, notes);
+	}
+
+	/** A PSF computed from {@code optics}, used for every channel of the target (its central plane for a 2D stack). */
+	public static List<Volume> fromOptics(final Volume computed, final Target in, final Optics optics, final List<String> notes) {
 		final List<Volume> out = new ArrayList<>();
 		final Volume fitted = in.nz() == 1 && computed.nz() > 1 ? centralPlane(computed) : computed;
 		for (int c = 0; c < in.channels(); c++) out.add(fitted);
 		if (in.channels() > 1) notes.add("one PSF from the optics used for all " + in.channels() + " channels");
-		notes.addAll(PsfExtent.warnings(fitted, in.first().shape(), microns(in.voxelSize()), optics));
+		notes.addAll(PsfExtent.warnings(fitted, in.shape(), microns(in.voxelSize()), optics));
 		return out;
 	}
 
@@ -50,6 +71,11 @@ public final class PsfPreparation {
 	 * else a warning note is added.
 	 */
 	public static List<Volume> fromStack(final Hyperstack in, final Hyperstack p, final String title, final List<String> notes, final boolean recentre) {
+		return fromStack(Target.of(in), p, title, notes, recentre);
+	}
+
+	/** See {@link #fromStack(Hyperstack, Hyperstack, String, List, boolean)}, for a target. */
+	public static List<Volume> fromStack(final Target in, final Hyperstack p, final String title, final List<String> notes, final boolean recentre) {
 		if (p.frames() != 1) throw new IllegalArgumentException("The PSF '" + title + "' has " + p.frames() + " frames; one is expected");
 		if (p.channels() != 1 && p.channels() != in.channels())
 			throw new IllegalArgumentException("The PSF has " + p.channels() + " channels but the image has " + in.channels()
@@ -67,7 +93,7 @@ public final class PsfPreparation {
 				notes.add("PSF re-centred: its centre of mass was off its centre voxel by " + fmt(off[0]) + ", " + fmt(off[1]) + ", " + fmt(off[2]) + " voxels");
 			} else if (offCentre != null) notes.add("Warning: " + offCentre);
 			out.add(v);
-			for (final String w : PsfExtent.warnings(v, in.first().shape(), microns(in.voxelSize()), null))
+			for (final String w : PsfExtent.warnings(v, in.shape(), microns(in.voxelSize()), null))
 				if (!notes.contains(w)) notes.add(w);
 		}
 		return out;

@@ -6,6 +6,8 @@ import ij.ImagePlus;
 
 import org.parfocal.core.Hyperstack;
 import org.parfocal.core.Volume;
+import org.parfocal.command.OpticsRequest;
+import org.parfocal.command.PsfSource;
 import org.parfocal.deconv.PsfPreparation;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
@@ -25,16 +27,18 @@ final class DeconvolvePsfs {
 	 */
 	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes,
 			final boolean recentre) {
-		if (optics != null) {
-			final PsfGrid grid = gridFor(optics, in);
-			final Volume v = Commands.withImageJThreads(() -> PsfModels.get(optics.model()).compute(optics.optics(), grid));
-			return PsfPreparation.fromOptics(v, in, optics.optics(), notes);
-		}
-		return PsfPreparation.fromStack(in, ImageBridge.toCore(psfImp), psfImp.getTitle(), notes, recentre);
+		final PsfSource source = optics != null ? new PsfSource.FromOptics(request(optics))
+				: new PsfSource.Given(ImageBridge.toCore(psfImp), psfImp.getTitle(), recentre);
+		return Commands.withImageJThreads(() -> source.prepare(PsfPreparation.Target.of(in), notes)); // the one preparation (blocks and Spark too)
+	}
+
+	/** The optics of PSF from Optics' dialog as the request every front end prepares from. */
+	static OpticsRequest request(final PsfFromOptics.Options o) {
+		return new OpticsRequest(o.model(), o.optics(), o.voxelXY(), o.voxelZ(), o.sizeXY(), o.sizeZ());
 	}
 
 	/** The grid of a PSF from optics for this stack ({@link PsfPreparation#gridFor}). */
 	static PsfGrid gridFor(final PsfFromOptics.Options optics, final Hyperstack in) {
-		return PsfPreparation.gridFor(optics.optics(), optics.voxelXY(), optics.voxelZ(), optics.sizeXY(), optics.sizeZ(), in.nx(), in.ny(), in.nz());
+		return new PsfSource.FromOptics(request(optics)).grid(PsfPreparation.Target.of(in));
 	}
 }

@@ -71,10 +71,10 @@ class ZarrBlockRunnerTest {
 		assertEquals(rec.voxelSize().dx(), img.voxelSize().dx(), 1e-12);
 		assertEquals(rec.voxelSize().dz(), img.voxelSize().dz(), 1e-12);
 		// the same plan in memory: equal float for float
-		final Volume mem = BlockDeconvolution.run(rec, BlockRunner.loadPsf(r, rec.voxelSize(), rec.nz()), r.options(), plan, null);
+		final Volume mem = BlockDeconvolution.run(rec, BlockRunner.loadPsf(r, rec.voxelSize(), rec.shape()), r.options(), plan, null);
 		assertArrayEquals(mem.data(), got.data(), "Zarr chunks = in-memory block-wise result");
 		// the whole-stack run
-		final Volume whole = Deconvolution.run(rec, BlockRunner.loadPsf(r, rec.voxelSize(), rec.nz()), r.options(), null).estimate();
+		final Volume whole = Deconvolution.run(rec, BlockRunner.loadPsf(r, rec.voxelSize(), rec.shape()), r.options(), null).estimate();
 		final double[] d = BlockDeconvolutionTest.differences(whole, got, plan);
 		System.out.printf(Locale.ROOT, "Zarr block-wise vs whole stack: %.2e of the range, away from seams %.2e%n", d[0], d[1]);
 		assertTrue(d[0] <= 0.01, "largest difference " + d[0]);
@@ -108,14 +108,14 @@ class ZarrBlockRunnerTest {
 		final ZarrBlockRunner.Layout l = ZarrBlockRunner.layout(in);
 		for (int t = 0; t < 2; t++)
 			for (int c = 0; c < 2; c++) {
-				final Volume h = BlockRunner.loadPsf(r.withPsfFile((c == 0 ? fa : fb).toString()), l.voxelSize(), 16);
-				final Volume other = BlockRunner.loadPsf(r.withPsfFile((c == 0 ? fb : fa).toString()), l.voxelSize(), 16);
+				final Volume h = BlockRunner.loadPsf(r.withPsfFile((c == 0 ? fa : fb).toString()), l.voxelSize(), l.shape());
+				final Volume other = BlockRunner.loadPsf(r.withPsfFile((c == 0 ? fb : fa).toString()), l.voxelSize(), l.shape());
 				final BlockPlan plan = ZarrBlockRunner.plans(l, c == 0 ? List.of(h, other) : List.of(other, h), r, 0, new int[] { 20, 20, 0 }).plans().get(c);
 				final Volume want = BlockDeconvolution.run(vols.get(2 * t + c), h, r.options(), plan, null);
 				assertArrayEquals(want.data(), img.read(t, c, new int[3], img.shape()).data(), "frame " + t + ", channel " + c);
 			}
 		// with the other channel's PSF the result differs: the PSF really is per channel
-		final Volume h = BlockRunner.loadPsf(r, l.voxelSize(), 16);
+		final Volume h = BlockRunner.loadPsf(r, l.voxelSize(), l.shape());
 		final Volume wrong = BlockDeconvolution.run(vols.get(1), h, r.options(), ZarrBlockRunner.plan(l, h, r, 0, new int[] { 20, 20, 0 }), null);
 		assertFalse(java.util.Arrays.equals(wrong.data(), img.read(0, 1, new int[3], img.shape()).data()));
 		final IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> ZarrBlockRunner.run(r,

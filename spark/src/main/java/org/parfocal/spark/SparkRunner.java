@@ -252,7 +252,7 @@ public final class SparkRunner {
 			final int[] it = new int[1];
 			Parallelization.runWithNumThreads(s.threads(), () -> {
 				try (TiffBlockSource source = TiffBlockSource.open(in)) {
-					final Volume psf = BlockRunner.loadPsf(recipe, source.voxelSize(), source.shape()[2]);
+					final Volume psf = BlockRunner.loadPsf(recipe, source.voxelSize(), source.shape());
 					final BlockPlan p = s.tile() != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), s.tile())
 							: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), taskBudget(s));
 					final TiffBlockSink sink = BlockRunner.sink(tmp, source.shape(), source.voxelSize(), recipe,
@@ -340,7 +340,7 @@ public final class SparkRunner {
 		final TaskSettings s = resolved(sc, settings);
 		try (TiffBlockSource source = TiffBlockSource.open(in)) {
 			final long bytes = Files.size(in), modified = Files.getLastModifiedTime(in).toMillis();
-			final Volume psf = BlockRunner.loadPsf(recipe, source.voxelSize(), source.shape()[2]);
+			final Volume psf = BlockRunner.loadPsf(recipe, source.voxelSize(), source.shape());
 			final BlockPlan plan = s.tile() != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), s.tile())
 					: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), driverBudget(sc, s));
 			final BlockDeconvolution.Levels levels = BlockDeconvolution.levels(source, recipe.options(), Monitor.NONE);
