@@ -90,7 +90,7 @@ public final class HtmlReport {
 		}
 		final Object notes = p.run().get("notes");
 		if (notes != null) h.append("<p><b>Notes:</b> ").append(esc(String.valueOf(notes))).append("</p>\n");
-		h.append("<h2>What was done</h2>\n<p>Command <b>").append(esc(p.command())).append("...</b>, ").append(esc(String.valueOf(p.date())))
+		h.append("<h2>What was done</h2>\n<p>Command <b>").append(esc(Provenance.menuLabel(p.command()))).append("</b>, ").append(esc(String.valueOf(p.date())))
 				.append(", ").append(String.format(java.util.Locale.ROOT, "%.2f", p.seconds())).append(" s on ").append(p.threads()).append(" thread(s).</p>\n");
 		h.append("<p>To run it again: <code>").append(esc(p.macro())).append("</code></p>\n");
 		if (!figures.isEmpty()) {
@@ -105,7 +105,7 @@ public final class HtmlReport {
 			for (final Provenance.Input in : p.inputs())
 				// a field may be missing (the blocks runner records no pixel hash: it never holds the stack): List.of takes no null
 				rows.add(List.of(Objects.toString(in.role(), ""), Objects.toString(in.title(), ""), Objects.toString(in.shape(), ""), in.calibration() == null ? "not recorded" : in.calibration(),
-						in.source() == null ? (in.path() == null ? "open image" : "file") : in.source().command() + "...",
+						in.source() == null ? (in.path() == null ? "open image" : "file") : Provenance.menuLabel(in.source().command()),
 						in.path() == null ? "" : in.path(), in.sha256() == null ? "not recorded" : in.sha256()));
 			h.append(tableHtml(new Table("Inputs", List.of("role", "title", "shape", "voxel size", "made by", "file", "SHA-256 of pixels"), rows), 5));
 		}
@@ -153,4 +153,5 @@ public final class HtmlReport {
 	static String esc(final String s) {
 		return s == null ? "" : s.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;").replace("\"", "&quot;");
 	}
+
 }

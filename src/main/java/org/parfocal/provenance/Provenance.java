@@ -66,6 +66,11 @@ public final class Provenance {
 	/** Every option of the run, by macro key, in dialog order. */
 	public Map<String, String> options() { return options == null ? Map.of() : options; }
 
+	/** The command's menu label (plugins.config): with "..." when it opens a dialog, as every command but Make Sample Stacks does. */
+	public static String menuLabel(final String command) {
+		return command.equals("Make Sample Stacks") || command.endsWith("...") ? command : command + "...";
+	}
+
 	/** The macro line that reruns the command: {@code run("Command...", "options");}. */
 	public String macro() { return macro; }
 
@@ -167,7 +172,7 @@ public final class Provenance {
 			sb.append("input ").append(in.role()).append(": ").append(in.title());
 			if (in.path() != null) sb.append(" (").append(in.path()).append(')');
 			sb.append(", ").append(in.shape()).append(", sha256 ").append(in.sha256());
-			if (in.source() != null) sb.append(", made by Parfocal: ").append(in.source().command()).append("...");
+			if (in.source() != null) sb.append(", made by Parfocal: ").append(menuLabel(in.source().command()));
 			sb.append('\n');
 		}
 		for (final Map.Entry<String, Object> e : run().entrySet()) sb.append("run ").append(e.getKey()).append(" = ").append(e.getValue()).append('\n');
@@ -199,7 +204,7 @@ public final class Provenance {
 		private Builder(final String command, final String macroOptions) {
 			p.command = command;
 			p.options = MacroOptions.parse(macroOptions);
-			p.macro = "run(\"" + command + "...\", \"" + macroOptions + "\");";
+			p.macro = "run(\"" + menuLabel(command) + "\", \"" + macroOptions + "\");";
 			p.inputs = new ArrayList<>();
 			p.run = new LinkedHashMap<>();
 			p.caution = CAUTION;

@@ -1,5 +1,6 @@
 package org.parfocal.provenance;
 
+import static org.junit.jupiter.api.Assertions.assertDoesNotThrow;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
@@ -54,5 +55,21 @@ class ProvenanceTest {
 		assertEquals(20.0, ((Number) back.run().get("iterations")).doubleValue());
 		assertTrue(Provenance.findIn("no record here").isEmpty());
 		assertThrows(IllegalArgumentException.class, () -> Provenance.fromJson("{\"x\":1}"));
+	}
+
+	/** The report names commands by their menu labels (plugins.config): "..." only on commands with a dialog. */
+	@Test
+	void theReportNamesCommandsAsTheMenuDoes() {
+		final Provenance sampleStack = Provenance.of("Make Sample Stacks", "").build();
+		final Provenance run = Provenance.of("Deconvolve", "image=a.tif psf=b.tif")
+				.input(new Provenance.Input("image", "a.tif", null, null, "8x8x4", sampleStack, null)).build();
+		final String html = new HtmlReport(run, "a-deconvolved.tif").toHtml();
+		assertTrue(html.contains("<b>Deconvolve...</b>"), "a command with a dialog");
+		// the rerun line names the menu entry ImageJ knows (plugins.config), or the macro fails with "Unrecognized command"
+		assertEquals("run(\"Make Sample Stacks\", \"\");", sampleStack.macro());
+		assertTrue(assertDoesNotThrow(() -> java.nio.file.Files.readString(java.nio.file.Path.of("src/main/resources/plugins.config")))
+				.contains("\"Make Sample Stacks\", org.parfocal.demo.MakeSampleStacks"));
+		final int at = html.indexOf("Make Sample Stacks...");
+		assertTrue(html.contains("Make Sample Stacks") && at < 0, () -> "the sample command has no dialog and no dots: " + html.substring(Math.max(0, at - 200), at + 40));
 	}
 }
