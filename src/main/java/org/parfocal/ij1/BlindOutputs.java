@@ -131,13 +131,13 @@ final class BlindOutputs {
 		}
 		final Plot plot = new Plot(title, "Outer iteration", "Relative to the starting PSF");
 		plot.setLineWidth(2);
-		plot.setColor(new Color(20, 110, 160));
+		plot.setColor(new Color(20, 110, 160), new Color(20, 110, 160)); // both colours: a connected-circles line takes the second (ImageJ 1.54)
 		plot.addPoints(it, lat, Plot.CONNECTED_CIRCLES);
 		if (axial) {
-			plot.setColor(new Color(210, 120, 20));
+			plot.setColor(new Color(210, 120, 20), new Color(210, 120, 20));
 			plot.addPoints(it, ax, Plot.CONNECTED_CIRCLES);
 		}
-		plot.setColor(new Color(90, 90, 90));
+		plot.setColor(new Color(90, 90, 90), new Color(90, 90, 90));
 		plot.addPoints(it, dist, Plot.CONNECTED_CIRCLES);
 		plot.setColor(Color.black);
 		// headroom above the curves, so the legend in the top-right corner covers no data

@@ -43,7 +43,7 @@ final class DeconvolvePlots {
 				for (final double v : new double[] { d[k], chi[k] }) if (v > 0 && Double.isFinite(v)) { ymin = Math.min(ymin, v); ymax = Math.max(ymax, v); }
 			}
 			final String which = watches.size() > 1 ? " (" + (i + 1) + ")" : "";
-			plot.setColor(colors[i % colors.length]);
+			plot.setColor(colors[i % colors.length], colors[i % colors.length]); // both: a connected-circles line takes the second colour (ImageJ 1.54)
 			if (!Double.isNaN(q.floor())) {
 				plot.setLineWidth(2);
 				plot.addPoints(x, d, Plot.CONNECTED_CIRCLES);

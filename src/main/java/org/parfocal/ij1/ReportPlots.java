@@ -105,7 +105,7 @@ final class ReportPlots {
 		plot.setLimits(0, x[x.length - 1] * 1.05, ymin / 1.5, ymax * 3);
 		final boolean hasDistance = java.util.Arrays.stream(d).anyMatch(v -> Double.isFinite(v) && v > 0);
 		if (hasDistance) {
-			plot.setColor(new Color(0, 90, 170));
+			plot.setColor(new Color(0, 90, 170), new Color(0, 90, 170)); // both: a connected-circles line takes the second colour (ImageJ 1.54)
 			plot.setLineWidth(2);
 			plot.addPoints(x, d, Plot.CONNECTED_CIRCLES);
 		}
