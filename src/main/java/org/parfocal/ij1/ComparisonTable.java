@@ -57,7 +57,11 @@ final class ComparisonTable {
 
 	/** Quantile curves of intensity and gradient magnitude: references (wide, light) under the result (dark). */
 	static Plot plot(final MarginalQuantiles.Curves c, final String title, final int refCount) {
-		final Plot plot = new Plot("Marginals of " + title + " vs references", "Quantile level (%)", "Normalized value");
+		// sparse images (puncta, filaments) are near 0 at most levels: start where a curve first rises, so the part that differs fills the plot
+		final double from = firstRise(c);
+		final Plot plot = new Plot("Marginals of " + title + " vs references",
+				from > 0 ? String.format(java.util.Locale.ROOT, "Quantile level (%%; below %.0f %%, every curve is near 0)", from) : "Quantile level (%)",
+				"Normalized value");
 		final Color[] colors = { new Color(0, 90, 170), new Color(200, 80, 0) };
 		final Color[] light = { new Color(140, 185, 230), new Color(240, 180, 130) };
 		for (int k = 0; k < 2; k++) {
@@ -75,6 +79,28 @@ final class ComparisonTable {
 		plot.addLegend("intensity, " + refCount + " reference(s) (wide, light)\tintensity, result\tgradient magnitude, references (wide, light)\tgradient magnitude, result",
 				"top-left");
 		plot.setLimitsToFit(false);
+		if (from > 0) {
+			final double[] lim = plot.getLimits();
+			plot.setLimits(from, lim[1], lim[2], lim[3]);
+		}
 		return plot;
+	}
+
+	/**
+	 * The quantile level (%) a little below the first one where any curve exceeds 2 % of the largest value, in
+	 * whole steps of 5 %, or 0 when the curves rise early (below 20 %).
+	 */
+	static double firstRise(final MarginalQuantiles.Curves c) {
+		double max = 0;
+		for (int k = 0; k < 2; k++) for (final double[] curve : new double[][] { c.references()[k], c.result()[k] }) for (final double v : curve) if (Double.isFinite(v)) max = Math.max(max, Math.abs(v));
+		if (!(max > 0)) return 0;
+		final double[] levels = c.levels();
+		for (int i = 0; i < levels.length; i++)
+			for (int k = 0; k < 2; k++)
+				if (Math.abs(c.references()[k][i]) > 0.02 * max || Math.abs(c.result()[k][i]) > 0.02 * max) {
+					final double at = Math.floor((levels[i] - 5) / 5) * 5;
+					return at < 20 ? 0 : at;
+				}
+		return 0;
 	}
 }
