@@ -71,10 +71,9 @@ public final class CommandKeys {
 	/** Deconvolve: its main dialog, then the optics and the watch ({@link DeconvolveKeys}, where each key is described). */
 	public static final Command DECONVOLVE = define("Deconvolve", List.of("image", "psf"), DeconvolveKeys.WATCH.oldNames(), DeconvolveKeys.MAIN.specs(),
 			OPTICS, WATCH);
-	public static final Command BLIND_DECONVOLVE = define("Blind Deconvolve", List.of("image", "psf"), OLD_REFERENCES, List.of("image:T",
-			"psf:T", "fwhm_xy:N", "fwhm_z:N", "iterations:N", "object_updates:N", "psf_updates:N", "object_tv:N", "psf_tv:N", "estimate:W",
-			"trust_radius:N", "band_limit:F", "symmetric:F", "centring:F", "support_xy:N", "support_z:N", "support_units:W", "snapshot_interval:N",
-			"edges:W", "offset:T", "background:T", "watch:F"), OPTICS, WATCH);
+	/** Blind Deconvolve: its main dialog, then the optics (or the band limit's three of them) and the watch ({@link BlindKeys}). */
+	public static final Command BLIND_DECONVOLVE = define("Blind Deconvolve", List.of("image", "psf"), DeconvolveKeys.WATCH.oldNames(), BlindKeys.MAIN.specs(),
+			OPTICS, BlindKeys.BAND.specs(), WATCH);
 	public static final Command COMPARE = define("Compare with Sharp References", List.of("result"), OLD_REFERENCES, List.of("result:T",
 			"reference_folder:T", "reference_images:T", "input:T", "psf:T", "offset:T", "background:T", "photons:N", "read_noise:N",
 			"patch_size:N", "patches:N", "bootstrap:N", "seed:N", "ignore_calibration:F", "estimate_noise:F", "match_resolution:F"));

@@ -3,6 +3,7 @@ package org.parfocal.ij1;
 import java.util.ArrayList;
 import java.util.List;
 
+import org.parfocal.command.BlindKeys;
 import org.parfocal.command.DeconvolveKeys;
 import org.parfocal.command.Key;
 import org.parfocal.command.KeyTable;
@@ -202,37 +203,15 @@ final class DialogHelp {
 	}
 
 	static Page blind() {
-		final Page p = new Page("Blind Deconvolve", "Estimates the object and the PSF together, alternating Richardson&ndash;Lucy updates of "
+		return new Page("Blind Deconvolve", "Estimates the object and the PSF together, alternating Richardson&ndash;Lucy updates of "
 				+ "each, with total variation. The PSF stays non-negative, sums to 1 and lives inside a support box; optional constraints "
 				+ "below. Outputs: the deblurred image, the final PSF, and the PSF history (one frame per snapshot) with a table and plot of "
 				+ "its FWHM and its distance to the start.")
-				.field("Image", "image", "", "the recording")
-				.field("PSF", "psf", "", "the starting estimate: an open PSF, <code>from_optics</code> (next dialog) or <code>gaussian</code> (the two widths below)")
-				.field("FWHM_xy", "fwhm_xy", "&micro;m", "lateral full width at half maximum of a gaussian start (ignored otherwise)")
-				.field("FWHM_z", "fwhm_z", "&micro;m", "axial FWHM of a gaussian start (ignored otherwise)")
-				.group("Schedule")
-				.field("Iterations", "iterations", "", "outer iterations (each updates the object, then the PSF)")
-				.field("Object_updates", "object_updates", "", "object updates per outer iteration")
-				.field("PSF_updates", "psf_updates", "", "PSF updates per outer iteration; 0 keeps the PSF fixed")
-				.field("Object_TV", "object_tv", "", "total-variation weight of the object (against noise)")
-				.field("PSF_TV", "psf_tv", "", "total-variation weight of the PSF (0 = none)")
-				.field("Estimate", "estimate", "", "<code>free-form</code> (voxel by voxel), <code>model-fit</code> (fit the PSF model's parameters, "
-						+ "scored on held-out data), <code>model-fit-refined</code> (then free-form within the trust radius); "
-						+ "<code>widefield-fit</code> / <code>widefield-fit-refined</code>: the same, but a Gaussian start is fitted as a widefield shape "
-						+ "(Born &amp; Wolf of the start's widths, which holds the out-of-focus cone a Gaussian lacks)")
-				.field("Trust_radius", "trust_radius", "", "largest relative distance of a refined PSF to the fitted model")
-				.group("PSF constraints")
-				.field("Band_limit", "band_limit", "", "remove PSF frequencies above the widefield cutoff 2&middot;NA/&lambda; (asks for NA, "
-						+ "immersion index and emission unless the start is from_optics)")
-				.field("Symmetric", "symmetric", "", "keep the PSF cylindrically symmetric about the optical axis")
-				.field("Centring", "centring", "", "keep the PSF's centre of mass where the start had it")
-				.field("Support_xy", "support_xy", "Support_units", "width of the box the PSF lives in; 0 = automatic (the start's extent)")
-				.field("Support_z", "support_z", "Support_units", "depth of the box; 0 = automatic")
-				.field("Support_units", "support_units", "", "<code>voxels</code> (odd sizes) or <code>microns</code>")
-				.group("Output and data")
-				.field("Snapshot_interval", "snapshot_interval", "iterations", "iterations between frames of the PSF history")
-				.field("Edges", "edges", "", EDGES);
-		return levels(p).field("Watch quality", "watch", "", "the watch dialog of Deconvolve, on the object with the current PSF estimate")
+				.fields(BlindKeys.MAIN, "image", "psf", "fwhm_xy", "fwhm_z")
+				.group("Schedule").fields(BlindKeys.MAIN, "iterations", "object_updates", "psf_updates", "object_tv", "psf_tv")
+				.group("PSF constraints").fields(BlindKeys.MAIN, "band_limit", "symmetric", "centring", "support_xy", "support_z", "support_units")
+				.group("Output and data").fields(BlindKeys.MAIN, "snapshot_interval", "edges", "offset", "background")
+				.group("How the PSF is estimated").fields(BlindKeys.MAIN, "estimate", "trust_radius", "watch")
 				.note("The PSF list offers the open images that can be this image's PSF (Parfocal PSFs first, then small stacks with a "
 						+ "positive sum; never RGB or the image itself), then the optics and the Gaussian; the newest Parfocal PSF is preselected. "
 						+ "Choices are shown in words; the Recorder writes the values in <code>code</code> above, and macros may give either.");
@@ -241,9 +220,7 @@ final class DialogHelp {
 	static Page band() {
 		return new Page("Optics for the band limit", "The band limit removes PSF frequencies above 2&middot;NA/&lambda;, which no objective "
 				+ "transmits. Opened from the menu, the fields start from the starting PSF's record, else the image's (or their inputs' records); a macro gets the defaults.")
-				.field("NA", "na", "", "numerical aperture of the objective")
-				.field("Immersion_index", "immersion_index", "", "immersion medium index (oil 1.518, water 1.333)")
-				.field("Emission", "emission", "&micro;m", "emission wavelength");
+				.fields(BlindKeys.BAND);
 	}
 
 	static Page compare() {
