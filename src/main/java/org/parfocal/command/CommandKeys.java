@@ -58,8 +58,6 @@ public final class CommandKeys {
 	public static final List<String> OPTICS = DeconvolveKeys.OPTICS.specs();
 	/** The watch-mode dialog of Deconvolve and Blind Deconvolve ({@link DeconvolveKeys#WATCH}). */
 	public static final List<String> WATCH = DeconvolveKeys.WATCH.specs();
-	/** Old names of the reference keys (before 0.1.0's rename: {@code references} is the tail of {@code open_references}). */
-	private static final Map<String, String> OLD_REFERENCES = Map.of("references", "reference_folder", "open_references", "reference_images");
 
 	public static final Command CONVOLVE = define("Convolve with PSF", List.of("image", "psf"), Map.of(), List.of("image:T", "psf:T",
 			"boundary:W", "normalize:F", "background:N", "photons:N", "seed:N", "offset:N", "recentre:F"));
@@ -74,9 +72,8 @@ public final class CommandKeys {
 	/** Blind Deconvolve: its main dialog, then the optics (or the band limit's three of them) and the watch ({@link BlindKeys}). */
 	public static final Command BLIND_DECONVOLVE = define("Blind Deconvolve", List.of("image", "psf"), DeconvolveKeys.WATCH.oldNames(), BlindKeys.MAIN.specs(),
 			OPTICS, BlindKeys.BAND.specs(), WATCH);
-	public static final Command COMPARE = define("Compare with Sharp References", List.of("result"), OLD_REFERENCES, List.of("result:T",
-			"reference_folder:T", "reference_images:T", "input:T", "psf:T", "offset:T", "background:T", "photons:N", "read_noise:N",
-			"patch_size:N", "patches:N", "bootstrap:N", "seed:N", "ignore_calibration:F", "estimate_noise:F", "match_resolution:F"));
+	/** Compare with Sharp References ({@link CompareKeys}). */
+	public static final Command COMPARE = define("Compare with Sharp References", List.of("result"), CompareKeys.MAIN.oldNames(), CompareKeys.MAIN.specs());
 	public static final Command EXPORT_MACRO = define("Export Provenance as Macro", List.of(), Map.of(), List.of("macro:T", "replace:F"));
 	public static final Command WRITE_REPORT = define("Write Report", List.of(), Map.of(), List.of("file:T", "replace:F"));
 	public static final Command PARFOCAL_OPTIONS = define("Parfocal Options", List.of(), Map.of(), List.of("fft_library:W"));

@@ -4,6 +4,7 @@ import java.util.ArrayList;
 import java.util.List;
 
 import org.parfocal.command.BlindKeys;
+import org.parfocal.command.CompareKeys;
 import org.parfocal.command.DeconvolveKeys;
 import org.parfocal.command.Key;
 import org.parfocal.command.KeyTable;
@@ -228,29 +229,7 @@ final class DialogHelp {
 				+ "structure but not the same cells (unmatched): a sliced Wasserstein distance between small patches, and 1D distances "
 				+ "between the distributions of intensity, gradient magnitude and Laplacian. Smaller is closer. With the blurred input and "
 				+ "the PSF it also re-blurs the result and compares with the data.")
-				.field("Result", "result", "", "the image to judge")
-				.field("Reference_folder", "reference_folder", "folder", "folder of sharp reference .tif/.tiff files; may be empty "
-						+ "(formerly <code>references</code>)")
-				.field("Reference_images", "reference_images", "title pattern", "open images whose title matches (* and ? wildcards) "
-						+ "(formerly <code>open_references</code>)")
-				.field("Input", "input", "", "the blurred recording the result came from, or <code>none</code>")
-				.field("PSF", "psf", "", "the PSF used, or <code>none</code>; with Input: the re-blur chi-square and whiteness")
-				.field("Offset", "offset", "intensity units", "camera offset of the input: " + LEVEL)
-				.field("Background", "background", "intensity units", "background of the input: " + LEVEL)
-				.field("Photons", "photons", "photons per intensity unit", "noise model of the input (1 = photon counts)")
-				.field("Read_noise", "read_noise", "intensity units (&sigma;)", "camera read noise of the input")
-				.field("Patch_size", "patch_size", "voxels", "edge of the cubic (or square) patches compared")
-				.field("Patches", "patches", "", "patches sampled from each side")
-				.field("Bootstrap", "bootstrap", "resamples", "resamples for the intervals; 0 = no intervals")
-				.field("Seed", "seed", "", "seed of the sampling (same seed, same figures)")
-				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when calibrations are missing or differ")
-				.field("Estimate_noise", "estimate_noise", "", "take the chi-square's camera gain and read noise from the input itself "
-						+ "(Poisson&ndash;Gaussian fit, Foi et al., IEEE TIP 2008) instead of Photons and Read_noise (the fallback; values in the Log). "
-						+ "Absent from a macro line: the given values")
-				.field("Match_resolution", "match_resolution", "", "blur each reference to the result's expected resolution before the "
-						+ "comparison: the PSF's FWHM / 2 (else the input's apparent FWHM / 2), so that references sharper than any result can be "
-						+ "(another modality, much finer pixels) cannot rank a blurrier or noisier result higher. Absent from a macro line: "
-						+ "references as they are")
+				.fields(CompareKeys.MAIN)
 				.note("<b>The table's columns.</b> <i>value</i>: the distance to the references (smaller is closer; for the re-blur rows, "
 						+ "the chi-square, about 1 when the result explains the data down to the noise, and the whiteness of the residual); "
 						+ "<i>95% low / 95% high</i>: the bootstrap interval of the distance; <i>noise floor</i>: the distance between two halves "

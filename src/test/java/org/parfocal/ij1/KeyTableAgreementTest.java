@@ -21,6 +21,7 @@ import org.junit.jupiter.api.Test;
 import org.parfocal.blocks.Recipe;
 import org.parfocal.command.BlindKeys;
 import org.parfocal.command.CommandKeys;
+import org.parfocal.command.CompareKeys;
 import org.parfocal.command.KeyTableTest;
 import org.parfocal.command.DeconvolveKeys;
 import org.parfocal.command.DeconvolveRequest;
@@ -91,6 +92,7 @@ class KeyTableAgreementTest {
 		m.put(DialogHelp.watch(), DeconvolveKeys.WATCH);
 		m.put(DialogHelp.blind(), BlindKeys.MAIN);
 		m.put(DialogHelp.band(), BlindKeys.BAND);
+		m.put(DialogHelp.compare(), CompareKeys.MAIN);
 		return m;
 	}
 
@@ -101,6 +103,7 @@ class KeyTableAgreementTest {
 	@Test
 	void everySciJavaCommandStartsAtItsTablesDefaults() throws Exception {
 		assertSciJavaDefaults(new BlindDeconvolveCommand(), BlindKeys.MAIN, 15);
+		assertSciJavaDefaults(new org.parfocal.scijava.CompareWithReferencesCommand(), CompareKeys.MAIN, 10);
 	}
 
 	/** Compares the options a fresh SciJava command sends with the table's defaults; at least {@code least} keys compared. */
