@@ -59,13 +59,11 @@ public final class CommandKeys {
 	/** The watch-mode dialog of Deconvolve and Blind Deconvolve ({@link DeconvolveKeys#WATCH}). */
 	public static final List<String> WATCH = DeconvolveKeys.WATCH.specs();
 
-	public static final Command CONVOLVE = define("Convolve with PSF", List.of("image", "psf"), Map.of(), List.of("image:T", "psf:T",
-			"boundary:W", "normalize:F", "background:N", "photons:N", "seed:N", "offset:N", "recentre:F"));
+	/** Convolve with PSF ({@link ConvolveKeys}). */
+	public static final Command CONVOLVE = define("Convolve with PSF", List.of("image", "psf"), Map.of(), ConvolveKeys.MAIN.specs());
 	public static final Command PSF_FROM_OPTICS = define("PSF from Optics", List.of(), Map.of(), OPTICS, List.of("show_profiles:F"));
-	public static final Command PSF_FROM_BEADS = define("PSF from Beads", List.of("image"), Map.of(), List.of("image:T", "box_xy:N", "box_z:N",
-			"bead_diameter:N", "threshold:N", "reject_saturated:F", "outlier_z:N", "background:W", "averaging:W", "symmetrize:F", "voxel_xy:N",
-			"voxel_z:N", "optics:W", "modality:W", "na:N", "immersion_index:N", "sample_index:N", "depth:N", "emission:N", "excitation:N",
-			"pinhole:N", "sheet_thickness:N"));
+	/** PSF from Beads ({@link BeadsKeys}). */
+	public static final Command PSF_FROM_BEADS = define("PSF from Beads", List.of("image"), Map.of(), BeadsKeys.MAIN.specs());
 	/** Deconvolve: its main dialog, then the optics and the watch ({@link DeconvolveKeys}, where each key is described). */
 	public static final Command DECONVOLVE = define("Deconvolve", List.of("image", "psf"), DeconvolveKeys.WATCH.oldNames(), DeconvolveKeys.MAIN.specs(),
 			OPTICS, WATCH);

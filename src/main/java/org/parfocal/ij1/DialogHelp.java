@@ -3,8 +3,10 @@ package org.parfocal.ij1;
 import java.util.ArrayList;
 import java.util.List;
 
+import org.parfocal.command.BeadsKeys;
 import org.parfocal.command.BlindKeys;
 import org.parfocal.command.CompareKeys;
+import org.parfocal.command.ConvolveKeys;
 import org.parfocal.command.DeconvolveKeys;
 import org.parfocal.command.Key;
 import org.parfocal.command.KeyTable;
@@ -98,17 +100,7 @@ final class DialogHelp {
 	static Page convolve() {
 		return new Page("Convolve with PSF", "Simulates a recording of an object: the object is blurred with the PSF, a background is "
 				+ "added, then Poisson (shot) noise, then a camera offset. The result is a new 32-bit image; the inputs are not changed.")
-				.field("Image", "image", "", "the object (a sharp image or a simulated scene)")
-				.field("PSF", "psf", "", "the point spread function; its centre voxel is at (k&minus;1)/2 along each axis")
-				.field("Boundary", "boundary", "", "how the object continues past its edges while blurring: <code>zero</code>, "
-						+ "<code>mirror</code> (reflected) or <code>periodic</code> (wrapped)")
-				.field("Normalize PSF to unit sum", "normalize", "", "divide the PSF by its sum so blurring keeps the total intensity")
-				.field("Background", "background", "intensity units", "constant added after blurring (out-of-focus haze, autofluorescence)")
-				.field("Photons per unit", "photons", "photons per intensity unit", "noise level: each voxel's mean is scaled to photons, drawn "
-						+ "from a Poisson law and scaled back; 0 = no noise")
-				.field("Seed", "seed", "", "seed of the noise: the same seed gives the same noise")
-				.field("Offset", "offset", "intensity units", "camera offset added at the end, without noise")
-				.field("Recentre the PSF", "recentre", "", "shift the PSF so its centre of mass sits on the centre voxel before blurring");
+				.fields(ConvolveKeys.MAIN);
 	}
 
 	/** A heading of the optics dialog as Help HTML. */
@@ -136,33 +128,14 @@ final class DialogHelp {
 		return new Page("PSF from Beads", "Measures the PSF from a recording of sub-resolution fluorescent beads: finds the beads, fits "
 				+ "each with a Gaussian to locate it below a voxel, rejects the unusable ones (with the reason in the table and in the image's "
 				+ "overlay), aligns the rest by Fourier shifts, removes the background and averages them. The input's pixels are not changed.")
-				.field("Image", "image", "", "the bead recording (a calibrated stack)")
-				.group("PSF box and beads")
-				.field("Box_xy", "box_xy", "&micro;m", "width of the box cut around each bead; 0 = from the optics below (needs Optics)")
-				.field("Box_z", "box_z", "&micro;m", "depth of the box; 0 = from the optics (or a 2D image)")
-				.field("Bead_diameter", "bead_diameter", "&micro;m", "diameter of the beads; beads larger than the PSF are noted; 0 = unknown")
-				.group("Detection and rejection")
-				.field("Threshold", "threshold", "&times; noise", "a bead is a local maximum this many robust noise levels above the background")
-				.field("Reject_saturated", "reject_saturated", "", "reject beads whose peak reaches the maximum of the bit depth")
-				.field("Outlier_z", "outlier_z", "robust z-score", "reject beads whose fitted width or brightness lies this far from the others' median; 0 = off")
-				.field("Background", "background", "", "<code>stack</code>: one level for the stack; <code>border</code>: per bead, from the border of its box")
-				.field("Averaging", "averaging", "", "<code>mean</code> or <code>median</code> of the aligned beads (the median resists a stray bead)")
-				.field("Symmetrize radially", "symmetrize", "", "average the result around the optical axis")
-				.field("Voxel_xy", "voxel_xy", "&micro;m", "lateral voxel size; 0 = from the image's calibration")
-				.field("Voxel_z", "voxel_z", "&micro;m", "axial step; 0 = from the image's calibration")
+				.fields(BeadsKeys.MAIN, "image")
+				.group("PSF box and beads").fields(BeadsKeys.MAIN, "box_xy", "box_z", "bead_diameter")
+				.group("Detection and rejection").fields(BeadsKeys.MAIN, "threshold", "reject_saturated", "outlier_z", "background", "averaging", "symmetrize",
+						"voxel_xy", "voxel_z")
 				.group("Optics for comparison (optional; also sizes the box when it is 0)")
-				.field("Optics", "optics", "", "a PSF model to compare the measured FWHM with, or <code>none</code>; the fields below are ignored with none")
-				.field("Modality", "modality", "", "as in PSF from Optics")
-				.field("NA", "na", "", "numerical aperture")
-				.field("Immersion_index", "immersion_index", "", "immersion medium index")
-				.field("Sample_index", "sample_index", "", "sample (mounting medium) index")
-				.field("Depth", "depth", "&micro;m", "depth of the beads below the coverslip")
-				.field("Emission", "emission", "&micro;m", "emission wavelength")
-				.group(html(Group.SCANNING))
-				.field("Excitation", "excitation", "&micro;m", "excitation wavelength (confocal, two-photon only)")
-				.field("Pinhole", "pinhole", "Airy units", "pinhole diameter (confocal only)")
-				.group(html(Group.SHEET))
-				.field("Sheet_thickness", "sheet_thickness", "&micro;m (FWHM)", "light-sheet thickness (light-sheet only)")
+				.fields(BeadsKeys.MAIN, "optics", "modality", "na", "immersion_index", "sample_index", "depth", "emission")
+				.group(html(Group.SCANNING)).fields(BeadsKeys.MAIN, "excitation", "pinhole")
+				.group(html(Group.SHEET)).fields(BeadsKeys.MAIN, "sheet_thickness")
 				.note("The Image list shows the images the command can measure (one channel, one time point, not RGB): recordings named "
 						+ "for beads first, then other recordings, then stacks as small as a PSF, newest first. Choices are shown in words; "
 						+ "the Recorder writes the values in <code>code</code> above, and macros may give either.");

@@ -93,6 +93,8 @@ class KeyTableAgreementTest {
 		m.put(DialogHelp.blind(), BlindKeys.MAIN);
 		m.put(DialogHelp.band(), BlindKeys.BAND);
 		m.put(DialogHelp.compare(), CompareKeys.MAIN);
+		m.put(DialogHelp.beads(), org.parfocal.command.BeadsKeys.MAIN);
+		m.put(DialogHelp.convolve(), org.parfocal.command.ConvolveKeys.MAIN);
 		return m;
 	}
 
@@ -104,6 +106,8 @@ class KeyTableAgreementTest {
 	void everySciJavaCommandStartsAtItsTablesDefaults() throws Exception {
 		assertSciJavaDefaults(new BlindDeconvolveCommand(), BlindKeys.MAIN, 15);
 		assertSciJavaDefaults(new org.parfocal.scijava.CompareWithReferencesCommand(), CompareKeys.MAIN, 10);
+		assertSciJavaDefaults(new org.parfocal.scijava.PsfFromBeadsCommand(), org.parfocal.command.BeadsKeys.MAIN, 20);
+		assertSciJavaDefaults(new org.parfocal.scijava.ConvolveWithPsfCommand(), org.parfocal.command.ConvolveKeys.MAIN, 7);
 	}
 
 	/** Compares the options a fresh SciJava command sends with the table's defaults; at least {@code least} keys compared. */
