@@ -61,7 +61,7 @@ public final class CommandKeys {
 
 	/** Convolve with PSF ({@link ConvolveKeys}). */
 	public static final Command CONVOLVE = define("Convolve with PSF", List.of("image", "psf"), Map.of(), ConvolveKeys.MAIN.specs());
-	public static final Command PSF_FROM_OPTICS = define("PSF from Optics", List.of(), Map.of(), OPTICS, List.of("show_profiles:F"));
+	public static final Command PSF_FROM_OPTICS = define("PSF from Optics", List.of(), Map.of(), OPTICS, OtherKeys.PROFILES.specs());
 	/** PSF from Beads ({@link BeadsKeys}). */
 	public static final Command PSF_FROM_BEADS = define("PSF from Beads", List.of("image"), Map.of(), BeadsKeys.MAIN.specs());
 	/** Deconvolve: its main dialog, then the optics and the watch ({@link DeconvolveKeys}, where each key is described). */
@@ -72,9 +72,9 @@ public final class CommandKeys {
 			OPTICS, BlindKeys.BAND.specs(), WATCH);
 	/** Compare with Sharp References ({@link CompareKeys}). */
 	public static final Command COMPARE = define("Compare with Sharp References", List.of("result"), CompareKeys.MAIN.oldNames(), CompareKeys.MAIN.specs());
-	public static final Command EXPORT_MACRO = define("Export Provenance as Macro", List.of(), Map.of(), List.of("macro:T", "replace:F"));
-	public static final Command WRITE_REPORT = define("Write Report", List.of(), Map.of(), List.of("file:T", "replace:F"));
-	public static final Command PARFOCAL_OPTIONS = define("Parfocal Options", List.of(), Map.of(), List.of("fft_library:W"));
+	public static final Command EXPORT_MACRO = define("Export Provenance as Macro", List.of(), Map.of(), OtherKeys.EXPORT.specs());
+	public static final Command WRITE_REPORT = define("Write Report", List.of(), Map.of(), OtherKeys.REPORT.specs());
+	public static final Command PARFOCAL_OPTIONS = define("Parfocal Options", List.of(), Map.of(), OtherKeys.OPTIONS.specs());
 
 	private CommandKeys() {}
 

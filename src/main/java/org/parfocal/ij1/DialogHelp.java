@@ -10,6 +10,7 @@ import org.parfocal.command.ConvolveKeys;
 import org.parfocal.command.DeconvolveKeys;
 import org.parfocal.command.Key;
 import org.parfocal.command.KeyTable;
+import org.parfocal.command.OtherKeys;
 import org.parfocal.psf.OpticsFields.Group;
 
 /**
@@ -120,7 +121,7 @@ final class DialogHelp {
 			if (f.group() != group) p.group(html(group = f.group()));
 			p.fields(DeconvolveKeys.OPTICS, f.key());
 		}
-		if (withProfiles) p.field("Show_profiles and FWHM table", "show_profiles", "", "also show a plot of the lateral and axial profiles and a table of FWHM");
+		if (withProfiles) p.fields(OtherKeys.PROFILES);
 		return p.note("A warning is given (and recorded) when the voxel size is coarser than the Nyquist step &lambda;/(4&middot;NA) laterally.");
 	}
 
@@ -139,20 +140,6 @@ final class DialogHelp {
 				.note("The Image list shows the images the command can measure (one channel, one time point, not RGB): recordings named "
 						+ "for beads first, then other recordings, then stacks as small as a PSF, newest first. Choices are shown in words; "
 						+ "the Recorder writes the values in <code>code</code> above, and macros may give either.");
-	}
-
-	private static Page levels(final Page p) {
-		return levels(p, false);
-	}
-
-	private static Page levels(final Page p, final boolean fit) {
-		return p.field("Offset", "offset", "intensity units", "camera offset subtracted first: " + LEVEL + "; auto = the 0.1 % quantile")
-				.field("Background", "background", "intensity units", "constant b in the image model H&middot;x + b: " + LEVEL
-						+ "; auto = sigma-clipped median after the offset; <code>dark</code> = the darkest region"
-						+ (fit ? " (the default in Deconvolve: <code>auto</code> takes out-of-focus light for background)" : "")
-						+ (fit ? "; <code>fit</code> = fitted with the object inside Richardson&ndash;Lucy (maximum-likelihood EM step, "
-								+ "Shepp &amp; Vardi 1982; the fitted value goes into the Log and the provenance); <code>fit-smooth</code> = a slowly varying "
-								+ "background fitted the same way (piecewise linear over a 3 &times; 3 &times; 2 grid)" : ""));
 	}
 
 	static Page deconvolve() {
@@ -218,21 +205,18 @@ final class DialogHelp {
 	static Page export() {
 		return new Page("Export Provenance as Macro", "Writes an ImageJ macro (.ijm) that rebuilds the current image from its inputs by "
 				+ "replaying the recorded chain of Parfocal commands.")
-				.field("Macro", "macro", "file", "the .ijm file to write")
-				.field("Replace an existing file", "replace", "", "overwrite a file of that name (otherwise it is refused)");
+				.fields(OtherKeys.EXPORT);
 	}
 
 	static Page options() {
 		return new Page("Parfocal Options", "Settings for every Parfocal command, kept in ImageJ's preferences.")
-				.field("FFT_library", "fft_library", "", "<code>auto</code> (FFTW when installed, else JTransforms), <code>fftw</code> or "
-						+ "<code>java</code> (JTransforms, pure Java); the results agree within rounding");
+				.fields(OtherKeys.OPTIONS);
 	}
 
 	static Page report() {
 		return new Page("Write Report", "Writes one self-contained HTML page about the current image's run: warnings first, then what was "
 				+ "done, every parameter, the inputs with their calibration and SHA-256, projections with scale bars and display ranges, "
 				+ "PSF views and profiles, convergence and watch curves. It opens in any browser and can be archived with the data.")
-				.field("File", "file", "file", "the .html file to write (default: beside the image)")
-				.field("Replace an existing report", "replace", "", "overwrite a file of that name (otherwise it is refused)");
+				.fields(OtherKeys.REPORT);
 	}
 }

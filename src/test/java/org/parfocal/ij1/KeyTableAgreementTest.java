@@ -72,6 +72,9 @@ class KeyTableAgreementTest {
 		assertEquals(new java.util.HashSet<>(DeconvolveKeys.OPTICS.names()), new java.util.HashSet<>(optics));
 		for (final DialogHelp.Field f : DialogHelp.psfFromOptics(false).fields()) assertEquals(DeconvolveKeys.OPTICS.key(f.key()).unit(), f.unit(), f.key());
 		assertTrue(DialogHelp.deconvolve().html().contains("1 to 10000"), "the iterations' range is in Help");
+		final List<DialogHelp.Field> withProfiles = DialogHelp.psfFromOptics(true).fields();
+		assertEquals(optics.size() + 1, withProfiles.size());
+		assertEquals(org.parfocal.command.OtherKeys.PROFILES.names(), List.of(withProfiles.get(withProfiles.size() - 1).key()), "show_profiles comes last");
 		for (final Map.Entry<DialogHelp.Page, KeyTable> e : wholePages().entrySet()) {
 			final KeyTable t = e.getValue();
 			final List<DialogHelp.Field> rows = e.getKey().fields();
@@ -95,6 +98,9 @@ class KeyTableAgreementTest {
 		m.put(DialogHelp.compare(), CompareKeys.MAIN);
 		m.put(DialogHelp.beads(), org.parfocal.command.BeadsKeys.MAIN);
 		m.put(DialogHelp.convolve(), org.parfocal.command.ConvolveKeys.MAIN);
+		m.put(DialogHelp.export(), org.parfocal.command.OtherKeys.EXPORT);
+		m.put(DialogHelp.report(), org.parfocal.command.OtherKeys.REPORT);
+		m.put(DialogHelp.options(), org.parfocal.command.OtherKeys.OPTIONS);
 		return m;
 	}
 
@@ -108,6 +114,10 @@ class KeyTableAgreementTest {
 		assertSciJavaDefaults(new org.parfocal.scijava.CompareWithReferencesCommand(), CompareKeys.MAIN, 10);
 		assertSciJavaDefaults(new org.parfocal.scijava.PsfFromBeadsCommand(), org.parfocal.command.BeadsKeys.MAIN, 20);
 		assertSciJavaDefaults(new org.parfocal.scijava.ConvolveWithPsfCommand(), org.parfocal.command.ConvolveKeys.MAIN, 7);
+		assertSciJavaDefaults(new org.parfocal.scijava.PsfFromOpticsCommand(), org.parfocal.command.OtherKeys.PROFILES, 1);
+		assertSciJavaDefaults(new org.parfocal.scijava.ExportProvenanceMacroCommand(), org.parfocal.command.OtherKeys.EXPORT, 1);
+		assertSciJavaDefaults(new org.parfocal.scijava.WriteReportCommand(), org.parfocal.command.OtherKeys.REPORT, 1);
+		assertSciJavaDefaults(new org.parfocal.scijava.ParfocalOptionsCommand(), org.parfocal.command.OtherKeys.OPTIONS, 1);
 	}
 
 	/** Compares the options a fresh SciJava command sends with the table's defaults; at least {@code least} keys compared. */
