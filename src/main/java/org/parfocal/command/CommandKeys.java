@@ -58,29 +58,23 @@ public final class CommandKeys {
 	public static final List<String> OPTICS = DeconvolveKeys.OPTICS.specs();
 	/** The watch-mode dialog of Deconvolve and Blind Deconvolve ({@link DeconvolveKeys#WATCH}). */
 	public static final List<String> WATCH = DeconvolveKeys.WATCH.specs();
-	/** Old names of the reference keys (before 0.1.0's rename: {@code references} is the tail of {@code open_references}). */
-	private static final Map<String, String> OLD_REFERENCES = Map.of("references", "reference_folder", "open_references", "reference_images");
 
-	public static final Command CONVOLVE = define("Convolve with PSF", List.of("image", "psf"), Map.of(), List.of("image:T", "psf:T",
-			"boundary:W", "normalize:F", "background:N", "photons:N", "seed:N", "offset:N", "recentre:F"));
-	public static final Command PSF_FROM_OPTICS = define("PSF from Optics", List.of(), Map.of(), OPTICS, List.of("show_profiles:F"));
-	public static final Command PSF_FROM_BEADS = define("PSF from Beads", List.of("image"), Map.of(), List.of("image:T", "box_xy:N", "box_z:N",
-			"bead_diameter:N", "threshold:N", "reject_saturated:F", "outlier_z:N", "background:W", "averaging:W", "symmetrize:F", "voxel_xy:N",
-			"voxel_z:N", "optics:W", "modality:W", "na:N", "immersion_index:N", "sample_index:N", "depth:N", "emission:N", "excitation:N",
-			"pinhole:N", "sheet_thickness:N"));
+	/** Convolve with PSF ({@link ConvolveKeys}). */
+	public static final Command CONVOLVE = define("Convolve with PSF", List.of("image", "psf"), Map.of(), ConvolveKeys.MAIN.specs());
+	public static final Command PSF_FROM_OPTICS = define("PSF from Optics", List.of(), Map.of(), OPTICS, OtherKeys.PROFILES.specs());
+	/** PSF from Beads ({@link BeadsKeys}). */
+	public static final Command PSF_FROM_BEADS = define("PSF from Beads", List.of("image"), Map.of(), BeadsKeys.MAIN.specs());
 	/** Deconvolve: its main dialog, then the optics and the watch ({@link DeconvolveKeys}, where each key is described). */
 	public static final Command DECONVOLVE = define("Deconvolve", List.of("image", "psf"), DeconvolveKeys.WATCH.oldNames(), DeconvolveKeys.MAIN.specs(),
 			OPTICS, WATCH);
-	public static final Command BLIND_DECONVOLVE = define("Blind Deconvolve", List.of("image", "psf"), OLD_REFERENCES, List.of("image:T",
-			"psf:T", "fwhm_xy:N", "fwhm_z:N", "iterations:N", "object_updates:N", "psf_updates:N", "object_tv:N", "psf_tv:N", "estimate:W",
-			"trust_radius:N", "band_limit:F", "symmetric:F", "centring:F", "support_xy:N", "support_z:N", "support_units:W", "snapshot_interval:N",
-			"edges:W", "offset:T", "background:T", "watch:F"), OPTICS, WATCH);
-	public static final Command COMPARE = define("Compare with Sharp References", List.of("result"), OLD_REFERENCES, List.of("result:T",
-			"reference_folder:T", "reference_images:T", "input:T", "psf:T", "offset:T", "background:T", "photons:N", "read_noise:N",
-			"patch_size:N", "patches:N", "bootstrap:N", "seed:N", "ignore_calibration:F", "estimate_noise:F", "match_resolution:F"));
-	public static final Command EXPORT_MACRO = define("Export Provenance as Macro", List.of(), Map.of(), List.of("macro:T", "replace:F"));
-	public static final Command WRITE_REPORT = define("Write Report", List.of(), Map.of(), List.of("file:T", "replace:F"));
-	public static final Command PARFOCAL_OPTIONS = define("Parfocal Options", List.of(), Map.of(), List.of("fft_library:W"));
+	/** Blind Deconvolve: its main dialog, then the optics (or the band limit's three of them) and the watch ({@link BlindKeys}). */
+	public static final Command BLIND_DECONVOLVE = define("Blind Deconvolve", List.of("image", "psf"), DeconvolveKeys.WATCH.oldNames(), BlindKeys.MAIN.specs(),
+			OPTICS, BlindKeys.BAND.specs(), WATCH);
+	/** Compare with Sharp References ({@link CompareKeys}). */
+	public static final Command COMPARE = define("Compare with Sharp References", List.of("result"), CompareKeys.MAIN.oldNames(), CompareKeys.MAIN.specs());
+	public static final Command EXPORT_MACRO = define("Export Provenance as Macro", List.of(), Map.of(), OtherKeys.EXPORT.specs());
+	public static final Command WRITE_REPORT = define("Write Report", List.of(), Map.of(), OtherKeys.REPORT.specs());
+	public static final Command PARFOCAL_OPTIONS = define("Parfocal Options", List.of(), Map.of(), OtherKeys.OPTIONS.specs());
 
 	private CommandKeys() {}
 

@@ -14,8 +14,8 @@ import ij.Prefs;
 import ij.WindowManager;
 import ij.gui.GenericDialog;
 
-import org.parfocal.blind.BlindOptions;
-import org.parfocal.blind.FitPlan;
+import org.parfocal.command.BlindKeys;
+import org.parfocal.command.KeyTable;
 import org.parfocal.deconv.EdgeMode;
 import org.parfocal.deconv.Level;
 
@@ -38,34 +38,26 @@ final class BlindDeconvolveDialog {
 		final String[] starts = PsfChoices.items(WindowManager.getImage(imageDefault), FROM_OPTICS, GAUSSIAN);
 		Commands.acceptOldValue("edges", EdgeMode.OLD_NON_CIRCULANT_KEY, EdgeMode.NON_CIRCULANT.key());
 		final GenericDialog gd = new GenericDialog(BlindDeconvolve.COMMAND);
-		gd.addChoice("Image:", titles, imageDefault);
-		gd.addChoice("PSF:", starts, Commands.isMacro() ? GAUSSIAN
+		// labels and first-use defaults from the one description of the keys (BlindKeys); the screen adds items, digits, hints, headings
+		final KeyFields f = new KeyFields(gd, BlindKeys.MAIN, PREFS);
+		f.choice("image", titles, imageDefault);
+		f.choice("psf", starts, Commands.isMacro() ? GAUSSIAN
 				: defaultStart(starts, PsfChoices.madeAsPsf(starts[0]), Commands.remembered(PREFS + "start", GAUSSIAN), Commands.remembered(PREFS + "estimate", FREE_FORM)));
-		gd.addNumericField("FWHM_xy:", Commands.remembered(PREFS + "fwhm_xy", 0.25), 3, 6, "µm, lateral width of a gaussian start");
-		gd.addNumericField("FWHM_z:", Commands.remembered(PREFS + "fwhm_z", 0.7), 3, 6, "µm, axial width of a gaussian start");
+		f.number("fwhm_xy", 3, 6, "µm, lateral width of a gaussian start").number("fwhm_z", 3, 6, "µm, axial width of a gaussian start");
 		gd.addMessage("Schedule");
-		gd.addNumericField("Iterations:", Commands.remembered(PREFS + "iterations", BlindOptions.DEFAULT_ITERATIONS), 0, 6, "outer iterations");
-		gd.addNumericField("Object_updates:", Commands.remembered(PREFS + "object_updates", 1), 0, 6, "per iteration");
-		gd.addNumericField("PSF_updates:", Commands.remembered(PREFS + "psf_updates", 1), 0, 6, "per iteration (0: PSF kept)");
-		gd.addNumericField("Object_TV:", Commands.remembered(PREFS + "object_tv", BlindOptions.DEFAULT_OBJECT_TV), 4, 8, "total-variation weight");
-		gd.addNumericField("PSF_TV:", Commands.remembered(PREFS + "psf_tv", 0), 4, 8, "total-variation weight");
+		f.number("iterations", 0, 6, "outer iterations").number("object_updates", 0, 6, "per iteration").number("psf_updates", 0, 6, "per iteration (0: PSF kept)");
+		f.number("object_tv", 4, 8, "total-variation weight").number("psf_tv", 4, 8, "total-variation weight");
 		gd.addMessage("PSF constraints");
-		gd.addCheckbox("Band_limit (optical cutoff 2 NA / wavelength; widefield)", Commands.remembered(PREFS + "band_limit", true));
-		gd.addCheckbox("Symmetric (cylindrical about the optical axis)", Commands.remembered(PREFS + "symmetric", false));
-		gd.addCheckbox("Centring (keep the centre of mass of the start)", Commands.remembered(PREFS + "centring", true));
-		gd.addNumericField("Support_xy:", Commands.remembered(PREFS + "support_xy", 0), 2, 6, "PSF box width; 0 = automatic");
-		gd.addNumericField("Support_z:", Commands.remembered(PREFS + "support_z", 0), 2, 6, "PSF box depth; 0 = automatic");
-		gd.addChoice("Support_units:", new String[] { VOXELS, MICRONS }, Commands.remembered(PREFS + "support_units", VOXELS));
+		f.rememberedCheckbox("band_limit").rememberedCheckbox("symmetric").rememberedCheckbox("centring");
+		f.number("support_xy", 2, 6, "PSF box width; 0 = automatic").number("support_z", 2, 6, "PSF box depth; 0 = automatic");
+		f.choice("support_units", new String[] { VOXELS, MICRONS }, null);
 		gd.addMessage("Output and data");
-		gd.addNumericField("Snapshot_interval:", Commands.remembered(PREFS + "snapshot_interval", BlindOptions.DEFAULT_SNAPSHOT_INTERVAL), 0, 6,
-				"iterations between PSF snapshots");
-		gd.addChoice("Edges:", EdgeMode.keys(), Commands.remembered(PREFS + "edges", EdgeMode.NON_CIRCULANT.key()));
-		gd.addStringField("Offset:", Commands.remembered(PREFS + "offset", "auto"), 8);
-		gd.addStringField("Background:", Commands.remembered(PREFS + "background", "auto"), 8);
+		f.number("snapshot_interval", 0, 6, "iterations between PSF snapshots");
+		f.choice("edges", EdgeMode.keys(), null).text("offset", 8).text("background", 8);
 		gd.addMessage("How the PSF is estimated");
-		gd.addChoice("Estimate:", ESTIMATES.toArray(new String[0]), Commands.remembered(PREFS + "estimate", FREE_FORM));
-		gd.addNumericField("Trust_radius:", Commands.remembered(PREFS + "trust_radius", FitPlan.DEFAULT_TRUST_RADIUS), 3, 6, "largest distance of a refined PSF to the fitted model");
-		gd.addCheckbox("Watch quality every few iterations (next dialog)", false);
+		f.choice("estimate", ESTIMATES.toArray(new String[0]), null);
+		f.number("trust_radius", 3, 6, "largest distance of a refined PSF to the fitted model");
+		f.checkbox("watch");
 		gd.addHelp(DialogHelp.blind().html());
 		ChoiceWords.show(gd, "image", "psf", "support_units", "edges", "estimate"); // in words, recorded as the macro values
 		PsfChoices.follow(gd, FROM_OPTICS, GAUSSIAN);
@@ -143,9 +135,11 @@ final class BlindDeconvolveDialog {
 	private static BlindDeconvolveOptions.BandOptics showBandDialog(final Map<String, String> rec) {
 		final GenericDialog gd = new GenericDialog(BlindDeconvolve.COMMAND + ": optics for the band limit");
 		gd.addMessage("The band-limit constraint needs the widefield optics:");
-		gd.addNumericField("NA:", OpticsDefaults.number(rec, "na", Commands.remembered(PREFS + "na", 1.4)), 3);
-		gd.addNumericField("Immersion_index:", OpticsDefaults.number(rec, "immersion_index", Commands.remembered(PREFS + "immersion_index", 1.518)), 4);
-		gd.addNumericField("Emission:", OpticsDefaults.number(rec, "emission", Commands.remembered(PREFS + "emission", 0.52)), 3, 6, "µm");
+		final KeyTable B = BlindKeys.BAND; // labels and first-use defaults; the image's or the PSF's record first (OpticsDefaults)
+		gd.addNumericField(B.key("na").label(), OpticsDefaults.number(rec, "na", Commands.remembered(PREFS + "na", B.key("na").shownNumber())), 3);
+		gd.addNumericField(B.key("immersion_index").label(),
+				OpticsDefaults.number(rec, "immersion_index", Commands.remembered(PREFS + "immersion_index", B.key("immersion_index").shownNumber())), 4);
+		gd.addNumericField(B.key("emission").label(), OpticsDefaults.number(rec, "emission", Commands.remembered(PREFS + "emission", B.key("emission").shownNumber())), 3, 6, "µm");
 		gd.addHelp(DialogHelp.band().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;

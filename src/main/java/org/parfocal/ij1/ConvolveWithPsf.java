@@ -5,6 +5,9 @@ import ij.ImagePlus;
 import ij.Prefs;
 import ij.WindowManager;
 import ij.gui.GenericDialog;
+
+import org.parfocal.command.ConvolveKeys;
+import org.parfocal.command.KeyTable;
 import ij.plugin.PlugIn;
 
 import java.util.ArrayList;
@@ -61,15 +64,16 @@ public class ConvolveWithPsf implements PlugIn {
 		final String[] titles = Commands.imageTitles();
 		if (titles.length == 0) throw new IllegalArgumentException("Open an object image and a PSF first");
 		final GenericDialog gd = new GenericDialog(COMMAND);
-		gd.addChoice("Image:", titles, guessObject(titles));
-		gd.addChoice("PSF:", titles, guessPsf(titles));
-		gd.addChoice("Boundary:", Boundary.keys(), Commands.remembered(PREFS + "boundary", Boundary.MIRROR.key()));
-		gd.addCheckbox("Normalize PSF to unit sum", Commands.remembered(PREFS + "normalize", true));
-		gd.addNumericField("Background:", 0, 3, 8, "added after blurring");
-		gd.addNumericField("Photons per unit:", 0, 3, 8, "0 = no noise");
-		gd.addNumericField("Seed:", 1, 0);
-		gd.addNumericField("Offset:", 0, 3, 8, "camera offset, added without noise");
-		gd.addCheckbox("Recentre the PSF (shift its centre of mass to the centre voxel)", false);
+		final KeyTable K = ConvolveKeys.MAIN; // labels and first-use defaults: the one description of the keys
+		gd.addChoice(K.key("image").label(), titles, guessObject(titles));
+		gd.addChoice(K.key("psf").label(), titles, guessPsf(titles));
+		gd.addChoice(K.key("boundary").label(), Boundary.keys(), Commands.remembered(PREFS + "boundary", K.key("boundary").shownValue()));
+		gd.addCheckbox(K.key("normalize").label(), Commands.remembered(PREFS + "normalize", K.key("normalize").shownChecked()));
+		gd.addNumericField(K.key("background").label(), K.key("background").shownNumber(), 3, 8, "added after blurring");
+		gd.addNumericField(K.key("photons").label(), K.key("photons").shownNumber(), 3, 8, "0 = no noise");
+		gd.addNumericField(K.key("seed").label(), K.key("seed").shownNumber(), 0);
+		gd.addNumericField(K.key("offset").label(), K.key("offset").shownNumber(), 3, 8, "camera offset, added without noise");
+		gd.addCheckbox(K.key("recentre").label(), K.key("recentre").shownChecked());
 		gd.addHelp(DialogHelp.convolve().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;

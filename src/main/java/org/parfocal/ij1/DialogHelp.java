@@ -3,9 +3,14 @@ package org.parfocal.ij1;
 import java.util.ArrayList;
 import java.util.List;
 
+import org.parfocal.command.BeadsKeys;
+import org.parfocal.command.BlindKeys;
+import org.parfocal.command.CompareKeys;
+import org.parfocal.command.ConvolveKeys;
 import org.parfocal.command.DeconvolveKeys;
 import org.parfocal.command.Key;
 import org.parfocal.command.KeyTable;
+import org.parfocal.command.OtherKeys;
 import org.parfocal.psf.OpticsFields.Group;
 
 /**
@@ -96,17 +101,7 @@ final class DialogHelp {
 	static Page convolve() {
 		return new Page("Convolve with PSF", "Simulates a recording of an object: the object is blurred with the PSF, a background is "
 				+ "added, then Poisson (shot) noise, then a camera offset. The result is a new 32-bit image; the inputs are not changed.")
-				.field("Image", "image", "", "the object (a sharp image or a simulated scene)")
-				.field("PSF", "psf", "", "the point spread function; its centre voxel is at (k&minus;1)/2 along each axis")
-				.field("Boundary", "boundary", "", "how the object continues past its edges while blurring: <code>zero</code>, "
-						+ "<code>mirror</code> (reflected) or <code>periodic</code> (wrapped)")
-				.field("Normalize PSF to unit sum", "normalize", "", "divide the PSF by its sum so blurring keeps the total intensity")
-				.field("Background", "background", "intensity units", "constant added after blurring (out-of-focus haze, autofluorescence)")
-				.field("Photons per unit", "photons", "photons per intensity unit", "noise level: each voxel's mean is scaled to photons, drawn "
-						+ "from a Poisson law and scaled back; 0 = no noise")
-				.field("Seed", "seed", "", "seed of the noise: the same seed gives the same noise")
-				.field("Offset", "offset", "intensity units", "camera offset added at the end, without noise")
-				.field("Recentre the PSF", "recentre", "", "shift the PSF so its centre of mass sits on the centre voxel before blurring");
+				.fields(ConvolveKeys.MAIN);
 	}
 
 	/** A heading of the optics dialog as Help HTML. */
@@ -126,7 +121,7 @@ final class DialogHelp {
 			if (f.group() != group) p.group(html(group = f.group()));
 			p.fields(DeconvolveKeys.OPTICS, f.key());
 		}
-		if (withProfiles) p.field("Show_profiles and FWHM table", "show_profiles", "", "also show a plot of the lateral and axial profiles and a table of FWHM");
+		if (withProfiles) p.fields(OtherKeys.PROFILES);
 		return p.note("A warning is given (and recorded) when the voxel size is coarser than the Nyquist step &lambda;/(4&middot;NA) laterally.");
 	}
 
@@ -134,50 +129,17 @@ final class DialogHelp {
 		return new Page("PSF from Beads", "Measures the PSF from a recording of sub-resolution fluorescent beads: finds the beads, fits "
 				+ "each with a Gaussian to locate it below a voxel, rejects the unusable ones (with the reason in the table and in the image's "
 				+ "overlay), aligns the rest by Fourier shifts, removes the background and averages them. The input's pixels are not changed.")
-				.field("Image", "image", "", "the bead recording (a calibrated stack)")
-				.group("PSF box and beads")
-				.field("Box_xy", "box_xy", "&micro;m", "width of the box cut around each bead; 0 = from the optics below (needs Optics)")
-				.field("Box_z", "box_z", "&micro;m", "depth of the box; 0 = from the optics (or a 2D image)")
-				.field("Bead_diameter", "bead_diameter", "&micro;m", "diameter of the beads; beads larger than the PSF are noted; 0 = unknown")
-				.group("Detection and rejection")
-				.field("Threshold", "threshold", "&times; noise", "a bead is a local maximum this many robust noise levels above the background")
-				.field("Reject_saturated", "reject_saturated", "", "reject beads whose peak reaches the maximum of the bit depth")
-				.field("Outlier_z", "outlier_z", "robust z-score", "reject beads whose fitted width or brightness lies this far from the others' median; 0 = off")
-				.field("Background", "background", "", "<code>stack</code>: one level for the stack; <code>border</code>: per bead, from the border of its box")
-				.field("Averaging", "averaging", "", "<code>mean</code> or <code>median</code> of the aligned beads (the median resists a stray bead)")
-				.field("Symmetrize radially", "symmetrize", "", "average the result around the optical axis")
-				.field("Voxel_xy", "voxel_xy", "&micro;m", "lateral voxel size; 0 = from the image's calibration")
-				.field("Voxel_z", "voxel_z", "&micro;m", "axial step; 0 = from the image's calibration")
+				.fields(BeadsKeys.MAIN, "image")
+				.group("PSF box and beads").fields(BeadsKeys.MAIN, "box_xy", "box_z", "bead_diameter")
+				.group("Detection and rejection").fields(BeadsKeys.MAIN, "threshold", "reject_saturated", "outlier_z", "background", "averaging", "symmetrize",
+						"voxel_xy", "voxel_z")
 				.group("Optics for comparison (optional; also sizes the box when it is 0)")
-				.field("Optics", "optics", "", "a PSF model to compare the measured FWHM with, or <code>none</code>; the fields below are ignored with none")
-				.field("Modality", "modality", "", "as in PSF from Optics")
-				.field("NA", "na", "", "numerical aperture")
-				.field("Immersion_index", "immersion_index", "", "immersion medium index")
-				.field("Sample_index", "sample_index", "", "sample (mounting medium) index")
-				.field("Depth", "depth", "&micro;m", "depth of the beads below the coverslip")
-				.field("Emission", "emission", "&micro;m", "emission wavelength")
-				.group(html(Group.SCANNING))
-				.field("Excitation", "excitation", "&micro;m", "excitation wavelength (confocal, two-photon only)")
-				.field("Pinhole", "pinhole", "Airy units", "pinhole diameter (confocal only)")
-				.group(html(Group.SHEET))
-				.field("Sheet_thickness", "sheet_thickness", "&micro;m (FWHM)", "light-sheet thickness (light-sheet only)")
+				.fields(BeadsKeys.MAIN, "optics", "modality", "na", "immersion_index", "sample_index", "depth", "emission")
+				.group(html(Group.SCANNING)).fields(BeadsKeys.MAIN, "excitation", "pinhole")
+				.group(html(Group.SHEET)).fields(BeadsKeys.MAIN, "sheet_thickness")
 				.note("The Image list shows the images the command can measure (one channel, one time point, not RGB): recordings named "
 						+ "for beads first, then other recordings, then stacks as small as a PSF, newest first. Choices are shown in words; "
 						+ "the Recorder writes the values in <code>code</code> above, and macros may give either.");
-	}
-
-	private static Page levels(final Page p) {
-		return levels(p, false);
-	}
-
-	private static Page levels(final Page p, final boolean fit) {
-		return p.field("Offset", "offset", "intensity units", "camera offset subtracted first: " + LEVEL + "; auto = the 0.1 % quantile")
-				.field("Background", "background", "intensity units", "constant b in the image model H&middot;x + b: " + LEVEL
-						+ "; auto = sigma-clipped median after the offset; <code>dark</code> = the darkest region"
-						+ (fit ? " (the default in Deconvolve: <code>auto</code> takes out-of-focus light for background)" : "")
-						+ (fit ? "; <code>fit</code> = fitted with the object inside Richardson&ndash;Lucy (maximum-likelihood EM step, "
-								+ "Shepp &amp; Vardi 1982; the fitted value goes into the Log and the provenance); <code>fit-smooth</code> = a slowly varying "
-								+ "background fitted the same way (piecewise linear over a 3 &times; 3 &times; 2 grid)" : ""));
 	}
 
 	static Page deconvolve() {
@@ -202,37 +164,15 @@ final class DialogHelp {
 	}
 
 	static Page blind() {
-		final Page p = new Page("Blind Deconvolve", "Estimates the object and the PSF together, alternating Richardson&ndash;Lucy updates of "
+		return new Page("Blind Deconvolve", "Estimates the object and the PSF together, alternating Richardson&ndash;Lucy updates of "
 				+ "each, with total variation. The PSF stays non-negative, sums to 1 and lives inside a support box; optional constraints "
 				+ "below. Outputs: the deblurred image, the final PSF, and the PSF history (one frame per snapshot) with a table and plot of "
 				+ "its FWHM and its distance to the start.")
-				.field("Image", "image", "", "the recording")
-				.field("PSF", "psf", "", "the starting estimate: an open PSF, <code>from_optics</code> (next dialog) or <code>gaussian</code> (the two widths below)")
-				.field("FWHM_xy", "fwhm_xy", "&micro;m", "lateral full width at half maximum of a gaussian start (ignored otherwise)")
-				.field("FWHM_z", "fwhm_z", "&micro;m", "axial FWHM of a gaussian start (ignored otherwise)")
-				.group("Schedule")
-				.field("Iterations", "iterations", "", "outer iterations (each updates the object, then the PSF)")
-				.field("Object_updates", "object_updates", "", "object updates per outer iteration")
-				.field("PSF_updates", "psf_updates", "", "PSF updates per outer iteration; 0 keeps the PSF fixed")
-				.field("Object_TV", "object_tv", "", "total-variation weight of the object (against noise)")
-				.field("PSF_TV", "psf_tv", "", "total-variation weight of the PSF (0 = none)")
-				.field("Estimate", "estimate", "", "<code>free-form</code> (voxel by voxel), <code>model-fit</code> (fit the PSF model's parameters, "
-						+ "scored on held-out data), <code>model-fit-refined</code> (then free-form within the trust radius); "
-						+ "<code>widefield-fit</code> / <code>widefield-fit-refined</code>: the same, but a Gaussian start is fitted as a widefield shape "
-						+ "(Born &amp; Wolf of the start's widths, which holds the out-of-focus cone a Gaussian lacks)")
-				.field("Trust_radius", "trust_radius", "", "largest relative distance of a refined PSF to the fitted model")
-				.group("PSF constraints")
-				.field("Band_limit", "band_limit", "", "remove PSF frequencies above the widefield cutoff 2&middot;NA/&lambda; (asks for NA, "
-						+ "immersion index and emission unless the start is from_optics)")
-				.field("Symmetric", "symmetric", "", "keep the PSF cylindrically symmetric about the optical axis")
-				.field("Centring", "centring", "", "keep the PSF's centre of mass where the start had it")
-				.field("Support_xy", "support_xy", "Support_units", "width of the box the PSF lives in; 0 = automatic (the start's extent)")
-				.field("Support_z", "support_z", "Support_units", "depth of the box; 0 = automatic")
-				.field("Support_units", "support_units", "", "<code>voxels</code> (odd sizes) or <code>microns</code>")
-				.group("Output and data")
-				.field("Snapshot_interval", "snapshot_interval", "iterations", "iterations between frames of the PSF history")
-				.field("Edges", "edges", "", EDGES);
-		return levels(p).field("Watch quality", "watch", "", "the watch dialog of Deconvolve, on the object with the current PSF estimate")
+				.fields(BlindKeys.MAIN, "image", "psf", "fwhm_xy", "fwhm_z")
+				.group("Schedule").fields(BlindKeys.MAIN, "iterations", "object_updates", "psf_updates", "object_tv", "psf_tv")
+				.group("PSF constraints").fields(BlindKeys.MAIN, "band_limit", "symmetric", "centring", "support_xy", "support_z", "support_units")
+				.group("Output and data").fields(BlindKeys.MAIN, "snapshot_interval", "edges", "offset", "background")
+				.group("How the PSF is estimated").fields(BlindKeys.MAIN, "estimate", "trust_radius", "watch")
 				.note("The PSF list offers the open images that can be this image's PSF (Parfocal PSFs first, then small stacks with a "
 						+ "positive sum; never RGB or the image itself), then the optics and the Gaussian; the newest Parfocal PSF is preselected. "
 						+ "Choices are shown in words; the Recorder writes the values in <code>code</code> above, and macros may give either.");
@@ -241,9 +181,7 @@ final class DialogHelp {
 	static Page band() {
 		return new Page("Optics for the band limit", "The band limit removes PSF frequencies above 2&middot;NA/&lambda;, which no objective "
 				+ "transmits. Opened from the menu, the fields start from the starting PSF's record, else the image's (or their inputs' records); a macro gets the defaults.")
-				.field("NA", "na", "", "numerical aperture of the objective")
-				.field("Immersion_index", "immersion_index", "", "immersion medium index (oil 1.518, water 1.333)")
-				.field("Emission", "emission", "&micro;m", "emission wavelength");
+				.fields(BlindKeys.BAND);
 	}
 
 	static Page compare() {
@@ -251,29 +189,7 @@ final class DialogHelp {
 				+ "structure but not the same cells (unmatched): a sliced Wasserstein distance between small patches, and 1D distances "
 				+ "between the distributions of intensity, gradient magnitude and Laplacian. Smaller is closer. With the blurred input and "
 				+ "the PSF it also re-blurs the result and compares with the data.")
-				.field("Result", "result", "", "the image to judge")
-				.field("Reference_folder", "reference_folder", "folder", "folder of sharp reference .tif/.tiff files; may be empty "
-						+ "(formerly <code>references</code>)")
-				.field("Reference_images", "reference_images", "title pattern", "open images whose title matches (* and ? wildcards) "
-						+ "(formerly <code>open_references</code>)")
-				.field("Input", "input", "", "the blurred recording the result came from, or <code>none</code>")
-				.field("PSF", "psf", "", "the PSF used, or <code>none</code>; with Input: the re-blur chi-square and whiteness")
-				.field("Offset", "offset", "intensity units", "camera offset of the input: " + LEVEL)
-				.field("Background", "background", "intensity units", "background of the input: " + LEVEL)
-				.field("Photons", "photons", "photons per intensity unit", "noise model of the input (1 = photon counts)")
-				.field("Read_noise", "read_noise", "intensity units (&sigma;)", "camera read noise of the input")
-				.field("Patch_size", "patch_size", "voxels", "edge of the cubic (or square) patches compared")
-				.field("Patches", "patches", "", "patches sampled from each side")
-				.field("Bootstrap", "bootstrap", "resamples", "resamples for the intervals; 0 = no intervals")
-				.field("Seed", "seed", "", "seed of the sampling (same seed, same figures)")
-				.field("Ignore_calibration", "ignore_calibration", "", "compare voxel for voxel when calibrations are missing or differ")
-				.field("Estimate_noise", "estimate_noise", "", "take the chi-square's camera gain and read noise from the input itself "
-						+ "(Poisson&ndash;Gaussian fit, Foi et al., IEEE TIP 2008) instead of Photons and Read_noise (the fallback; values in the Log). "
-						+ "Absent from a macro line: the given values")
-				.field("Match_resolution", "match_resolution", "", "blur each reference to the result's expected resolution before the "
-						+ "comparison: the PSF's FWHM / 2 (else the input's apparent FWHM / 2), so that references sharper than any result can be "
-						+ "(another modality, much finer pixels) cannot rank a blurrier or noisier result higher. Absent from a macro line: "
-						+ "references as they are")
+				.fields(CompareKeys.MAIN)
 				.note("<b>The table's columns.</b> <i>value</i>: the distance to the references (smaller is closer; for the re-blur rows, "
 						+ "the chi-square, about 1 when the result explains the data down to the noise, and the whiteness of the residual); "
 						+ "<i>95% low / 95% high</i>: the bootstrap interval of the distance; <i>noise floor</i>: the distance between two halves "
@@ -289,21 +205,18 @@ final class DialogHelp {
 	static Page export() {
 		return new Page("Export Provenance as Macro", "Writes an ImageJ macro (.ijm) that rebuilds the current image from its inputs by "
 				+ "replaying the recorded chain of Parfocal commands.")
-				.field("Macro", "macro", "file", "the .ijm file to write")
-				.field("Replace an existing file", "replace", "", "overwrite a file of that name (otherwise it is refused)");
+				.fields(OtherKeys.EXPORT);
 	}
 
 	static Page options() {
 		return new Page("Parfocal Options", "Settings for every Parfocal command, kept in ImageJ's preferences.")
-				.field("FFT_library", "fft_library", "", "<code>auto</code> (FFTW when installed, else JTransforms), <code>fftw</code> or "
-						+ "<code>java</code> (JTransforms, pure Java); the results agree within rounding");
+				.fields(OtherKeys.OPTIONS);
 	}
 
 	static Page report() {
 		return new Page("Write Report", "Writes one self-contained HTML page about the current image's run: warnings first, then what was "
 				+ "done, every parameter, the inputs with their calibration and SHA-256, projections with scale bars and display ranges, "
 				+ "PSF views and profiles, convergence and watch curves. It opens in any browser and can be archived with the data.")
-				.field("File", "file", "file", "the .html file to write (default: beside the image)")
-				.field("Replace an existing report", "replace", "", "overwrite a file of that name (otherwise it is refused)");
+				.fields(OtherKeys.REPORT);
 	}
 }

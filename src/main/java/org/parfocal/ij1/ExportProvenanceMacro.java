@@ -10,6 +10,8 @@ import ij.IJ;
 import ij.ImagePlus;
 import ij.WindowManager;
 import ij.gui.GenericDialog;
+
+import org.parfocal.command.OtherKeys;
 import ij.io.SaveDialog;
 import ij.plugin.PlugIn;
 
@@ -60,8 +62,8 @@ public class ExportProvenanceMacro implements PlugIn {
 		final String base = ConvolveWithPsf.stripExtension(imp.getTitle()) + "-rebuild.ijm";
 		if (Commands.isMacro()) {
 			final GenericDialog gd = new GenericDialog(COMMAND);
-			gd.addStringField("Macro:", base, 40);
-			gd.addCheckbox("Replace an existing file", false);
+			gd.addStringField(OtherKeys.EXPORT.key("macro").label(), base, 40); // labels from the one description of the keys
+			gd.addCheckbox(OtherKeys.EXPORT.key("replace").label(), OtherKeys.EXPORT.key("replace").shownChecked());
 			gd.addHelp(DialogHelp.export().html());
 			gd.showDialog();
 			if (gd.wasCanceled()) return null;

@@ -6,6 +6,7 @@ import ij.gui.GenericDialog;
 
 import org.parfocal.command.DeconvolveKeys;
 import org.parfocal.command.KeyTable;
+import org.parfocal.command.OtherKeys;
 
 import org.parfocal.core.VoxelSize;
 import org.parfocal.psf.Modality;
@@ -71,7 +72,7 @@ final class OpticsDialog {
 		gd.addNumericField(O.key("voxel_z").label(), dz, 4, 8, "µm");
 		gd.addNumericField(O.key("size_xy").label(), O.key("size_xy").shownNumber(), 0, 6, "voxels, odd; 0 = from the optics");
 		gd.addNumericField(O.key("size_z").label(), O.key("size_z").shownNumber(), 0, 6, "voxels, odd; 0 = from the optics");
-		if (withProfiles) gd.addCheckbox("Show_profiles and FWHM table", true);
+		if (withProfiles) gd.addCheckbox(OtherKeys.PROFILES.key("show_profiles").label(), OtherKeys.PROFILES.key("show_profiles").shownChecked());
 		gd.addHelp(DialogHelp.psfFromOptics(withProfiles).html());
 		ChoiceWords.show(gd, "model", "modality"); // shown in words, recorded as the macro values
 		OpticsGreying.follow(gd); // fields the chosen model and modality do not use are greyed out

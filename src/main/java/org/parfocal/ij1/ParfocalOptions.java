@@ -3,6 +3,8 @@ package org.parfocal.ij1;
 import ij.IJ;
 import ij.Prefs;
 import ij.gui.GenericDialog;
+
+import org.parfocal.command.OtherKeys;
 import ij.plugin.PlugIn;
 
 import org.parfocal.fft.FftBackend;
@@ -28,7 +30,7 @@ public class ParfocalOptions implements PlugIn {
 		Commands.run(COMMAND, org.parfocal.command.CommandKeys.PARFOCAL_OPTIONS, () -> {
 			applySaved();
 			final GenericDialog gd = new GenericDialog(COMMAND);
-			gd.addChoice("FFT_library:", CHOICES, System.getProperty(FftBackend.PROPERTY, "auto"));
+			gd.addChoice(OtherKeys.OPTIONS.key("fft_library").label(), CHOICES, System.getProperty(FftBackend.PROPERTY, OtherKeys.OPTIONS.key("fft_library").shownValue()));
 			gd.addMessage("FFTW here: " + (FftBackend.FFTW.available() ? FftBackend.FFTW.description() : "not installed (" + FftBackend.FFTW.unavailableReason() + ")"));
 			gd.addHelp(DialogHelp.options().html());
 			gd.showDialog();

@@ -10,6 +10,8 @@ import ij.IJ;
 import ij.ImagePlus;
 import ij.WindowManager;
 import ij.gui.GenericDialog;
+
+import org.parfocal.command.OtherKeys;
 import ij.gui.Plot;
 import ij.io.FileInfo;
 import ij.plugin.PlugIn;
@@ -46,8 +48,8 @@ public class WriteReport implements PlugIn {
 			if (ImageProvenance.of(imp).isEmpty())
 				throw new IllegalArgumentException("'" + imp.getTitle() + "' has no Parfocal provenance to report (Image > Show Info shows what ImageJ knows)");
 			final GenericDialog gd = new GenericDialog(COMMAND);
-			gd.addStringField("File:", defaultFile(imp), 50);
-			gd.addCheckbox("Replace an existing report", false);
+			gd.addStringField(OtherKeys.REPORT.key("file").label(), defaultFile(imp), 50); // labels from the one description of the keys
+			gd.addCheckbox(OtherKeys.REPORT.key("replace").label(), OtherKeys.REPORT.key("replace").shownChecked());
 			gd.addHelp(DialogHelp.report().html());
 			gd.showDialog();
 			if (gd.wasCanceled()) throw Commands.cancelled();

@@ -6,6 +6,7 @@ import java.io.File;
 import java.util.List;
 import java.util.Map;
 
+import org.parfocal.command.BlindKeys;
 import org.scijava.ItemIO;
 import org.scijava.command.Command;
 import org.scijava.plugin.Parameter;
@@ -14,6 +15,9 @@ import org.scijava.plugin.Plugin;
 /** {@code Blind Deconvolve...}; with no PSF image the start is psf_start (gaussian or from_optics) as a SciJava command (typed inputs; same code path as the menu entry, see {@link MenuCommand}). */
 @Plugin(type = Command.class, headless = true, label = "Blind Deconvolve (Parfocal)", name = "parfocal.blinddeconvolve")
 public class BlindDeconvolveCommand extends WatchedInputs {
+
+	/** The defaults below are the table's ({@link BlindKeys}); annotations need constants, so their minimums are checked against it by a test. */
+	private static final org.parfocal.command.KeyTable K = BlindKeys.MAIN;
 
 	@Parameter(label = "Stack", persist = false)
 	private ImagePlus image;
@@ -25,31 +29,31 @@ public class BlindDeconvolveCommand extends WatchedInputs {
 	private String psf_start = "gaussian";
 
 	@Parameter(min = "0", persist = false)
-	private Double fwhm_xy = 0.25;
+	private Double fwhm_xy = K.key("fwhm_xy").defaultNumber();
 
 	@Parameter(min = "0", persist = false)
-	private Double fwhm_z = 0.7;
+	private Double fwhm_z = K.key("fwhm_z").defaultNumber();
 
 	@Parameter(min = "1", persist = false)
-	private Integer iterations = 30;
+	private Integer iterations = (int) K.key("iterations").defaultNumber();
 
 	@Parameter(min = "1", persist = false)
-	private Integer object_updates = 1;
+	private Integer object_updates = (int) K.key("object_updates").defaultNumber();
 
 	@Parameter(min = "0", persist = false)
-	private Integer psf_updates = 1;
+	private Integer psf_updates = (int) K.key("psf_updates").defaultNumber();
 
 	@Parameter(min = "0", persist = false)
-	private Double object_tv = 0.002;
+	private Double object_tv = K.key("object_tv").defaultNumber();
 
 	@Parameter(min = "0", persist = false)
-	private Double psf_tv = 0.0;
+	private Double psf_tv = K.key("psf_tv").defaultNumber();
 
 	@Parameter(persist = false)
-	private String estimate = "free-form";
+	private String estimate = K.key("estimate").defaultValue();
 
 	@Parameter(min = "0", persist = false)
-	private Double trust_radius = 0.2;
+	private Double trust_radius = K.key("trust_radius").defaultNumber();
 
 	@Parameter(persist = false)
 	private boolean band_limit;
@@ -61,25 +65,25 @@ public class BlindDeconvolveCommand extends WatchedInputs {
 	private boolean centring;
 
 	@Parameter(min = "0", persist = false)
-	private Double support_xy = 0.0;
+	private Double support_xy = K.key("support_xy").defaultNumber();
 
 	@Parameter(min = "0", persist = false)
-	private Double support_z = 0.0;
+	private Double support_z = K.key("support_z").defaultNumber();
 
 	@Parameter(persist = false)
-	private String support_units = "voxels";
+	private String support_units = K.key("support_units").defaultValue();
 
-	@Parameter(min = "0", persist = false)
-	private Integer snapshot_interval = 5;
+	@Parameter(min = "1", persist = false)
+	private Integer snapshot_interval = (int) K.key("snapshot_interval").defaultNumber();
 
 	@Parameter(persist = false)
-	private String edges = "non-circulant";
+	private String edges = K.key("edges").defaultValue();
 
 	@Parameter(description = "auto or a number", persist = false)
-	private String offset = "auto";
+	private String offset = K.key("offset").defaultValue();
 
 	@Parameter(description = "auto or a number", persist = false)
-	private String background = "auto";
+	private String background = K.key("background").defaultValue();
 
 	@Parameter(persist = false)
 	private boolean watch;

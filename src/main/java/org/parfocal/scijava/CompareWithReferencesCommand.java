@@ -15,6 +15,9 @@ import org.scijava.plugin.Plugin;
 @Plugin(type = Command.class, headless = true, label = "Compare with Sharp References (Parfocal)", name = "parfocal.comparewithreferences")
 public class CompareWithReferencesCommand extends MenuCommand {
 
+	/** The defaults below are the table's ({@link org.parfocal.command.CompareKeys}). */
+	private static final org.parfocal.command.KeyTable K = org.parfocal.command.CompareKeys.MAIN;
+
 	@Parameter(label = "Result", persist = false)
 	private ImagePlus result;
 
@@ -22,7 +25,7 @@ public class CompareWithReferencesCommand extends MenuCommand {
 	private File reference_folder;
 
 	@Parameter(description = "title pattern of open reference images", persist = false)
-	private String reference_images = "";
+	private String reference_images = K.key("reference_images").defaultValue();
 
 	@Parameter(required = false, label = "Input stack (re-blur check)", persist = false)
 	private ImagePlus input;
@@ -31,28 +34,28 @@ public class CompareWithReferencesCommand extends MenuCommand {
 	private ImagePlus psf;
 
 	@Parameter(description = "auto or a number", persist = false)
-	private String offset = "auto";
+	private String offset = K.key("offset").defaultValue();
 
 	@Parameter(description = "auto or a number", persist = false)
-	private String background = "auto";
+	private String background = K.key("background").defaultValue();
 
 	@Parameter(min = "0", persist = false)
-	private Double photons = 1.0;
+	private Double photons = K.key("photons").defaultNumber();
 
 	@Parameter(min = "0", persist = false)
-	private Double read_noise = 0.0;
+	private Double read_noise = K.key("read_noise").defaultNumber();
 
 	@Parameter(min = "1", persist = false)
-	private Integer patch_size = 7;
+	private Integer patch_size = (int) K.key("patch_size").defaultNumber();
 
 	@Parameter(min = "1", persist = false)
-	private Integer patches = 8192;
+	private Integer patches = (int) K.key("patches").defaultNumber();
 
 	@Parameter(min = "0", persist = false)
-	private Integer bootstrap = 50;
+	private Integer bootstrap = (int) K.key("bootstrap").defaultNumber();
 
 	@Parameter(persist = false)
-	private Integer seed = 1;
+	private Integer seed = (int) K.key("seed").defaultNumber();
 
 	@Parameter(persist = false)
 	private boolean ignore_calibration;

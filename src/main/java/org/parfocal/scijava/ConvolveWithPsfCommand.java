@@ -15,6 +15,9 @@ import org.scijava.plugin.Plugin;
 @Plugin(type = Command.class, headless = true, label = "Convolve with PSF (Parfocal)", name = "parfocal.convolvewithpsf")
 public class ConvolveWithPsfCommand extends MenuCommand {
 
+	/** The defaults below are the table's ({@link org.parfocal.command.ConvolveKeys}). */
+	private static final org.parfocal.command.KeyTable K = org.parfocal.command.ConvolveKeys.MAIN;
+
 	@Parameter(label = "Object image", persist = false)
 	private ImagePlus image;
 
@@ -22,22 +25,22 @@ public class ConvolveWithPsfCommand extends MenuCommand {
 	private ImagePlus psf;
 
 	@Parameter(choices = { "mirror", "zero", "periodic" }, persist = false)
-	private String boundary = "mirror";
+	private String boundary = K.key("boundary").defaultValue();
 
 	@Parameter(label = "Normalize PSF to unit sum", persist = false)
 	private boolean normalize;
 
 	@Parameter(min = "0", persist = false)
-	private Double background = 0.0;
+	private Double background = K.key("background").defaultNumber();
 
 	@Parameter(min = "0", label = "Photons per unit (0 = no noise)", persist = false)
-	private Double photons = 0.0;
+	private Double photons = K.key("photons").defaultNumber();
 
 	@Parameter(persist = false)
-	private Integer seed = 1;
+	private Integer seed = (int) K.key("seed").defaultNumber();
 
 	@Parameter(persist = false)
-	private Double offset = 0.0;
+	private Double offset = K.key("offset").defaultNumber();
 
 	@Parameter(persist = false)
 	private boolean recentre;

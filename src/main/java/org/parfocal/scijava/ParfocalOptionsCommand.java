@@ -16,7 +16,7 @@ import org.scijava.plugin.Plugin;
 public class ParfocalOptionsCommand extends MenuCommand {
 
 	@Parameter(choices = { "auto", "fftw", "java" }, label = "FFT library", persist = false)
-	private String fft_library = "auto";
+	private String fft_library = org.parfocal.command.OtherKeys.OPTIONS.key("fft_library").defaultValue(); // the table's default
 
 	@Override
 	public String menuLabel() {
