@@ -1,7 +1,8 @@
 package org.parfocal.command;
 
 import java.util.List;
-import java.util.Locale;
+
+import org.parfocal.provenance.MacroOptions;
 
 /**
  * One macro key of a command, described once: every front end takes its label, default, range, unit and help
@@ -74,6 +75,6 @@ public record Key(String name, String label, CommandKeys.Kind kind, String defau
 	}
 
 	private static String text(final double v) {
-		return v == Math.rint(v) && Math.abs(v) < 1e15 ? Long.toString((long) v) : String.format(Locale.ROOT, "%s", v);
+		return MacroOptions.number(v);
 	}
 }

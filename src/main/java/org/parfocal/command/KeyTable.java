@@ -7,6 +7,8 @@ import java.util.Locale;
 import java.util.Map;
 import java.util.Optional;
 
+import org.parfocal.provenance.MacroOptions;
+
 /**
  * The keys of one dialog of a command, in dialog order ({@link Key}): the one description the dialog, its Help
  * page, the Recorder line, the record and the text parsers are made from. {@link #read} turns macro options (as a
@@ -133,7 +135,7 @@ public record KeyTable(String title, List<Key> keys) {
 
 		public Builder number(final String name, final String label, final double def, final double min, final double max, final String unit,
 				final String help) {
-			keys.add(new Key(name, label, CommandKeys.Kind.NUMBER, text(def), null, min, max, unit, help, List.of()));
+			keys.add(new Key(name, label, CommandKeys.Kind.NUMBER, MacroOptions.number(def), null, min, max, unit, help, List.of()));
 			return this;
 		}
 
@@ -161,10 +163,6 @@ public record KeyTable(String title, List<Key> keys) {
 
 		public KeyTable build() {
 			return new KeyTable(title, keys);
-		}
-
-		private static String text(final double v) {
-			return v == Math.rint(v) && Math.abs(v) < 1e15 ? Long.toString((long) v) : Double.toString(v);
 		}
 	}
 }

@@ -47,7 +47,7 @@ public class Deconvolve implements PlugIn {
 
 	static final String COMMAND = "Deconvolve";
 	/** PSF choice that computes the PSF from the optics instead of taking an open image. */
-	public static final String FROM_OPTICS = "from_optics";
+	public static final String FROM_OPTICS = org.parfocal.command.DeconvolveRequest.FROM_OPTICS;
 
 	/** What the dialogs decide. {@code optics} is set when {@code psf} is {@link #FROM_OPTICS}. */
 	public record Options(String image, String psf, PsfFromOptics.Options optics, DeconvolutionOptions deconvolution, boolean plot, Watch watch,

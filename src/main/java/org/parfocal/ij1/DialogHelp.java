@@ -96,7 +96,6 @@ final class DialogHelp {
 		}
 	}
 
-	private static final String LEVEL = DeconvolveKeys.LEVEL;
 
 	static Page convolve() {
 		return new Page("Convolve with PSF", "Simulates a recording of an object: the object is blurred with the PSF, a background is "
@@ -153,7 +152,6 @@ final class DialogHelp {
 	}
 
 	/** Words of the edge modes, shared by Deconvolve and Blind Deconvolve. */
-	static final String EDGES = DeconvolveKeys.EDGES;
 
 	static Page watch() {
 		return new Page("Watch quality", "Every few iterations the iterate is compared with sharp reference images of the same kind of "
