@@ -26,7 +26,19 @@ public final class PoissonThinning {
 	 * NaN voxels (left out of the data term) stay NaN in both halves.
 	 */
 	public static float[][] split(final float[] y, final double photonsPerUnit, final long seed) {
+		return split(y, photonsPerUnit, seed, 1);
+	}
+
+	/**
+	 * {larger part, smaller part} of y: each photon goes to the first part with probability p = 1 − 2^−bits
+	 * (½, ¾, ⅞, …), to the second with 2^−bits, so the parts are independent Poisson recordings with p and 1 − p
+	 * of the light. A photon joins the first part when at least one of {@code bits} random bits is set (the count
+	 * is the set bits of the OR of {@code bits} random words: exact, like the ½ split, which is bits = 1 and
+	 * gives the same halves as {@link #split(float[], double, long)}).
+	 */
+	public static float[][] split(final float[] y, final double photonsPerUnit, final long seed, final int bits) {
 		if (!(photonsPerUnit > 0) || !Double.isFinite(photonsPerUnit)) throw new IllegalArgumentException("Photons per unit must be positive, got " + photonsPerUnit);
+		if (bits < 1 || bits > 8) throw new IllegalArgumentException("1 to 8 bits per photon, got " + bits);
 		final float[] a = new float[y.length], b = new float[y.length];
 		final SplittableRandom r = new SplittableRandom(seed);
 		for (int i = 0; i < y.length; i++) {
@@ -38,11 +50,18 @@ public final class PoissonThinning {
 			long c = v > 0 ? Math.round(v) : 0;
 			long k = 0;
 			final long total = c;
-			for (; c >= 64; c -= 64) k += Long.bitCount(r.nextLong());
-			if (c > 0) k += Long.bitCount(r.nextLong() & ((1L << c) - 1));
+			for (; c >= 64; c -= 64) k += Long.bitCount(word(r, bits));
+			if (c > 0) k += Long.bitCount(word(r, bits) & ((1L << c) - 1));
 			a[i] = (float) (k / photonsPerUnit);
 			b[i] = (float) ((total - k) / photonsPerUnit);
 		}
 		return new float[][] { a, b };
+	}
+
+	/** The OR of {@code bits} random words: each bit set with probability 1 − 2^−bits. */
+	private static long word(final SplittableRandom r, final int bits) {
+		long w = r.nextLong();
+		for (int j = 1; j < bits; j++) w |= r.nextLong();
+		return w;
 	}
 }

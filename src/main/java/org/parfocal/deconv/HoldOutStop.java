@@ -27,6 +27,8 @@ import org.parfocal.core.Volume;
  * sparse scenes and earlier on dense ones; factor 1 lost least (mean 0.79 dB, worst 2.03 dB against the best
  * iterate) against 1.25 (0.93 / 2.71) and 1.5 (1.38 / 4.82). Two folds moved k* by at most 3 iterations and no
  * suggestion by more than 0.2 dB, at twice the cost, so one fold is the default.
+ * An unequal split ({@link #SPLIT_BITS}: the run's part 1 − 2^−bits of the light) moved the peak later, helping
+ * sparse scenes and hurting dense ones (README), so the ½ split stays.
  * <p>
  * Read noise: when the gain and read noise σ are estimated from the recording ({@link CameraNoise}; recordings
  * of integer camera values), σ²/g is added to the data before the split and to the model (the shifted-Poisson
@@ -47,6 +49,8 @@ public final class HoldOutStop {
 	public static final int FOLDS = 1;
 	/** Iterations of the full data per iteration of the half at the held-out peak (measured, README). */
 	public static final double FULL_FACTOR = 1.0;
+	/** Split of the light: the run's part holds 1 − 2^−bits, the held-out part 2^−bits (1: halves). */
+	public static final int SPLIT_BITS = 1;
 
 	private HoldOutStop() {}
 
@@ -85,7 +89,20 @@ public final class HoldOutStop {
 			final float[] in = image.data(), yv = d.y();
 			for (int i = 0; i < in.length; i++) if (in[i] == sat.value()) yv[i] = Float.NaN;
 		}
-		return find(image, p.psf(), n, options, d.y(), d.offset(), d.background(), null, monitor, folds);
+		return find(image, p.psf(), n, options, d.y(), d.offset(), d.background(), null, monitor, folds, SPLIT_BITS);
+	}
+
+	/** As {@link #suggest(Volume, Volume, DeconvolutionOptions, Monitor)} with one fold and a split of 1 − 2^−bits / 2^−bits (for the scene table). */
+	public static Result suggest(final Volume image, final Volume psf, final DeconvolutionOptions options, final Monitor monitor, final int folds, final int bits) {
+		final int[] n = image.shape();
+		final Preprocessing.Psf p = Preprocessing.psf(psf, n);
+		final Preprocessing.Data d = Preprocessing.data(image, options.offset(), options.background());
+		final Saturation sat = Saturation.detect(image);
+		if (sat != null) {
+			final float[] in = image.data(), yv = d.y();
+			for (int i = 0; i < in.length; i++) if (in[i] == sat.value()) yv[i] = Float.NaN;
+		}
+		return find(image, p.psf(), n, options, d.y(), d.offset(), d.background(), null, monitor, folds, bits);
 	}
 
 	/**
@@ -98,13 +115,14 @@ public final class HoldOutStop {
 	 */
 	static Result find(final Volume image, final Volume psf, final int[] n, final DeconvolutionOptions options, final float[] y, final double offset,
 			final double background, final float[] initial, final Monitor monitor) {
-		return find(image, psf, n, options, y, offset, background, initial, monitor, FOLDS);
+		return find(image, psf, n, options, y, offset, background, initial, monitor, FOLDS, SPLIT_BITS);
 	}
 
 	/** As above with 1 fold (A scored by B) or 2 (also B scored by A). */
 	static Result find(final Volume image, final Volume psf, final int[] n, final DeconvolutionOptions options, final float[] y, final double offset,
-			final double background, final float[] initial, final Monitor monitor, final int folds) {
+			final double background, final float[] initial, final Monitor monitor, final int folds, final int bits) {
 		if (folds != 1 && folds != 2) throw new IllegalArgumentException("1 or 2 folds, got " + folds);
+		if (folds == 2 && bits != 1) throw new IllegalArgumentException("Two folds need the ½ split");
 		final Monitor mon = monitor == null ? Monitor.NONE : monitor;
 		double s = 1, shift = 0;
 		String noise = "data taken as photon counts (values not integers: no camera noise model)";
@@ -121,10 +139,17 @@ public final class HoldOutStop {
 		}
 		final float[] shifted = new float[y.length];
 		for (int i = 0; i < y.length; i++) shifted[i] = (float) (y[i] + shift);
-		final float[][] halves = PoissonThinning.split(shifted, s, SEED);
+		final float[][] halves = PoissonThinning.split(shifted, s, SEED, bits);
+		// the training part holds p of the light; the held-out part, scaled by p / (1 − p), is scored under the
+		// training iterate's model: the same argmax as its own likelihood under (1 − p)/p · (Hx + b p)
+		final double p = 1 - Math.pow(2, -bits);
+		if (bits > 1) {
+			final float scale = (float) (p / (1 - p));
+			for (int i = 0; i < halves[1].length; i++) halves[1][i] *= scale;
+		}
 		final float[] half0 = initial == null ? null : initial.clone();
-		if (half0 != null) for (int i = 0; i < half0.length; i++) half0[i] /= 2;
-		final double bh = (background + shift) / 2;
+		if (half0 != null) for (int i = 0; i < half0.length; i++) half0[i] *= p;
+		final double bh = (background + shift) * p;
 		final int cap = options.iterations();
 		final double[] curve = new double[cap + 1];
 		int best = 0, done = 0;

@@ -29,6 +29,7 @@ final class StopColumns {
 	static final double[] WEIGHTS = { 0.0005, 0.001, 0.002, 0.005, 0.01 };
 
 	private static final Map<String, HoldOutStop.Result> SUGGESTIONS = new HashMap<>();
+	private static final Map<String, HoldOutStop.Result> SPLITS = new HashMap<>();
 
 	static DeconvolutionOptions opts(final Scene s, final DeconvolutionMethod m, final double w, final Level b) {
 		return SceneBenchmark.options(s, m, CAP, w, b);
@@ -108,6 +109,22 @@ final class StopColumns {
 			for (final double f : folds == 1 ? new double[] { 1 } : new double[] { 1, 1.25, 1.5 })
 				cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "fold%d acc held-out x%.2f", folds, f),
 						(s, r) -> heldOut(s, r, opts(s, acc, 0, SceneBenchmark.trueBackground(s)), f, folds)));
+		for (final String bg : List.of("true", "dark"))
+			for (final int bits : new int[] { 1, 2, 3, 4 })
+				for (final double f : new double[] { 1, 1 / (1 - Math.pow(2, -bits)) })
+					cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "split %d bg %s x%.2f", bits, bg, f), (s, r) -> {
+						final DeconvolutionOptions o = opts(s, acc, 0, bg.equals("true") ? SceneBenchmark.trueBackground(s) : SceneBenchmark.darkBackground(s));
+						final HoldOutStop.Result h = SPLITS.computeIfAbsent(s.name() + " " + bits + " " + o,
+								k -> HoldOutStop.suggest(s.recording(), s.psf(), o, Monitor.NONE, 1, bits));
+						final SceneRuns.Curve c = r.curve(s, o);
+						final int n = Math.max(1, Math.min(CAP, (int) Math.round(f * h.peak())));
+						return SceneBenchmark.db(gain(s, c.at(n))) + " (" + SceneBenchmark.db(c.at(n) - c.best()) + ", k*=" + h.peak() + (h.interior() ? "" : " edge") + ")";
+					}));
+		for (final String bg : List.of("true", "dark", "fit", "fit-smooth"))
+			cols.add(SceneBenchmark.column("bgbest " + bg, (s, r) -> {
+				final Level b = bg.equals("true") ? SceneBenchmark.trueBackground(s) : bg.equals("dark") ? SceneBenchmark.darkBackground(s) : bg.equals("fit") ? Level.FIT : Level.FIT_SMOOTH;
+				return best(s, r.curve(s, opts(s, acc, 0, b)));
+			}));
 		cols.add(SceneBenchmark.column("tv 0.002 best", (s, r) -> best(s, r.curve(s, opts(s, tv, 0.002, SceneBenchmark.trueBackground(s))))));
 		cols.add(SceneBenchmark.column("tv 0.002 held-out x1.0", (s, r) -> heldOut(s, r, opts(s, tv, 0.002, SceneBenchmark.trueBackground(s)), 1)));
 		cols.add(SceneBenchmark.column("tv weights (best iterate each)", (s, r) -> {
