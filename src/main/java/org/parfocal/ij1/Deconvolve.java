@@ -40,8 +40,8 @@ import org.parfocal.quality.WatchedRun;
  * so far (4 bytes per voxel more) rather than running a second time to that iteration, which would double the
  * time. The suggestion, the rule and the curve go into the provenance.
  * <p>
- * The parts: {@link DeconvolveDialog} (dialogs → {@link Options}), {@link DeconvolveRun} (whole stack) and
- * {@link DeconvolveInBlocks}, {@link DeconvolvePsfs}, {@link DeconvolvePlots}, {@link WatchFacts}, {@link DeconvolvePreview}.
+ * The parts: {@link DeconvolveDialog} (dialogs → {@link Options}), {@link DeconvolveRun} (images, record; the run itself,
+ * whole stack or block by block, in {@link org.parfocal.command.DeconvolveRunner}), {@link DeconvolveWatchHooks}, {@link DeconvolvePsfs}, {@link DeconvolvePlots}, {@link WatchFacts}, {@link DeconvolvePreview}.
  */
 public class Deconvolve implements PlugIn {
 
@@ -84,6 +84,12 @@ public class Deconvolve implements PlugIn {
 					+ level(d.background()) + (plot ? " plot" : "") + (watch != null ? " watch" : "") + (recentre ? " recentre" : "") + (output == OutputDepth.FLOAT ? "" : " output=" + output.key());
 			final String withOptics = optics == null ? s : s + " " + optics.macroOptions();
 			return watch == null ? withOptics : withOptics + " " + watch.macroOptions();
+		}
+
+		/** The front-end-free request of these options ({@link org.parfocal.command.DeconvolveRunner} runs it). */
+		public org.parfocal.command.DeconvolveRequest request() {
+			return new org.parfocal.command.DeconvolveRequest(image, psf, optics == null ? null : DeconvolvePsfs.request(optics), deconvolution, plot, watch != null,
+					recentre, output.key());
 		}
 
 		/** The macro text of a level ({@link Level#macroValue}). */
@@ -184,7 +190,7 @@ public class Deconvolve implements PlugIn {
 	}
 
 	/** System property (bytes) that overrides the memory budget deciding when to work block by block. */
-	public static final String BUDGET_PROPERTY = "parfocal.blocks.budget";
+	public static final String BUDGET_PROPERTY = org.parfocal.command.DeconvolveRunner.BUDGET_PROPERTY;
 
 	// Shared with Blind Deconvolve and Compare with References, which call them here.
 
