@@ -6,17 +6,14 @@ import ij.ImagePlus;
 import ij.gui.Plot;
 import ij.plugin.PlugIn;
 
-import org.parfocal.core.Hyperstack;
 import org.parfocal.core.Volume;
 import org.parfocal.deconv.DeconvolutionMethod;
 import org.parfocal.deconv.DeconvolutionOptions;
 import org.parfocal.deconv.DeconvolutionResult;
 import org.parfocal.deconv.Level;
-import org.parfocal.deconv.PsfPreparation;
 import org.parfocal.provenance.MacroOptions;
 import org.parfocal.quality.QualityWatch;
 import org.parfocal.quality.StoppingRule;
-import org.parfocal.quality.WatchedRun;
 
 /**
  * {@code Plugins > Parfocal > Deconvolve...}: Richardson–Lucy (plain, with total variation, accelerated) or a
@@ -192,31 +189,8 @@ public class Deconvolve implements PlugIn {
 	/** System property (bytes) that overrides the memory budget deciding when to work block by block. */
 	public static final String BUDGET_PROPERTY = org.parfocal.command.DeconvolveRunner.BUDGET_PROPERTY;
 
-	// Shared with Blind Deconvolve and Compare with References, which call them here.
-
-	/** The watch-mode dialog; in a macro, values not given take the defaults (never remembered ones). */
-	static Watch showWatchDialog() {
-		return DeconvolveDialog.showWatch();
-	}
-
+	/** The offset or background level of a macro value ({@link Level#parse}, no {@code fit}); Blind Deconvolve and Compare read theirs with it. */
 	static Level level(final String key, final String text) {
 		return Level.parse(key, text, false);
-	}
-
-	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes) {
-		return DeconvolvePsfs.psfsFor(in, psfImp, optics, notes, false);
-	}
-
-	static void watchProvenance(final org.parfocal.provenance.Provenance.Builder prov, final Watch w, final List<? extends WatchedRun> watches,
-			final List<CompareWithReferences.Reference> refs) {
-		WatchFacts.record(prov, w, watches, refs);
-	}
-
-	static Plot qualityPlot(final List<? extends WatchedRun> watches, final String title, final String xLabel, final String chiLabel) {
-		return DeconvolvePlots.quality(watches, title, xLabel, chiLabel);
-	}
-
-	static String fmt(final double v) {
-		return PsfPreparation.fmt(v);
 	}
 }
