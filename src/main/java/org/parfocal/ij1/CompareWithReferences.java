@@ -25,7 +25,7 @@ import org.parfocal.quality.ReferenceComparison;
  * pattern ({@code reference_images=}, {@code *} and {@code ?} wildcards). Macro keys (public API): {@code result
  * reference_folder reference_images input psf offset background photons read_noise patch_size patches bootstrap seed
  * ignore_calibration estimate_noise match_resolution}. Loading and calibration of the references: {@link ReferenceImages};
- * the dialog: {@link ComparisonDialog}; the run: {@link ComparisonRun}; table and plot: {@link ComparisonTable}.
+ * the dialog: {@link CompareWithReferencesDialog}; the run: {@link ComparisonRun}; table and plot: {@link ComparisonTable}.
  */
 public class CompareWithReferences implements PlugIn {
 
@@ -100,7 +100,7 @@ public class CompareWithReferences implements PlugIn {
 	@Override
 	public void run(final String arg) {
 		Commands.run(COMMAND, org.parfocal.command.CommandKeys.COMPARE, () -> {
-			Options o = ComparisonDialog.show();
+			Options o = CompareWithReferencesDialog.show();
 			if (o == null) throw Commands.cancelled();
 			if (!o.ignoreCalibration()) {
 				final String problem = calibrationProblem(o);

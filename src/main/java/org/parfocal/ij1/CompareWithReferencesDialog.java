@@ -9,11 +9,11 @@ import org.parfocal.deconv.Level;
 import org.parfocal.ij1.CompareWithReferences.Options;
 
 /** Compare with Sharp References' dialog → {@link Options}: fields, labels and first-use defaults from {@link CompareKeys}. */
-final class ComparisonDialog {
+final class CompareWithReferencesDialog {
 
 	private static final String PREFS = "parfocal.compare.";
 
-	private ComparisonDialog() {}
+	private CompareWithReferencesDialog() {}
 
 	/** The dialog; in a macro, keys not given take the table's defaults (the folder and pattern are remembered only outside macros). */
 	static Options show() {
