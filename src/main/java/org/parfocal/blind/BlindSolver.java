@@ -319,30 +319,32 @@ final class BlindSolver {
 	 * the image window through offset j), by separable sliding sums in double: along z, then y, then x.
 	 */
 	private double[] objectBoxSums() {
-		final int[] loZ = boxLo[2], hiZ = boxHi[2], loY = boxLo[1], hiY = boxHi[1], loX = boxLo[0], hiX = boxHi[0];
 		final float[] x = e.object();
-		final double[] a = new double[mx * my * kz];
-		Parallel.forRange(my, iy -> {
-			final double[] prefix = new double[mz + 1];
-			for (int i = 0; i < mx; i++) {
-				for (int iz = 0; iz < mz; iz++) prefix[iz + 1] = prefix[iz] + x[i + mx * (iy + my * iz)];
-				for (int j = 0; j < kz; j++) a[i + mx * (iy + my * j)] = prefix[hiZ[j]] - prefix[loZ[j]];
+		final double[] z = axisBoxSums(x, null, mx * my, mx, mz, 1, boxLo[2], boxHi[2]);
+		final double[] zy = axisBoxSums(null, z, mx, mx, my, kz, boxLo[1], boxHi[1]);
+		return axisBoxSums(null, zy, 1, 1, mx, ky * kz, boxLo[0], boxHi[0]);
+	}
+
+	/**
+	 * One axis of {@link #objectBoxSums}: the lines of {@code m} values along the axis (in {@code f}, else in
+	 * {@code d}), value p of line (i, q) at {@code i + stride·(p + m·q)} ({@code i < stride}, {@code q < outer}),
+	 * summed in double over [lo[j], hi[j]) by a running prefix sum; the sum of offset j goes to {@code i + stride·(j + k·q)}, k = {@code lo.length}. Runs of
+	 * {@code run} consecutive lines ({@code run} divides {@code stride}) go to the threads; each line is summed in
+	 * the same order whatever the thread count.
+	 */
+	private static double[] axisBoxSums(final float[] f, final double[] d, final int stride, final int run, final int m, final int outer,
+			final int[] lo, final int[] hi) {
+		final int k = lo.length, runs = stride / run;
+		final double[] out = new double[stride * k * outer];
+		Parallel.forRange(runs * outer, u -> {
+			final int q = u / runs, first = (u % runs) * run;
+			final double[] prefix = new double[m + 1];
+			for (int i = first; i < first + run; i++) {
+				final int from = i + stride * m * q, to = i + stride * k * q;
+				for (int p = 0; p < m; p++) prefix[p + 1] = prefix[p] + (f != null ? f[from + stride * p] : d[from + stride * p]);
+				for (int j = 0; j < k; j++) out[to + stride * j] = prefix[hi[j]] - prefix[lo[j]];
 			}
 		});
-		final double[] bsum = new double[mx * ky * kz];
-		Parallel.forRange(kz, jz -> {
-			final double[] prefix = new double[my + 1];
-			for (int i = 0; i < mx; i++) {
-				for (int iy = 0; iy < my; iy++) prefix[iy + 1] = prefix[iy] + a[i + mx * (iy + my * jz)];
-				for (int j = 0; j < ky; j++) bsum[i + mx * (j + ky * jz)] = prefix[hiY[j]] - prefix[loY[j]];
-			}
-		});
-		final double[] out = new double[kx * ky * kz];
-		final double[] prefix = new double[mx + 1];
-		for (int r = 0; r < ky * kz; r++) {
-			for (int i = 0; i < mx; i++) prefix[i + 1] = prefix[i] + bsum[i + mx * r];
-			for (int j = 0; j < kx; j++) out[j + kx * r] = prefix[hiX[j]] - prefix[loX[j]];
-		}
 		return out;
 	}
 

@@ -17,6 +17,7 @@ import net.imglib2.parallel.Parallelization;
 import org.parfocal.blocks.BlockDeconvolution;
 import org.parfocal.blocks.BlockPlan;
 import org.parfocal.blocks.Recipe;
+import org.parfocal.command.DeconvolveRunner;
 import org.parfocal.command.PsfSource;
 import org.parfocal.deconv.PsfPreparation;
 import org.parfocal.conv.Psfs;
@@ -126,8 +127,7 @@ public final class BlockRunner {
 			final List<String> notes = new ArrayList<>();
 			final Volume psf = loadPsf(recipe, source.voxelSize(), source.shape(), notes);
 			for (final String n : notes) System.err.println("Note: " + n); // resampling and PSF box warnings, as the menu command's Log lines
-			final BlockPlan plan = tile != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), tile)
-					: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), budget > 0 ? budget : BlockPlan.heapBudget());
+			final BlockPlan plan = DeconvolveRunner.plan(source.shape(), psf.shape(), recipe.options(), budget, tile);
 			final Provenance.Builder prov = provenance(recipe, input, source.shape(), psf, plan, "BlockRunner", Parallelization.getTaskExecutor().getParallelism());
 			if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes)); // as the menu command records them
 			final TiffBlockSink sink = sink(output, source.shape(), source.voxelSize(), recipe, prov);

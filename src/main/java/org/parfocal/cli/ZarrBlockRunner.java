@@ -16,6 +16,7 @@ import org.parfocal.blocks.BlockDeconvolution;
 import org.parfocal.blocks.BlockPlan;
 import org.parfocal.blocks.BlockSource;
 import org.parfocal.blocks.Recipe;
+import org.parfocal.command.DeconvolveRunner;
 import org.parfocal.core.Monitor;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
@@ -105,8 +106,7 @@ public final class ZarrBlockRunner {
 	public static Plans plans(final Layout l, final List<Volume> psfs, final Recipe recipe, final long budget, final int[] tile) {
 		final List<BlockPlan> raw = new ArrayList<>();
 		for (final Volume h : psfs)
-			raw.add(tile != null ? BlockPlan.forTileSize(l.shape(), h.shape(), recipe.options(), tile)
-					: BlockPlan.forBudget(l.shape(), h.shape(), recipe.options(), budget > 0 ? budget : BlockPlan.heapBudget()));
+			raw.add(DeconvolveRunner.plan(l.shape(), h.shape(), recipe.options(), budget, tile));
 		final int[] chunk = l.chunk().clone();
 		for (int d = 0; d < 3; d++) {
 			int core = Integer.MAX_VALUE;
@@ -122,9 +122,7 @@ public final class ZarrBlockRunner {
 
 	/** The plan of one channel, aligned to the input's chunks. */
 	public static BlockPlan plan(final Layout l, final Volume psf, final Recipe recipe, final long budget, final int[] tile) {
-		final BlockPlan p = tile != null ? BlockPlan.forTileSize(l.shape(), psf.shape(), recipe.options(), tile)
-				: BlockPlan.forBudget(l.shape(), psf.shape(), recipe.options(), budget > 0 ? budget : BlockPlan.heapBudget());
-		return p.alignedTo(l.chunk(), recipe.options());
+		return DeconvolveRunner.plan(l.shape(), psf.shape(), recipe.options(), budget, tile).alignedTo(l.chunk(), recipe.options());
 	}
 
 	/** The provenance record of a Zarr run (as the TIFF runs record it, with the plan of each channel). */

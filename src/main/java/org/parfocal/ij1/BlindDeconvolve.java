@@ -160,7 +160,7 @@ public class BlindDeconvolve implements PlugIn {
 		ImageProvenance.attach(history, prov.run("output", "PSF history, one frame per snapshot"), t0);
 		monitor.done(String.format(Locale.ROOT, "%d iteration(s), %.1f s, PSF FWHM %s%s %s", o.iterations(), (System.nanoTime() - t0) / 1e9,
 				fmt(last.fwhmLateral()), image.nz() > 1 ? " x " + fmt(last.fwhmAxial()) : "", unit));
-		final Plot quality = watch == null ? null : Deconvolve.qualityPlot(List.of(watch), out.getTitle(), "Outer iteration", "chi-square (current PSF)");
+		final Plot quality = watch == null ? null : DeconvolvePlots.quality(List.of(watch), out.getTitle(), "Outer iteration", "chi-square (current PSF)");
 		return new Output(out, psf, history, table, plot, r, quality, watch);
 	}
 
@@ -183,6 +183,6 @@ public class BlindDeconvolve implements PlugIn {
 	}
 
 	private static String fmt(final double v) {
-		return Double.isFinite(v) ? Deconvolve.fmt(v) : "n/a";
+		return Double.isFinite(v) ? org.parfocal.deconv.PsfPreparation.fmt(v) : "n/a";
 	}
 }

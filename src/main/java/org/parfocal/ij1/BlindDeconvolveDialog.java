@@ -91,7 +91,7 @@ final class BlindDeconvolveDialog {
 		}
 		Deconvolve.Watch w = null;
 		if (watch) {
-			w = Deconvolve.showWatchDialog(); // the same dialog, keys and defaults as Deconvolve's watch mode
+			w = DeconvolveDialog.showWatch(); // the same dialog, keys and defaults as Deconvolve's watch mode
 			if (w == null) return null;
 		}
 		if (!Commands.isMacro()) {

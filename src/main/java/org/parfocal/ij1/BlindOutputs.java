@@ -46,7 +46,7 @@ final class BlindOutputs {
 			if (!r.refinement().isEmpty())
 				prov.run("refinement_steps_kept", r.refinement().stream().filter(RefineStep::accepted).count() + " of " + r.refinement().size());
 		}
-		if (watch != null) Deconvolve.watchProvenance(prov, o.watch(), List.of(watch), refs);
+		if (watch != null) WatchFacts.record(prov, o.watch(), List.of(watch), refs);
 		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
 		return prov;
 	}

@@ -9,6 +9,7 @@ import org.parfocal.blind.PsfStart;
 import org.parfocal.blind.SupportBox;
 import org.parfocal.conv.Psfs;
 import org.parfocal.core.Hyperstack;
+import org.parfocal.deconv.PsfPreparation;
 import org.parfocal.core.Volume;
 import org.parfocal.core.VoxelSize;
 import org.parfocal.psf.Optics;
@@ -42,7 +43,7 @@ final class BlindStartPsf {
 		} else if (BlindDeconvolve.GAUSSIAN.equals(o.psf())) {
 			start = PsfStart.gaussian(o.fwhmXY(), o.fwhmZ());
 		} else {
-			start = PsfStart.given(Deconvolve.psfsFor(Hyperstack.of(image), psfImp, null, notes).get(0));
+			start = PsfStart.given(DeconvolvePsfs.psfsFor(Hyperstack.of(image), psfImp, null, notes, false).get(0));
 		}
 		if (o.band() != null) optics = o.band().optics();
 		if (!is3D && support != null && support.nz() != 1) support = new SupportBox(support.nx(), support.ny(), 1);
@@ -86,8 +87,8 @@ final class BlindStartPsf {
 			final double f = PsfGrid.micronsPer(v);
 			final double dx = v.dx() * f, dz = v.dz() * f;
 			if (Math.abs(optics.voxelXY() - dx) > 1e-3 * dx || (image.nz() > 1 && Math.abs(optics.voxelZ() - dz) > 1e-3 * dz))
-				throw new IllegalArgumentException("The PSF from the optics would be sampled at " + Deconvolve.fmt(optics.voxelXY()) + " x "
-						+ Deconvolve.fmt(optics.voxelZ()) + " µm but the image's voxels are " + Deconvolve.fmt(dx) + " x " + Deconvolve.fmt(dz)
+				throw new IllegalArgumentException("The PSF from the optics would be sampled at " + PsfPreparation.fmt(optics.voxelXY()) + " x "
+						+ PsfPreparation.fmt(optics.voxelZ()) + " µm but the image's voxels are " + PsfPreparation.fmt(dx) + " x " + PsfPreparation.fmt(dz)
 						+ " µm: set voxel_xy and voxel_z to the image's");
 		}
 		final PsfGrid grid = optics.grid();

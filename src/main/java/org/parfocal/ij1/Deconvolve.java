@@ -6,17 +6,14 @@ import ij.ImagePlus;
 import ij.gui.Plot;
 import ij.plugin.PlugIn;
 
-import org.parfocal.core.Hyperstack;
 import org.parfocal.core.Volume;
 import org.parfocal.deconv.DeconvolutionMethod;
 import org.parfocal.deconv.DeconvolutionOptions;
 import org.parfocal.deconv.DeconvolutionResult;
 import org.parfocal.deconv.Level;
-import org.parfocal.deconv.PsfPreparation;
 import org.parfocal.provenance.MacroOptions;
 import org.parfocal.quality.QualityWatch;
 import org.parfocal.quality.StoppingRule;
-import org.parfocal.quality.WatchedRun;
 
 /**
  * {@code Plugins > Parfocal > Deconvolve...}: Richardson–Lucy (plain, with total variation, accelerated) or a
@@ -40,8 +37,8 @@ import org.parfocal.quality.WatchedRun;
  * so far (4 bytes per voxel more) rather than running a second time to that iteration, which would double the
  * time. The suggestion, the rule and the curve go into the provenance.
  * <p>
- * The parts: {@link DeconvolveDialog} (dialogs → {@link Options}), {@link DeconvolveRun} (whole stack) and
- * {@link DeconvolveInBlocks}, {@link DeconvolvePsfs}, {@link DeconvolvePlots}, {@link WatchFacts}, {@link DeconvolvePreview}.
+ * The parts: {@link DeconvolveDialog} (dialogs → {@link Options}), {@link DeconvolveRun} (images, record; the run itself,
+ * whole stack or block by block, in {@link org.parfocal.command.DeconvolveRunner}), {@link DeconvolveWatchHooks}, {@link DeconvolvePsfs}, {@link DeconvolvePlots}, {@link WatchFacts}, {@link DeconvolvePreview}.
  */
 public class Deconvolve implements PlugIn {
 
@@ -84,6 +81,12 @@ public class Deconvolve implements PlugIn {
 					+ level(d.background()) + (plot ? " plot" : "") + (watch != null ? " watch" : "") + (recentre ? " recentre" : "") + (output == OutputDepth.FLOAT ? "" : " output=" + output.key());
 			final String withOptics = optics == null ? s : s + " " + optics.macroOptions();
 			return watch == null ? withOptics : withOptics + " " + watch.macroOptions();
+		}
+
+		/** The front-end-free request of these options ({@link org.parfocal.command.DeconvolveRunner} runs it). */
+		public org.parfocal.command.DeconvolveRequest request() {
+			return new org.parfocal.command.DeconvolveRequest(image, psf, optics == null ? null : DeconvolvePsfs.request(optics), deconvolution, plot, watch != null,
+					recentre, output.key());
 		}
 
 		/** The macro text of a level ({@link Level#macroValue}). */
@@ -184,33 +187,10 @@ public class Deconvolve implements PlugIn {
 	}
 
 	/** System property (bytes) that overrides the memory budget deciding when to work block by block. */
-	public static final String BUDGET_PROPERTY = "parfocal.blocks.budget";
+	public static final String BUDGET_PROPERTY = org.parfocal.command.DeconvolveRunner.BUDGET_PROPERTY;
 
-	// Shared with Blind Deconvolve and Compare with References, which call them here.
-
-	/** The watch-mode dialog; in a macro, values not given take the defaults (never remembered ones). */
-	static Watch showWatchDialog() {
-		return DeconvolveDialog.showWatch();
-	}
-
+	/** The offset or background level of a macro value ({@link Level#parse}, no {@code fit}); Blind Deconvolve and Compare read theirs with it. */
 	static Level level(final String key, final String text) {
 		return Level.parse(key, text, false);
-	}
-
-	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes) {
-		return DeconvolvePsfs.psfsFor(in, psfImp, optics, notes, false);
-	}
-
-	static void watchProvenance(final org.parfocal.provenance.Provenance.Builder prov, final Watch w, final List<? extends WatchedRun> watches,
-			final List<CompareWithReferences.Reference> refs) {
-		WatchFacts.record(prov, w, watches, refs);
-	}
-
-	static Plot qualityPlot(final List<? extends WatchedRun> watches, final String title, final String xLabel, final String chiLabel) {
-		return DeconvolvePlots.quality(watches, title, xLabel, chiLabel);
-	}
-
-	static String fmt(final double v) {
-		return PsfPreparation.fmt(v);
 	}
 }

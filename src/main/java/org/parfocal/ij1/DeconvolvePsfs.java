@@ -27,9 +27,13 @@ final class DeconvolvePsfs {
 	 */
 	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes,
 			final boolean recentre) {
-		final PsfSource source = optics != null ? new PsfSource.FromOptics(request(optics))
-				: new PsfSource.Given(ImageBridge.toCore(psfImp), psfImp.getTitle(), recentre);
+		final PsfSource source = source(psfImp, optics, recentre);
 		return Commands.withImageJThreads(() -> source.prepare(PsfPreparation.Target.of(in), notes)); // the one preparation (blocks and Spark too)
+	}
+
+	/** Where the PSF comes from: {@code optics} when given, else the open image {@code psfImp} (re-centred when {@code recentre}). */
+	static PsfSource source(final ImagePlus psfImp, final PsfFromOptics.Options optics, final boolean recentre) {
+		return optics != null ? new PsfSource.FromOptics(request(optics)) : new PsfSource.Given(ImageBridge.toCore(psfImp), psfImp.getTitle(), recentre);
 	}
 
 	/** The optics of PSF from Optics' dialog as the request every front end prepares from. */
