@@ -253,8 +253,7 @@ public final class SparkRunner {
 			Parallelization.runWithNumThreads(s.threads(), () -> {
 				try (TiffBlockSource source = TiffBlockSource.open(in)) {
 					final Volume psf = BlockRunner.loadPsf(recipe, source.voxelSize(), source.shape());
-					final BlockPlan p = s.tile() != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), s.tile())
-							: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), taskBudget(s));
+					final BlockPlan p = org.parfocal.command.DeconvolveRunner.plan(source.shape(), psf.shape(), recipe.options(), taskBudget(s), s.tile());
 					final TiffBlockSink sink = BlockRunner.sink(tmp, source.shape(), source.voxelSize(), recipe,
 							BlockRunner.provenance(recipe, in, source.shape(), psf, p, "SparkRunner stacks", s.threads()));
 					final BlockDeconvolution.Result r = BlockDeconvolution.run(source, psf, recipe.options(), p, sink, Monitor.NONE);
@@ -341,8 +340,7 @@ public final class SparkRunner {
 		try (TiffBlockSource source = TiffBlockSource.open(in)) {
 			final long bytes = Files.size(in), modified = Files.getLastModifiedTime(in).toMillis();
 			final Volume psf = BlockRunner.loadPsf(recipe, source.voxelSize(), source.shape());
-			final BlockPlan plan = s.tile() != null ? BlockPlan.forTileSize(source.shape(), psf.shape(), recipe.options(), s.tile())
-					: BlockPlan.forBudget(source.shape(), psf.shape(), recipe.options(), driverBudget(sc, s));
+			final BlockPlan plan = org.parfocal.command.DeconvolveRunner.plan(source.shape(), psf.shape(), recipe.options(), driverBudget(sc, s), s.tile());
 			final BlockDeconvolution.Levels levels = BlockDeconvolution.levels(source, recipe.options(), Monitor.NONE);
 			final TiffBlockSink sink = BlockRunner.sink(out, source.shape(), source.voxelSize(), recipe,
 					BlockRunner.provenance(recipe, in, source.shape(), psf, plan, "SparkRunner blocks", s.threads()));
