@@ -80,20 +80,12 @@ public final class HoldOutStop {
 
 	/** As {@link #suggest(Volume, Volume, DeconvolutionOptions, Monitor)} with 1 or 2 folds (for the scene table's comparison). */
 	public static Result suggest(final Volume image, final Volume psf, final DeconvolutionOptions options, final Monitor monitor, final int folds) {
-		if (!options.method().isIterative()) throw new IllegalArgumentException("The held-out stop needs an iterative method");
-		final int[] n = image.shape();
-		final Preprocessing.Psf p = Preprocessing.psf(psf, n);
-		final Preprocessing.Data d = Preprocessing.data(image, options.offset(), options.background());
-		final Saturation sat = Saturation.detect(image);
-		if (sat != null) {
-			final float[] in = image.data(), yv = d.y();
-			for (int i = 0; i < in.length; i++) if (in[i] == sat.value()) yv[i] = Float.NaN;
-		}
-		return find(image, p.psf(), n, options, d.y(), d.offset(), d.background(), null, monitor, folds, SPLIT_BITS);
+		return suggest(image, psf, options, monitor, folds, SPLIT_BITS);
 	}
 
-	/** As {@link #suggest(Volume, Volume, DeconvolutionOptions, Monitor)} with one fold and a split of 1 − 2^−bits / 2^−bits (for the scene table). */
+	/** As above with a split of 1 − 2^−bits / 2^−bits (bits 1: halves; other splits need one fold; for the scene table). */
 	public static Result suggest(final Volume image, final Volume psf, final DeconvolutionOptions options, final Monitor monitor, final int folds, final int bits) {
+		if (!options.method().isIterative()) throw new IllegalArgumentException("The held-out stop needs an iterative method");
 		final int[] n = image.shape();
 		final Preprocessing.Psf p = Preprocessing.psf(psf, n);
 		final Preprocessing.Data d = Preprocessing.data(image, options.offset(), options.background());
