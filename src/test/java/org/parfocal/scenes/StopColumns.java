@@ -29,7 +29,6 @@ final class StopColumns {
 	static final double[] WEIGHTS = { 0.0005, 0.001, 0.002, 0.005, 0.01 };
 
 	private static final Map<String, HoldOutStop.Result> SUGGESTIONS = new HashMap<>();
-	private static final Map<String, HoldOutStop.Result> SPLITS = new HashMap<>();
 
 	static DeconvolutionOptions opts(final Scene s, final DeconvolutionMethod m, final double w, final Level b) {
 		return SceneBenchmark.options(s, m, CAP, w, b);
@@ -40,7 +39,12 @@ final class StopColumns {
 	}
 
 	static HoldOutStop.Result held(final Scene s, final DeconvolutionOptions o, final int folds) {
-		return SUGGESTIONS.computeIfAbsent(s.name() + " " + folds + " " + o, k -> HoldOutStop.suggest(s.recording(), s.psf(), o, Monitor.NONE, folds));
+		return held(s, o, folds, HoldOutStop.SPLIT_BITS);
+	}
+
+	/** The held-out stop with a split of 1 − 2^−bits / 2^−bits (made once per scene and options). */
+	static HoldOutStop.Result held(final Scene s, final DeconvolutionOptions o, final int folds, final int bits) {
+		return SUGGESTIONS.computeIfAbsent(s.name() + " " + folds + " " + bits + " " + o, k -> HoldOutStop.suggest(s.recording(), s.psf(), o, Monitor.NONE, folds, bits));
 	}
 
 	static double gain(final Scene s, final double psnr) {
@@ -58,7 +62,11 @@ final class StopColumns {
 	}
 
 	static String heldOut(final Scene s, final SceneRuns r, final DeconvolutionOptions o, final double factor, final int folds) {
-		final HoldOutStop.Result h = held(s, o, folds);
+		return heldOut(s, r, o, factor, folds, HoldOutStop.SPLIT_BITS);
+	}
+
+	static String heldOut(final Scene s, final SceneRuns r, final DeconvolutionOptions o, final double factor, final int folds, final int bits) {
+		final HoldOutStop.Result h = held(s, o, folds, bits);
 		final SceneRuns.Curve c = r.curve(s, o);
 		final int n = Math.max(1, Math.min(CAP, (int) Math.round(factor * h.peak())));
 		return SceneBenchmark.db(gain(s, c.at(n))) + " (" + SceneBenchmark.db(c.at(n) - c.best()) + ", k*=" + h.peak() + (h.interior() ? "" : " edge") + ")";
@@ -112,14 +120,8 @@ final class StopColumns {
 		for (final String bg : List.of("true", "dark"))
 			for (final int bits : new int[] { 1, 2, 3, 4 })
 				for (final double f : new double[] { 1, 1 / (1 - Math.pow(2, -bits)) })
-					cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "split %d bg %s x%.2f", bits, bg, f), (s, r) -> {
-						final DeconvolutionOptions o = opts(s, acc, 0, bg.equals("true") ? SceneBenchmark.trueBackground(s) : SceneBenchmark.darkBackground(s));
-						final HoldOutStop.Result h = SPLITS.computeIfAbsent(s.name() + " " + bits + " " + o,
-								k -> HoldOutStop.suggest(s.recording(), s.psf(), o, Monitor.NONE, 1, bits));
-						final SceneRuns.Curve c = r.curve(s, o);
-						final int n = Math.max(1, Math.min(CAP, (int) Math.round(f * h.peak())));
-						return SceneBenchmark.db(gain(s, c.at(n))) + " (" + SceneBenchmark.db(c.at(n) - c.best()) + ", k*=" + h.peak() + (h.interior() ? "" : " edge") + ")";
-					}));
+					cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "split %d bg %s x%.2f", bits, bg, f), (s, r) -> heldOut(s, r,
+							opts(s, acc, 0, bg.equals("true") ? SceneBenchmark.trueBackground(s) : SceneBenchmark.darkBackground(s)), f, 1, bits)));
 		for (final String bg : List.of("true", "dark", "fit", "fit-smooth"))
 			cols.add(SceneBenchmark.column("bgbest " + bg, (s, r) -> {
 				final Level b = bg.equals("true") ? SceneBenchmark.trueBackground(s) : bg.equals("dark") ? SceneBenchmark.darkBackground(s) : bg.equals("fit") ? Level.FIT : Level.FIT_SMOOTH;
