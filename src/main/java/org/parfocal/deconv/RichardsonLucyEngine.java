@@ -268,6 +268,9 @@ public final class RichardsonLucyEngine {
 		validation = v;
 	}
 
+	/** Log-likelihood per image row (y fastest, then z) of the data the last ratio rows scored (e.g. {@link #logLikelihoodOf}'s). */
+	public double[] logLikelihoodRows() { return w1.clone(); }
+
 	/** Held-out log-likelihood per image row (y fastest, then z) of the iterate the last ratio rows saw. */
 	public double[] heldOutRows() { return w4.clone(); }
 

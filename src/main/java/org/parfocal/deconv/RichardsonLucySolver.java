@@ -79,4 +79,9 @@ final class RichardsonLucySolver {
 	double logLikelihoodOf(final float[] v, final double background) {
 		return engine.logLikelihoodOf(v, background);
 	}
+
+	/** Per image row, the terms of the last {@link #logLikelihoodOf} (y fastest, then z). */
+	double[] rowLogLikelihoods() {
+		return engine.logLikelihoodRows();
+	}
 }
