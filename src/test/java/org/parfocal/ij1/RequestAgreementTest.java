@@ -9,6 +9,7 @@ import java.awt.Choice;
 import java.awt.TextField;
 import java.awt.event.ItemEvent;
 import java.awt.event.ItemListener;
+import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
@@ -17,11 +18,15 @@ import ij.ImagePlus;
 
 import org.junit.jupiter.api.AfterEach;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
 import org.parfocal.beads.Averaging;
 import org.parfocal.beads.BackgroundMode;
 import org.parfocal.command.BeadsKeys;
 import org.parfocal.command.BeadsRequest;
 import org.parfocal.command.BeadsRunner;
+import org.parfocal.command.CompareKeys;
+import org.parfocal.command.CompareRequest;
+import org.parfocal.command.CompareRunner;
 import org.parfocal.command.ConvolveKeys;
 import org.parfocal.command.ConvolveRequest;
 import org.parfocal.command.ConvolveRunner;
@@ -29,6 +34,7 @@ import org.parfocal.command.KeyTable;
 import org.parfocal.conv.Acquisition;
 import org.parfocal.core.Boundary;
 import org.parfocal.core.Monitor;
+import org.parfocal.deconv.Level;
 import org.parfocal.provenance.MacroOptions;
 import org.parfocal.provenance.Provenance;
 import org.parfocal.psf.Modality;
@@ -36,14 +42,19 @@ import org.parfocal.psf.Optics;
 import org.parfocal.testing.ImageJHarness;
 
 /**
- * Convolve with PSF and PSF from Beads described once ({@link ConvolveKeys}, {@link BeadsKeys}): set up in the real
+ * Convolve with PSF, PSF from Beads and Compare with Sharp References described once ({@link ConvolveKeys},
+ * {@link BeadsKeys}, {@link CompareKeys}): set up in the real
  * dialog with every field off its default, the values entered, the line ImageJ's macro Recorder writes, the
  * provenance record and the request read back from the line and from the record ({@link ConvolveRequest#from},
- * {@link BeadsRequest#from}) all ask for the same run, and the pixels made are that request's. The sibling of
+ * {@link BeadsRequest#from}, {@link CompareRequest#from}) all ask for the same run, and the pixels (figures) made are
+ * that request's. The sibling of
  * {@link KeyTableAgreementTest}'s Deconvolve check. Outside reference: ImageJ 1.54's Recorder and its derivation
  * of a recorded key from a dialog label.
  */
 class RequestAgreementTest {
+
+	@TempDir
+	Path dir;
 
 	@AfterEach
 	void closeAll() {
@@ -112,6 +123,47 @@ class RequestAgreementTest {
 		assertArrayEquals(direct.measurement().psf().data(), ImageBridge.toVolume(out, "psf").data(), "the PSF is the entered request's");
 		for (final Map.Entry<String, Object> e : direct.facts().entrySet())
 			assertEquals(String.valueOf(e.getValue()), String.valueOf(record.run().get(e.getKey())), "run fact " + e.getKey());
+	}
+
+	@Test
+	void comparesDialogLineRecordAndRequestAgree() throws Exception {
+		ImageJHarness.assumeDisplay();
+		CompareWithReferencesCommandTest.writeReferences(dir, 2);
+		final ImagePlus res = CompareWithReferencesCommandTest.image(CompareWithReferencesCommandTest.deconvolved(), "result.tif");
+		final ImagePlus rec = CompareWithReferencesCommandTest.image(CompareWithReferencesCommandTest.recording(), "recording.tif");
+		final ImagePlus psf = CompareWithReferencesCommandTest.image(CompareWithReferencesCommandTest.psf(), "psf.tif");
+		final ImagePlus open = CompareWithReferencesCommandTest.image(CompareWithReferencesCommandTest.truth(102), "sharp-open-1.tif");
+		ImageJHarness.open(res, rec, psf, open);
+		final ImageJHarness.Recording recd = ImageJHarness.record(res, "Compare with Sharp References...", dialog -> {
+			final List<Choice> ch = dialog.getChoices().stream().map(Choice.class::cast).toList();
+			pick(ch.get(0), "result.tif");
+			pick(ch.get(1), "recording.tif");
+			pick(ch.get(2), "psf.tif");
+			final List<TextField> str = dialog.getStringFields().stream().map(TextField.class::cast).toList();
+			final String[] texts = { dir.toString(), "sharp-open-*", "100", "5" }; // reference_folder reference_images offset background
+			for (int i = 0; i < texts.length; i++) str.get(i).setText(texts[i]);
+			final List<TextField> num = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
+			final String[] values = { "2", "0.5", "5", "1024", "4", "9" }; // photons read_noise patch_size patches bootstrap seed
+			for (int i = 0; i < values.length; i++) num.get(i).setText(values[i]);
+			final List<Checkbox> box = dialog.getCheckboxes().stream().map(Checkbox.class::cast).toList();
+			box.get(0).setState(true); // ignore_calibration
+			box.get(1).setState(false); // estimate_noise (first shown ticked)
+			box.get(2).setState(true); // match_resolution
+		});
+		final CompareRequest entered = new CompareRequest("result.tif", dir.toString(), "sharp-open-*", "recording.tif", "psf.tif", Level.of(100), Level.of(5), 2,
+				0.5, 5, 1024, 4, 9, true, false, true);
+		final Map<String, String> line = recordedOptions(recd, CompareKeys.MAIN);
+		final ImagePlus plot = recd.result().created().stream().filter(i -> i.getTitle().startsWith("Marginals of")).findFirst().orElseThrow();
+		final Provenance record = ImageProvenance.of(plot).orElseThrow();
+		assertEquals(entered, CompareRequest.from(line), "the recorded line (" + recd.line() + ")");
+		assertEquals(entered, CompareRequest.from(record.options()), "the record");
+		assertEquals(line.keySet(), record.options().keySet(), "the record holds the recorded keys");
+		final List<org.parfocal.core.Volume> refs = ReferenceImages.references(dir.toString(), "sharp-open-*", List.of("result.tif", "recording.tif", "psf.tif"))
+				.stream().map(CompareWithReferences.Reference::volume).toList();
+		final CompareRunner.Outcome direct = CompareRunner.run(entered, ImageBridge.toVolume(res, "r"), refs, ImageBridge.toVolume(rec, "i"),
+				ImageBridge.toVolume(psf, "p"), Monitor.NONE);
+		assertEquals(direct.report().distance(), ((Number) record.run().get("patch_distance")).doubleValue(), 0, "the figures are the entered request's");
+		assertEquals(direct.consistency().meanChiSquare(), ((Number) record.run().get("chi_square")).doubleValue(), 0);
 	}
 
 	/** The recorded line's options, after checking they are table keys in dialog order. */
