@@ -35,7 +35,11 @@ public record BeadsRequest(String image, double boxXY, double boxZ, double beadD
 		if (!(voxelXY >= 0) || !(voxelZ >= 0))
 			throw new IllegalArgumentException("Voxel sizes must be 0 (from the image) or positive µm (voxel_xy=, voxel_z=)");
 		if (!NONE.equals(model)) {
-			ConvolveRequest.parsed("optics", model, PsfModels::get);
+			try {
+				PsfModels.get(model);
+			} catch (final IllegalArgumentException e) {
+				throw new IllegalArgumentException(e.getMessage() + " (optics=)");
+			}
 			if (optics == null) throw new IllegalArgumentException("The optics are missing for the " + model + " model");
 		}
 	}
@@ -50,7 +54,7 @@ public record BeadsRequest(String image, double boxXY, double boxZ, double beadD
 	public static BeadsRequest from(final Map<String, String> options) {
 		final KeyTable.Values v = BeadsKeys.MAIN.read(options);
 		final String model = v.text("optics");
-		final Modality modality = ConvolveRequest.parsed("modality", v.text("modality"), Modality::parse);
+		final Modality modality = v.parsed("modality", Modality::parse);
 		final double na = v.number("na"), ni = v.number("immersion_index"), ns = v.number("sample_index"), depth = v.number("depth");
 		final double emission = v.number("emission"), excitation = v.number("excitation"), pinhole = v.number("pinhole"), sheet = v.number("sheet_thickness");
 		final Optics optics = NONE.equals(model) ? null
@@ -59,8 +63,8 @@ public record BeadsRequest(String image, double boxXY, double boxZ, double beadD
 						.excitationWavelength(modality.usesExcitation() || excitation > 0 ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
 						.sheetThickness(modality == Modality.LIGHT_SHEET || sheet > 0 ? sheet : Double.NaN).build();
 		return new BeadsRequest(v.text("image"), v.number("box_xy"), v.number("box_z"), v.number("bead_diameter"), v.number("threshold"),
-				v.flag("reject_saturated"), v.number("outlier_z"), ConvolveRequest.parsed("background", v.text("background"), BackgroundMode::parse),
-				ConvolveRequest.parsed("averaging", v.text("averaging"), Averaging::parse), v.flag("symmetrize"), v.number("voxel_xy"),
+				v.flag("reject_saturated"), v.number("outlier_z"), v.parsed("background", BackgroundMode::parse),
+				v.parsed("averaging", Averaging::parse), v.flag("symmetrize"), v.number("voxel_xy"),
 				v.number("voxel_z"), model, optics);
 	}
 

@@ -1,7 +1,6 @@
 package org.parfocal.command;
 
 import java.util.Map;
-import java.util.function.Function;
 
 import org.parfocal.conv.Acquisition;
 import org.parfocal.core.Boundary;
@@ -37,7 +36,7 @@ public record ConvolveRequest(String image, String psf, Acquisition.Options acqu
 	 */
 	public static ConvolveRequest from(final Map<String, String> options) {
 		final KeyTable.Values v = ConvolveKeys.MAIN.read(options);
-		final Boundary boundary = parsed("boundary", v.text("boundary"), Boundary::parse);
+		final Boundary boundary = v.parsed("boundary", Boundary::parse);
 		final double background = v.number("background"), photons = v.number("photons"), seed = v.number("seed"), offset = v.number("offset");
 		if (!(background >= 0) || !Double.isFinite(background))
 			throw new IllegalArgumentException("Background must be 0 or more, got " + MacroOptions.number(background) + " (background=)");
@@ -55,14 +54,5 @@ public record ConvolveRequest(String image, String psf, Acquisition.Options acqu
 		return "image=" + MacroOptions.quote(image) + " psf=" + MacroOptions.quote(psf) + " boundary=" + a.boundary().key()
 				+ (a.normalizePsf() ? " normalize" : "") + " background=" + MacroOptions.number(a.background()) + " photons="
 				+ MacroOptions.number(a.photons()) + " seed=" + a.seed() + " offset=" + MacroOptions.number(a.offset()) + (recentre ? " recentre" : "");
-	}
-
-	/** A choice parsed, its error ending with the key. */
-	static <T> T parsed(final String key, final String text, final Function<String, T> parse) {
-		try {
-			return parse.apply(text);
-		} catch (final IllegalArgumentException e) {
-			throw new IllegalArgumentException(e.getMessage() + " (" + key + "=)");
-		}
 	}
 }
