@@ -102,6 +102,15 @@ public record KeyTable(String title, List<Key> keys) {
 			return (int) v;
 		}
 
+		/** A choice's text (or the default) parsed; the parser's one-line error ends with the key. */
+		public <T> T parsed(final String name, final java.util.function.Function<String, T> parse) {
+			try {
+				return parse.apply(text(name));
+			} catch (final IllegalArgumentException e) {
+				throw new IllegalArgumentException(e.getMessage() + " (" + name + "=)");
+			}
+		}
+
 		/** A checkbox: given without a value, or as {@code true}; the default otherwise. */
 		public boolean flag(final String name) {
 			final Key k = table.key(name);

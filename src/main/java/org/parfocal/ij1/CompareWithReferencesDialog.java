@@ -1,14 +1,15 @@
 package org.parfocal.ij1;
 
+import java.util.Map;
+
 import ij.Prefs;
 import ij.gui.GenericDialog;
 
 import org.parfocal.command.CompareKeys;
+import org.parfocal.command.CompareRequest;
 import org.parfocal.command.KeyTable;
-import org.parfocal.deconv.Level;
-import org.parfocal.ij1.CompareWithReferences.Options;
 
-/** Compare with Sharp References' dialog → {@link Options}: fields, labels and first-use defaults from {@link CompareKeys}. */
+/** Compare with Sharp References' dialog → {@link CompareRequest} (through {@link CompareRequest#from}, as a record's replay): fields, labels and first-use defaults from {@link CompareKeys}. */
 final class CompareWithReferencesDialog {
 
 	private static final String PREFS = "parfocal.compare.";
@@ -16,7 +17,7 @@ final class CompareWithReferencesDialog {
 	private CompareWithReferencesDialog() {}
 
 	/** The dialog; in a macro, keys not given take the table's defaults (the folder and pattern are remembered only outside macros). */
-	static Options show() {
+	static CompareRequest show() {
 		final String[] titles = Commands.imageTitles();
 		if (titles.length == 0) throw new IllegalArgumentException("Open the result to judge first");
 		final String[] optional = new String[titles.length + 1];
@@ -44,23 +45,22 @@ final class CompareWithReferencesDialog {
 		gd.addHelp(DialogHelp.compare().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
-		final String result = Commands.checkChoice("result", gd.getNextChoice(), "image title");
-		final String folder = gd.getNextString().trim(), pattern = gd.getNextString().trim();
-		final String input = Commands.checkChoice("input", gd.getNextChoice(), "input (an open image or none)");
-		final String psf = Commands.checkChoice("psf", gd.getNextChoice(), "PSF (an open image or none)");
-		final Level offset = Deconvolve.level("offset", gd.getNextString().trim()), background = Deconvolve.level("background", gd.getNextString().trim());
-		final double photons = Commands.number(gd, "photons"), readNoise = Commands.number(gd, "read_noise");
-		final double size = Commands.number(gd, "patch_size"), patches = Commands.number(gd, "patches"), boot = Commands.number(gd, "bootstrap");
-		final double seed = Commands.number(gd, "seed");
-		final boolean ignore = gd.getNextBoolean(), estimate = gd.getNextBoolean(), match = gd.getNextBoolean();
-		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
-		for (final double v : new double[] { size, patches, boot, seed })
-			if (v != Math.rint(v)) throw new IllegalArgumentException("Patch size, patches, bootstrap and seed must be whole numbers, got " + v);
+		final KeyFields f = new KeyFields(gd, K, PREFS); // read into key → macro text for the one reader of the keys
+		f.readChoice("result", "image title");
+		f.readText("reference_folder");
+		f.readText("reference_images");
+		f.readChoice("input", "input (an open image or none)");
+		f.readChoice("psf", "PSF (an open image or none)");
+		f.readText("offset");
+		f.readText("background");
+		for (final String n : new String[] { "photons", "read_noise", "patch_size", "patches", "bootstrap", "seed" }) f.readNumber(n);
+		for (final String n : new String[] { "ignore_calibration", "estimate_noise", "match_resolution" }) f.readCheckbox(n);
+		final Map<String, String> values = f.values();
+		final CompareRequest r = CompareRequest.from(values);
 		if (!macro) {
-			Prefs.set(PREFS + "folder", folder);
-			Prefs.set(PREFS + "pattern", pattern);
+			Prefs.set(PREFS + "folder", values.get("reference_folder"));
+			Prefs.set(PREFS + "pattern", values.get("reference_images"));
 		}
-		return new Options(result, folder, pattern, input, psf, offset, background, photons, readNoise, (int) size, (int) patches, (int) boot, (long) seed,
-				ignore, estimate, match);
+		return r;
 	}
 }

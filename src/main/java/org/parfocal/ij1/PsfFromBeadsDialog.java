@@ -1,14 +1,16 @@
 package org.parfocal.ij1;
 
+import java.util.Map;
+
 import ij.Prefs;
 import ij.gui.GenericDialog;
 
 import org.parfocal.beads.Averaging;
-import org.parfocal.command.BeadsKeys;
-import org.parfocal.command.KeyTable;
 import org.parfocal.beads.BackgroundMode;
+import org.parfocal.command.BeadsKeys;
+import org.parfocal.command.BeadsRequest;
+import org.parfocal.command.KeyTable;
 import org.parfocal.psf.Modality;
-import org.parfocal.psf.Optics;
 import org.parfocal.psf.PsfModels;
 
 /**
@@ -22,7 +24,7 @@ final class PsfFromBeadsDialog {
 	private PsfFromBeadsDialog() {}
 
 	/** The dialog; null if cancelled. */
-	static PsfFromBeads.Options show() {
+	static BeadsRequest show() {
 		final String[] titles = BeadStackChoices.items(); // recordings first, never RGB
 		if (titles.length == 0)
 			throw new IllegalArgumentException(Commands.imageTitles().length == 0 ? "Open a bead stack first"
@@ -62,43 +64,31 @@ final class PsfFromBeadsDialog {
 		DeconvolveHints.followBeads(gd, PsfFromBeads.NONE); // "0 = from the optics" only when optics are chosen
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
-		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
-		final double boxXY = Commands.number(gd, "box_xy"), boxZ = Commands.number(gd, "box_z"), diameter = Commands.number(gd, "bead_diameter");
-		final double threshold = Commands.number(gd, "threshold");
-		final boolean saturated = gd.getNextBoolean();
-		final double outlier = Commands.number(gd, "outlier_z");
-		final BackgroundMode background = BackgroundMode.parse(Commands.checkChoice("background", gd.getNextChoice(), "background (border or stack)"));
-		final Averaging averaging = Averaging.parse(Commands.checkChoice("averaging", gd.getNextChoice(), "averaging (mean or median)"));
-		final boolean symmetrize = gd.getNextBoolean();
-		final double vxy = Commands.number(gd, "voxel_xy"), vz = Commands.number(gd, "voxel_z");
-		final String model = Commands.checkChoice("optics", gd.getNextChoice(), "optics model (none, " + String.join(", ", PsfModels.keys()) + ")");
-		final Modality modality = Modality.parse(Commands.checkChoice("modality", gd.getNextChoice(), "modality"));
-		final double na = Commands.number(gd, "na"), ni = Commands.number(gd, "immersion_index"), ns = Commands.number(gd, "sample_index");
-		final double depth = Commands.number(gd, "depth"), emission = Commands.number(gd, "emission"), excitation = Commands.number(gd, "excitation");
-		final double pinhole = Commands.number(gd, "pinhole"), sheet = Commands.number(gd, "sheet_thickness");
-		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
-		if (!Commands.isMacro()) {
-			Prefs.set(PREFS + "boxxy", boxXY);
-			Prefs.set(PREFS + "boxz", boxZ);
-			Prefs.set(PREFS + "diameter", diameter);
-			Prefs.set(PREFS + "threshold", threshold);
-			Prefs.set(PREFS + "saturated", saturated);
-			Prefs.set(PREFS + "outlier", outlier);
-			Prefs.set(PREFS + "background", background.key());
-			Prefs.set(PREFS + "averaging", averaging.key());
-			Prefs.set(PREFS + "model", model);
-			Prefs.set(PREFS + "modality", modality.key());
-			Prefs.set(PREFS + "na", na);
-			Prefs.set(PREFS + "ni", ni);
-			Prefs.set(PREFS + "ns", ns);
-			Prefs.set(PREFS + "emission", emission);
-			Prefs.set(PREFS + "excitation", excitation);
-		}
-		final Optics optics = PsfFromBeads.NONE.equals(model) ? null
-				: Optics.builder().modality(modality).na(na).immersionIndex(ni).sampleIndex(ns).depth(depth)
-						.emissionWavelength(modality.usesEmission() || emission > 0 ? emission : Double.NaN)
-						.excitationWavelength(modality.usesExcitation() || excitation > 0 ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
-						.sheetThickness(modality == Modality.LIGHT_SHEET || sheet > 0 ? sheet : Double.NaN).build();
-		return new PsfFromBeads.Options(image, boxXY, boxZ, diameter, threshold, saturated, outlier, background, averaging, symmetrize, vxy, vz, model, optics);
+		// read into key → macro text, then the one reader of the keys (BeadsRequest), as for a record's replay
+		final KeyFields f = new KeyFields(gd, K, PREFS);
+		f.readChoice("image", "image title");
+		for (final String n : new String[] { "box_xy", "box_z", "bead_diameter", "threshold" }) f.readNumber(n);
+		f.readCheckbox("reject_saturated");
+		f.readNumber("outlier_z");
+		f.readChoice("background", "background (border or stack)");
+		f.readChoice("averaging", "averaging (mean or median)");
+		f.readCheckbox("symmetrize");
+		f.readNumber("voxel_xy");
+		f.readNumber("voxel_z");
+		f.readChoice("optics", "optics model (none, " + String.join(", ", PsfModels.keys()) + ")");
+		f.readChoice("modality", "modality");
+		for (final String n : new String[] { "na", "immersion_index", "sample_index", "depth", "emission", "excitation", "pinhole", "sheet_thickness" })
+			f.readNumber(n);
+		final Map<String, String> values = f.values();
+		final BeadsRequest r = BeadsRequest.from(values);
+		if (!Commands.isMacro()) // remembered under their earlier Prefs names
+			for (final String[] p : REMEMBERED) Prefs.set(PREFS + p[1], values.get(p[0]));
+		return r;
 	}
+
+	/** Key → Prefs name (after {@link #PREFS}) of the values remembered outside macros. */
+	private static final String[][] REMEMBERED = { { "box_xy", "boxxy" }, { "box_z", "boxz" }, { "bead_diameter", "diameter" },
+			{ "threshold", "threshold" }, { "reject_saturated", "saturated" }, { "outlier_z", "outlier" }, { "background", "background" },
+			{ "averaging", "averaging" }, { "optics", "model" }, { "modality", "modality" }, { "na", "na" }, { "immersion_index", "ni" },
+			{ "sample_index", "ns" }, { "emission", "emission" }, { "excitation", "excitation" } };
 }

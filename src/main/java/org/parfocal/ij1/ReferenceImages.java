@@ -13,7 +13,7 @@ import ij.gui.YesNoCancelDialog;
 import ij.plugin.frame.Recorder;
 
 import org.parfocal.core.VoxelSize;
-import org.parfocal.ij1.CompareWithReferences.Options;
+import org.parfocal.command.CompareRequest;
 import org.parfocal.ij1.CompareWithReferences.Reference;
 
 /**
@@ -72,7 +72,7 @@ final class ReferenceImages {
 	}
 
 	/** A line naming the first image whose calibration is missing while the others have one, or null. */
-	static String calibrationProblem(final Options o) {
+	static String calibrationProblem(final CompareRequest o) {
 		final ImagePlus in = NONE.equals(o.input()) ? null : Commands.image(o.input(), "input");
 		return calibrationProblem(Commands.image(o.result(), "result"), references(o.referenceFolder(), o.openReferences(), List.of(o.result(), o.input(), o.psf())), in);
 	}

@@ -23,19 +23,7 @@ final class WatchFacts {
 	 * given values when that fails, with a note), else the given values.
 	 */
 	static double[] noise(final Watch w, final Volume recording, final double offset, final List<String> notes) {
-		if (!w.estimateNoise()) return new double[] { w.photons(), w.readNoise() };
-		try {
-			final org.parfocal.core.CameraNoise c = org.parfocal.core.CameraNoise.estimate(recording, offset);
-			final var m = org.parfocal.quality.ReblurConsistency.NoiseModel.fromCamera(c, 0, offset);
-			final String note = String.format(Locale.ROOT, "watch noise model estimated from the recording: %.4g photons per unit, read noise %.4g units",
-					m.photonsPerUnit(), m.readNoise());
-			if (!notes.contains(note)) notes.add(note);
-			return new double[] { m.photonsPerUnit(), m.readNoise() };
-		} catch (final IllegalArgumentException e) {
-			notes.add("watch noise model not estimated (" + e.getMessage() + "): photons=" + MacroOptions.number(w.photons()) + " read_noise="
-					+ MacroOptions.number(w.readNoise()) + " used");
-			return new double[] { w.photons(), w.readNoise() };
-		}
+		return org.parfocal.command.ChiSquareNoise.of(w.estimateNoise(), w.photons(), w.readNoise(), recording, offset, notes);
 	}
 
 	/**

@@ -172,7 +172,7 @@ class CompareWithReferencesCommandTest {
 		final var p = ImageProvenance.of(r.created().stream().filter(i -> i.getTitle().startsWith("Marginals of result")).findFirst().orElseThrow()).orElseThrow();
 		assertTrue(p.options().containsKey("match_resolution"), p.options().toString());
 		final MatchedResolution expected = MatchedResolution.expectedFromPsf(ImageBridge.toCore(psf).first(), VOXEL);
-		assertEquals(ComparisonRun.expectedText(expected, true), p.run().get("expected_resolution"));
+		assertEquals(org.parfocal.command.CompareRunner.expectedText(expected, true), p.run().get("expected_resolution"));
 		final List<Volume> refVolumes = refs.stream().map(i -> ImageBridge.toCore(i).first()).toList();
 		final Volume result = ImageBridge.toCore(res).first(), input = ImageBridge.toCore(rec).first();
 		final ReferenceComparison.Report matched = ReferenceComparison.compare(result, refVolumes, input, coreOptions().withResolution(expected), Monitor.NONE);
@@ -182,12 +182,8 @@ class CompareWithReferencesCommandTest {
 		assertEquals(matched.notes(), p.warnings(), "the references' notes are the record's warnings");
 	}
 
-	private static CompareWithReferences.Options parse(final String opts) {
-		final var m = MacroOptions.parse(opts);
-		return new CompareWithReferences.Options(m.get("result"), m.get("references"), m.get("open_references"), m.get("input"), m.get("psf"),
-				Deconvolve.level("offset", m.get("offset")), Deconvolve.level("background", m.get("background")), Double.parseDouble(m.get("photons")),
-				Double.parseDouble(m.get("read_noise")), Integer.parseInt(m.get("patch_size")), Integer.parseInt(m.get("patches")),
-				Integer.parseInt(m.get("bootstrap")), Long.parseLong(m.get("seed")), m.containsKey("ignore_calibration"));
+	private static org.parfocal.command.CompareRequest parse(final String opts) {
+		return org.parfocal.command.CompareRequest.from(MacroOptions.parse(opts)); // old key names read too
 	}
 
 	@Test
