@@ -30,7 +30,9 @@ public final class MacroFunctions {
 	public static String selectTable(final String title) {
 		final ResultsTable rt = Tables.find(title);
 		if (rt == null) {
-			final String msg = "No Parfocal table called '" + title + "' (a command's table title, or an image that carries one)";
+			final java.util.List<String> kept = Tables.keptTitles();
+			final String msg = "No Parfocal table called '" + title + "' (a command's table title, or an image that carries one)"
+					+ (kept.isEmpty() ? "; no command has made a table yet" : "; the tables now: '" + String.join("', '", kept) + "'");
 			Commands.fail("selectTable", msg); // one line, and the macro stops
 			return "";
 		}

@@ -59,6 +59,13 @@ public final class Tables {
 		return imp == null ? null : of(imp);
 	}
 
+	/** Titles of the tables kept for macros, the most recent last. */
+	static java.util.List<String> keptTitles() {
+		synchronized (TABLES) {
+			return java.util.List.copyOf(TABLES.keySet());
+		}
+	}
+
 	/** The table stored in an image's properties, or null. */
 	public static ResultsTable of(final ImagePlus imp) {
 		final String text = imp.getProp(PROPERTY);

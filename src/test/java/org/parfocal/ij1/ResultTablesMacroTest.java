@@ -178,4 +178,16 @@ class ResultTablesMacroTest {
 		assertTrue(!e.getMessage().contains("\n"), "one line");
 	}
 
+	@Test
+	void anUnknownTableNamesTheTablesThereAre() {
+		// a title with the ".tif" the comparison table's title leaves out, say: the line lists the tables there are
+		final String macro = "run(\"PSF from Optics...\", \"model=gaussian modality=widefield na=1.2 immersion_index=1.33 sample_index=1.33 emission=0.52 "
+				+ "voxel_xy=0.08 voxel_z=0.2 size_xy=11 size_z=7\");\n" + SELECT + "\"PSF FWHM.tif\");";
+		final org.parfocal.testing.ImageJCommandException e = org.junit.jupiter.api.Assertions.assertThrows(org.parfocal.testing.ImageJCommandException.class,
+				() -> ImageJHarness.runMacro(macro, null));
+		assertTrue(e.getMessage().contains("No Parfocal table called 'PSF FWHM.tif'") && e.getMessage().contains("the tables now: ")
+				&& e.getMessage().contains("'PSF FWHM'"), e.getMessage());
+		assertTrue(!e.getMessage().contains("\n"), "one line");
+	}
+
 }
