@@ -99,9 +99,35 @@ public final class BeadPsf {
 	 * voxel sizes), through its brightest voxel: what the measured average should be compared with.
 	 */
 	public static double[] modelFwhm(final String model, final Optics optics, final Volume psf) {
-		final VoxelSize v = psf.voxelSize();
-		final Volume m = PsfModels.get(model).compute(optics, PsfGrid.of(psf.nx(), psf.ny(), psf.nz(), v));
+		return fwhm(model(model, optics, psf));
+	}
+
+	/** The optics model on the measured PSF's grid (the grid's calibration, centred on its centre voxel). */
+	public static Volume model(final String model, final Optics optics, final Volume psf) {
+		return PsfModels.get(model).compute(optics, PsfGrid.of(psf.nx(), psf.ny(), psf.nz(), psf.voxelSize()));
+	}
+
+	/** FWHM (µm, x y z; z NaN in 2D) of a PSF through its peak. */
+	public static double[] fwhm(final Volume m) {
 		return new double[] { Fwhm.lateral(m), Fwhm.lateralY(m), m.nz() > 1 ? Fwhm.axial(m) : Double.NaN };
+	}
+
+	/**
+	 * Share of a PSF's light (of its sum) farther than {@code radius} µm from the axis through its centre voxel, all
+	 * planes together. A flat level left under the beads (a background the estimate missed) puts light everywhere in
+	 * the box, so it shows here next to an optics model's share.
+	 */
+	public static double outerShare(final Volume psf, final double radius) {
+		final double dx = psf.voxelSize().dx() * PsfGrid.micronsPer(psf.voxelSize()), dy = psf.voxelSize().dy() * PsfGrid.micronsPer(psf.voxelSize());
+		final int nx = psf.nx(), ny = psf.ny(), cx = (nx - 1) / 2, cy = (ny - 1) / 2;
+		final float[] d = psf.data();
+		double out = 0, all = 0;
+		for (int i = 0; i < d.length; i++) {
+			final int x = i % nx, y = (i / nx) % ny;
+			all += d[i];
+			if (Math.hypot((x - cx) * dx, (y - cy) * dy) > radius) out += d[i];
+		}
+		return all > 0 ? out / all : Double.NaN;
 	}
 
 	/**

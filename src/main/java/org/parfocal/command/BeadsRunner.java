@@ -23,6 +23,9 @@ public final class BeadsRunner {
 
 	private BeadsRunner() {}
 
+	/** How far (share of the light) the measured PSF's outer light may exceed the model's before a warning. */
+	static final double PEDESTAL_MARGIN = 0.10;
+
 	/**
 	 * What a run made.
 	 *
@@ -31,8 +34,12 @@ public final class BeadsRunner {
 	 * @param voxelSize the voxel size the recording was measured with
 	 * @param is3D true for a z-stack
 	 * @param bitDepth the recording's bit depth, as given
+	 * @param outer {radius (µm), the measured PSF's share of light beyond it from the axis, the model's (NaN without
+	 *        optics)}: the radius is 2 lateral FWHM of the model, or of the measurement without optics
+	 * @param pedestal the warning that the measured PSF holds much more light far from the axis than the model, or null
 	 */
-	public record Outcome(BeadPsf.Result measurement, double[] modelFwhm, VoxelSize voxelSize, boolean is3D, int bitDepth) {
+	public record Outcome(BeadPsf.Result measurement, double[] modelFwhm, VoxelSize voxelSize, boolean is3D, int bitDepth, double[] outer,
+			String pedestal) {
 
 		/** The run facts for the record, in order. */
 		public Map<String, Object> facts() {
@@ -58,6 +65,9 @@ public final class BeadsRunner {
 				f.put("model_fwhm_y_um", modelFwhm[1]);
 				if (is3D) f.put("model_fwhm_z_um", modelFwhm[2]);
 			}
+			f.put("outer_light_radius_um", outer[0]);
+			f.put("outer_light_share", outer[1]);
+			if (!Double.isNaN(outer[2])) f.put("model_outer_light_share", outer[2]);
 			return f;
 		}
 
@@ -68,9 +78,11 @@ public final class BeadsRunner {
 					m.fwhm()[0], m.fwhm()[1], is3D ? String.format(Locale.ROOT, " x %.3f", m.fwhm()[2]) : "");
 		}
 
-		/** The measurement's warnings. */
+		/** The measurement's warnings, then the pedestal warning. */
 		public List<String> warnings() {
-			return List.copyOf(measurement.warnings());
+			final List<String> w = new java.util.ArrayList<>(measurement.warnings());
+			if (pedestal != null) w.add(pedestal);
+			return List.copyOf(w);
 		}
 	}
 
@@ -101,7 +113,17 @@ public final class BeadsRunner {
 		final BeadOptions bo = new BeadOptions(boxXY, boxZ, o.beadDiameter(), o.threshold(), o.rejectSaturated(), bitDepth == 24 ? 32 : bitDepth, o.outlierZ(),
 				o.background(), o.averaging(), o.symmetrize());
 		final BeadPsf.Result m = BeadPsf.measure(in, bo, monitor);
-		final double[] model = o.optics() == null ? null : BeadPsf.modelFwhm(o.model(), o.optics(), m.psf());
-		return new Outcome(m, model, in.voxelSize(), is3D, bitDepth);
+		final Volume modelPsf = o.optics() == null ? null : BeadPsf.model(o.model(), o.optics(), m.psf());
+		final double[] model = modelPsf == null ? null : BeadPsf.fwhm(modelPsf);
+		final double radius = 2 * (model != null ? model[0] : m.fwhm()[0]);
+		final double[] outer = { radius, BeadPsf.outerShare(m.psf(), radius), modelPsf == null ? Double.NaN : BeadPsf.outerShare(modelPsf, radius) };
+		// a flat level under the beads that the background estimate missed spreads light over the whole box, which
+		// no optics model does; 10 points above the model's share is far beyond the noise of a few averaged beads
+		final String pedestal = outer[1] > outer[2] + PEDESTAL_MARGIN ? String.format(Locale.ROOT,
+				"%.0f %% of the measured PSF's light lies farther than %.3g µm (2 model FWHM) from its axis, against %.0f %% for the %s model: "
+						+ "a flat level under the beads was left in (a background higher than the estimate, or light of neighbours); "
+						+ "try background=border or a smaller box_xy, and check the background around the beads",
+				100 * outer[1], radius, 100 * outer[2], o.model()) : null;
+		return new Outcome(m, model, in.voxelSize(), is3D, bitDepth, outer, pedestal);
 	}
 }
