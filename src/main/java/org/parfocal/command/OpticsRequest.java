@@ -1,6 +1,7 @@
 package org.parfocal.command;
 
 import org.parfocal.core.Volume;
+import org.parfocal.provenance.MacroOptions;
 import org.parfocal.psf.Modality;
 import org.parfocal.psf.Optics;
 import org.parfocal.psf.PsfGrid;
@@ -43,5 +44,21 @@ public record OpticsRequest(String model, Optics optics, double voxelXY, double 
 	/** Computes the PSF (µm, unit sum, centred). */
 	public Volume compute() {
 		return PsfModels.get(model).compute(optics, grid());
+	}
+
+	/** The optics dialog's part of a recorded line, in dialog order as the Recorder writes it (a field not set is 0). */
+	public String macroOptions() {
+		final Optics o = optics;
+		return "model=" + model + " modality=" + o.modality().key() + " na=" + n(o.na()) + " immersion_index=" + n(o.immersionIndex())
+				+ " sample_index=" + n(o.sampleIndex()) + " coverslip_index=" + n(o.coverslipIndex()) + " coverslip_thickness="
+				+ n(o.coverslipThickness()) + " depth=" + n(o.depth()) + " immersion_index_design=" + n(o.immersionIndexDesign())
+				+ " coverslip_index_design=" + n(o.coverslipIndexDesign()) + " coverslip_thickness_design=" + n(o.coverslipThicknessDesign())
+				+ " working_distance=" + n(o.workingDistance()) + " emission=" + n(o.emissionWavelength()) + " excitation="
+				+ n(o.excitationWavelength()) + " pinhole=" + n(o.pinholeAiryUnits()) + " sheet_thickness=" + n(o.sheetThickness())
+				+ " voxel_xy=" + n(voxelXY) + " voxel_z=" + n(voxelZ) + " size_xy=" + sizeXY + " size_z=" + sizeZ;
+	}
+
+	private static String n(final double v) {
+		return Double.isNaN(v) ? "0" : MacroOptions.number(v);
 	}
 }
