@@ -20,18 +20,21 @@ public record OpticsRequest(String model, Optics optics, double voxelXY, double 
 		if (sizeXY < 0 || sizeZ < 0) throw new IllegalArgumentException("Sizes must be 0 (from the optics) or positive odd numbers");
 	}
 
-	/** The optics keys of a run (defaults from {@link DeconvolveKeys#OPTICS} for those not given). */
+	/**
+	 * The optics keys of a run (defaults from {@link DeconvolveKeys#OPTICS} for those not given), as the optics dialog
+	 * reads them: a wavelength or sheet thickness the modality ignores is kept when positive, so it is recorded as entered.
+	 */
 	public static OpticsRequest from(final KeyTable.Values v) {
 		final Modality modality = Modality.parse(v.text("modality"));
-		final double emission = v.number("emission"), excitation = v.number("excitation");
+		final double emission = v.number("emission"), excitation = v.number("excitation"), sheet = v.number("sheet_thickness");
 		final Optics optics = Optics.builder().modality(modality).na(v.number("na")).immersionIndex(v.number("immersion_index"))
 				.immersionIndexDesign(v.number("immersion_index_design")).sampleIndex(v.number("sample_index"))
 				.coverslipIndex(v.number("coverslip_index")).coverslipIndexDesign(v.number("coverslip_index_design"))
 				.coverslipThickness(v.number("coverslip_thickness")).coverslipThicknessDesign(v.number("coverslip_thickness_design"))
 				.workingDistance(v.number("working_distance")).depth(v.number("depth"))
 				.emissionWavelength(modality.usesEmission() || emission > 0 ? emission : Double.NaN)
-				.excitationWavelength(modality.usesExcitation() ? excitation : Double.NaN).pinholeAiryUnits(v.number("pinhole"))
-				.sheetThickness(modality == Modality.LIGHT_SHEET ? v.number("sheet_thickness") : Double.NaN).build();
+				.excitationWavelength(modality.usesExcitation() || excitation > 0 ? excitation : Double.NaN).pinholeAiryUnits(v.number("pinhole"))
+				.sheetThickness(modality == Modality.LIGHT_SHEET || sheet > 0 ? sheet : Double.NaN).build();
 		return new OpticsRequest(v.text("model"), optics, v.number("voxel_xy"), v.number("voxel_z"), v.whole("size_xy"), v.whole("size_z"));
 	}
 
