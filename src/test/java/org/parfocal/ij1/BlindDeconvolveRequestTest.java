@@ -86,6 +86,32 @@ class BlindDeconvolveRequestTest {
 		}
 	}
 
+	/**
+	 * Watch mode with {@code stop_at_suggestion} (a line with the watch keys' old names): the menu and the request
+	 * path with the same references and watch return the same suggested iterate, line and facts. Written after the
+	 * menu path had become the runner's, so it checks the translation of the watch, not the old code.
+	 */
+	@Test
+	void watchModeGivesTheSameSuggestedIterate() {
+		final String options = BlindDeconvolveCommandTest.WATCH + " stop_at_suggestion";
+		final ImagePlus img = DeconvolveCommandTest.dimRecorded("cell.tif");
+		final ImagePlus[] refs = DeconvolveCommandTest.sharpReferences();
+		ImageJHarness.open(img, refs[0], refs[1], refs[2]);
+		final BlindRequest request = BlindRequest.from(MacroOptions.parse(options));
+		final Volume image = ImageBridge.toCore(img).first();
+		final Deconvolve.Watch w = Deconvolve.Watch.of(request.watch());
+		final BlindRunner.Outcome viaRequest = Commands.withImageJThreads(() -> BlindRunner.run(request, image, null, null,
+				(o, notes) -> BlindDeconvolve.watch(w, image, o, CompareWithReferences.references(w.referenceFolder(), w.openReferences(), List.of("cell.tif")),
+						Monitor.NONE, notes), Monitor.NONE));
+		final ImagePlus object = created(ImageJHarness.run(img, CMD, options), "cell-blind.tif");
+		same(ImageBridge.toCore(object).first().data(), viaRequest.object().data(), "watch: object");
+		final Provenance record = ImageProvenance.of(object).orElseThrow();
+		assertEquals(ImageJHarness.parseRunLine(record.macro())[1], request.macroOptions(), "the recorded line");
+		assertEquals((long) viaRequest.watch().suggestion().iteration(), record.run().get("returned_iteration"));
+		for (final Map.Entry<String, Object> e : viaRequest.facts(request.iterations()).entrySet())
+			assertEquals(String.valueOf(e.getValue()), String.valueOf(record.run().get(e.getKey())), "run fact " + e.getKey());
+	}
+
 	private static ImagePlus created(final ImageJHarness.Result r, final String title) {
 		final ImagePlus imp = r.created().stream().filter(i -> i.getTitle().equals(title)).findFirst().orElse(null);
 		assertNotNull(imp, title + " among " + r.created());
