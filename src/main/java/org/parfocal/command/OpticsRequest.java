@@ -1,6 +1,7 @@
 package org.parfocal.command;
 
 import org.parfocal.core.Volume;
+import org.parfocal.provenance.MacroOptions;
 import org.parfocal.psf.Modality;
 import org.parfocal.psf.Optics;
 import org.parfocal.psf.PsfGrid;
@@ -19,18 +20,21 @@ public record OpticsRequest(String model, Optics optics, double voxelXY, double 
 		if (sizeXY < 0 || sizeZ < 0) throw new IllegalArgumentException("Sizes must be 0 (from the optics) or positive odd numbers");
 	}
 
-	/** The optics keys of a run (defaults from {@link DeconvolveKeys#OPTICS} for those not given). */
+	/**
+	 * The optics keys of a run (defaults from {@link DeconvolveKeys#OPTICS} for those not given), as the optics dialog
+	 * reads them: a wavelength or sheet thickness the modality ignores is kept when positive, so it is recorded as entered.
+	 */
 	public static OpticsRequest from(final KeyTable.Values v) {
 		final Modality modality = Modality.parse(v.text("modality"));
-		final double emission = v.number("emission"), excitation = v.number("excitation");
+		final double emission = v.number("emission"), excitation = v.number("excitation"), sheet = v.number("sheet_thickness");
 		final Optics optics = Optics.builder().modality(modality).na(v.number("na")).immersionIndex(v.number("immersion_index"))
 				.immersionIndexDesign(v.number("immersion_index_design")).sampleIndex(v.number("sample_index"))
 				.coverslipIndex(v.number("coverslip_index")).coverslipIndexDesign(v.number("coverslip_index_design"))
 				.coverslipThickness(v.number("coverslip_thickness")).coverslipThicknessDesign(v.number("coverslip_thickness_design"))
 				.workingDistance(v.number("working_distance")).depth(v.number("depth"))
 				.emissionWavelength(modality.usesEmission() || emission > 0 ? emission : Double.NaN)
-				.excitationWavelength(modality.usesExcitation() ? excitation : Double.NaN).pinholeAiryUnits(v.number("pinhole"))
-				.sheetThickness(modality == Modality.LIGHT_SHEET ? v.number("sheet_thickness") : Double.NaN).build();
+				.excitationWavelength(modality.usesExcitation() || excitation > 0 ? excitation : Double.NaN).pinholeAiryUnits(v.number("pinhole"))
+				.sheetThickness(modality == Modality.LIGHT_SHEET || sheet > 0 ? sheet : Double.NaN).build();
 		return new OpticsRequest(v.text("model"), optics, v.number("voxel_xy"), v.number("voxel_z"), v.whole("size_xy"), v.whole("size_z"));
 	}
 
@@ -43,5 +47,21 @@ public record OpticsRequest(String model, Optics optics, double voxelXY, double 
 	/** Computes the PSF (µm, unit sum, centred). */
 	public Volume compute() {
 		return PsfModels.get(model).compute(optics, grid());
+	}
+
+	/** The optics dialog's part of a recorded line, in dialog order as the Recorder writes it (a field not set is 0). */
+	public String macroOptions() {
+		final Optics o = optics;
+		return "model=" + model + " modality=" + o.modality().key() + " na=" + n(o.na()) + " immersion_index=" + n(o.immersionIndex())
+				+ " sample_index=" + n(o.sampleIndex()) + " coverslip_index=" + n(o.coverslipIndex()) + " coverslip_thickness="
+				+ n(o.coverslipThickness()) + " depth=" + n(o.depth()) + " immersion_index_design=" + n(o.immersionIndexDesign())
+				+ " coverslip_index_design=" + n(o.coverslipIndexDesign()) + " coverslip_thickness_design=" + n(o.coverslipThicknessDesign())
+				+ " working_distance=" + n(o.workingDistance()) + " emission=" + n(o.emissionWavelength()) + " excitation="
+				+ n(o.excitationWavelength()) + " pinhole=" + n(o.pinholeAiryUnits()) + " sheet_thickness=" + n(o.sheetThickness())
+				+ " voxel_xy=" + n(voxelXY) + " voxel_z=" + n(voxelZ) + " size_xy=" + sizeXY + " size_z=" + sizeZ;
+	}
+
+	private static String n(final double v) {
+		return Double.isNaN(v) ? "0" : MacroOptions.number(v);
 	}
 }

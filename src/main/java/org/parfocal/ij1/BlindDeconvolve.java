@@ -13,9 +13,10 @@ import ij.measure.ResultsTable;
 import ij.plugin.PlugIn;
 
 import org.parfocal.blind.BlindDeconvolution;
+import org.parfocal.command.BlindRequest;
+import org.parfocal.command.BlindRunner;
 import org.parfocal.blind.BlindOptions;
 import org.parfocal.blind.BlindResult;
-import org.parfocal.blind.FitPlan;
 import org.parfocal.blind.PsfSnapshot;
 import org.parfocal.core.Hyperstack;
 import org.parfocal.core.Volume;
@@ -55,26 +56,22 @@ import org.parfocal.quality.StoppingRule;
  * history, table and convergence plot still cover the whole run. The rule, suggestion and curve go into the
  * provenance.
  * <p>
- * The parts: {@link BlindDeconvolveOptions} (what the dialogs decide, the recorded line), {@link BlindDeconvolveDialog}
- * (the dialogs), {@link BlindStartPsf} (the core options: starting PSF, support box, optics) and {@link BlindOutputs}
- * (history, table, plot, provenance).
+ * This class only translates: dialogs or macro options → {@link BlindRequest} (the one reader of the keys and the
+ * recorded line; {@link BlindDeconvolveDialog} shows the dialogs), images ↔ volumes, the references of watch mode,
+ * and the outputs with their record ({@link BlindOutputs}: history, table, plot, provenance); {@link BlindRunner}
+ * runs it (starting PSF, support box, band-limit optics, {@link BlindDeconvolution}).
  */
 public class BlindDeconvolve implements PlugIn {
 
 	static final String COMMAND = "Blind Deconvolve";
-	/** Starting-PSF choices besides the open images. */
-	public static final String FROM_OPTICS = Deconvolve.FROM_OPTICS, GAUSSIAN = "gaussian";
-	/**
-	 * Values of {@code estimate=}: free-form updates (the behaviour of macros recorded before the key), a model fit,
-	 * a model fit then a trust-region refinement; the two widefield words fit a Gaussian start as a widefield shape
-	 * (Born &amp; Wolf of the start's widths, which holds the out-of-focus cone a Gaussian lacks; the plain fit words
-	 * keep fitting a Gaussian, as recorded lines did).
-	 */
-	public static final String FREE_FORM = "free-form", MODEL_FIT = "model-fit", MODEL_FIT_REFINED = "model-fit-refined",
-			WIDEFIELD_FIT = "widefield-fit", WIDEFIELD_FIT_REFINED = "widefield-fit-refined";
-	static final List<String> ESTIMATES = List.of(FREE_FORM, MODEL_FIT, MODEL_FIT_REFINED, WIDEFIELD_FIT, WIDEFIELD_FIT_REFINED);
+	/** Starting-PSF choices besides the open images ({@link BlindRequest}'s). */
+	public static final String FROM_OPTICS = BlindRequest.FROM_OPTICS, GAUSSIAN = BlindRequest.GAUSSIAN;
+	/** Values of {@code estimate=} ({@link BlindRequest#ESTIMATES}). */
+	public static final String FREE_FORM = BlindRequest.FREE_FORM, MODEL_FIT = BlindRequest.MODEL_FIT, MODEL_FIT_REFINED = BlindRequest.MODEL_FIT_REFINED,
+			WIDEFIELD_FIT = BlindRequest.WIDEFIELD_FIT, WIDEFIELD_FIT_REFINED = BlindRequest.WIDEFIELD_FIT_REFINED;
+	static final List<String> ESTIMATES = BlindRequest.ESTIMATES;
 	/** Units of the support box. */
-	public static final String VOXELS = "voxels", MICRONS = "microns";
+	public static final String VOXELS = BlindRequest.VOXELS, MICRONS = BlindRequest.MICRONS;
 	static final String PREFS = "parfocal.blind.";
 
 	/**
@@ -92,7 +89,7 @@ public class BlindDeconvolve implements PlugIn {
 	@Override
 	public void run(final String arg) {
 		Commands.run(COMMAND, org.parfocal.command.CommandKeys.BLIND_DECONVOLVE, () -> {
-			BlindDeconvolveOptions o = BlindDeconvolveDialog.show();
+			BlindRequest o = BlindDeconvolveDialog.show();
 			if (o == null) throw Commands.cancelled();
 			if (o.watch() != null && !o.watch().ignoreCalibration()) {
 				final String problem = CompareWithReferences.calibrationProblem(Commands.image(o.image(), "image"),
@@ -115,8 +112,8 @@ public class BlindDeconvolve implements PlugIn {
 		});
 	}
 
-	/** Runs the blind deconvolution; returns the new images, table and plot (not shown). */
-	public static Output run(final BlindDeconvolveOptions o) {
+	/** Runs the blind deconvolution ({@link BlindRunner}); returns the new images, table and plot (not shown). */
+	public static Output run(final BlindRequest o) {
 		final long t0 = System.nanoTime();
 		final ImagePlus imp = Commands.image(o.image(), "image");
 		if (imp.getNChannels() > 1 || imp.getNFrames() > 1)
@@ -124,44 +121,41 @@ public class BlindDeconvolve implements PlugIn {
 					+ " frames; blind deconvolution takes one of each: pick one with Image > Duplicate...");
 		final Volume image = ImageBridge.toVolume(imp, "The image");
 		final ImagePlus psfImp = FROM_OPTICS.equals(o.psf()) || GAUSSIAN.equals(o.psf()) ? null : Commands.image(o.psf(), "starting PSF");
-		final List<String> notes = new ArrayList<>();
-		final BlindOptions options = BlindStartPsf.blindOptions(o, image, psfImp, notes);
-		options.checkFor(image);
 		final IjMonitor monitor = new IjMonitor(COMMAND);
-		final Deconvolve.Watch w = o.watch();
-		final List<CompareWithReferences.Reference> refs = w == null ? List.of()
-				: CompareWithReferences.references(w.referenceFolder(), w.openReferences(), List.of(o.image(), o.psf()));
-		if (w != null && !w.ignoreCalibration()) {
-			final String problem = CompareWithReferences.calibrationProblem(imp, refs, null);
-			if (problem != null) throw new IllegalArgumentException(problem + ": calibrate it, or add ignore_calibration to compare voxel for voxel");
-		}
-		final BlindQualityWatch watch = w == null ? null : Commands.withImageJThreads(() -> watch(w, image, options, refs, monitor, notes));
-		final FitPlan plan = o.plan();
-		final BlindResult r = Commands.withImageJThreads(() -> BlindDeconvolution.run(image, options, plan, monitor, watch));
-		for (final String note : r.notes()) if (!notes.contains(note)) notes.add(note);
-		final boolean best = watch != null && w.stopAtSuggestion() && watch.best() != null;
-		final Volume estimate = best ? watch.best() : r.estimate(), finalPsf = best ? watch.bestPsf() : r.psf();
+		final Deconvolve.Watch w = o.watch() == null ? null : Deconvolve.Watch.of(o.watch());
+		final List<List<CompareWithReferences.Reference>> refs = new ArrayList<>(List.of(List.of()));
+		final BlindRunner.WatchMaker maker = w == null ? null : (options, notes) -> {
+			refs.set(0, CompareWithReferences.references(w.referenceFolder(), w.openReferences(), List.of(o.image(), o.psf())));
+			if (!w.ignoreCalibration()) {
+				final String problem = CompareWithReferences.calibrationProblem(imp, refs.get(0), null);
+				if (problem != null) throw new IllegalArgumentException(problem + ": calibrate it, or add ignore_calibration to compare voxel for voxel");
+			}
+			return watch(w, image, options, refs.get(0), monitor, notes);
+		};
+		final BlindRunner.Outcome run = Commands.withImageJThreads(() -> BlindRunner.run(o, image, psfImp == null ? null : ImageBridge.toCore(psfImp),
+				psfImp == null ? null : psfImp.getTitle(), maker, monitor));
+		final BlindResult r = run.result();
 
 		final String base = ConvolveWithPsf.stripExtension(imp.getTitle());
 		final Calibration cal = imp.getCalibration();
-		final ImagePlus out = ImageBridge.toImagePlus(Hyperstack.of(estimate), WindowManager.makeUniqueName(base + "-blind.tif"), cal);
-		final ImagePlus psf = ImageBridge.toImagePlus(Hyperstack.of(finalPsf), WindowManager.makeUniqueName(base + "-blind-psf.tif"), cal);
+		final ImagePlus out = ImageBridge.toImagePlus(Hyperstack.of(run.object()), WindowManager.makeUniqueName(base + "-blind.tif"), cal);
+		final ImagePlus psf = ImageBridge.toImagePlus(Hyperstack.of(run.psf()), WindowManager.makeUniqueName(base + "-blind-psf.tif"), cal);
 		final ImagePlus history = BlindOutputs.history(r.snapshots(), WindowManager.makeUniqueName(base + "-blind-psf-history.tif"), cal);
 		final String unit = cal != null && cal.scaled() ? cal.getUnits() : "voxels";
 		final ResultsTable table = BlindOutputs.table(r, unit);
 		Tables.attach(history, table); // kept with the history, saved in its TIFF
 		final Plot plot = BlindOutputs.plot(r.snapshots(), "PSF convergence of " + base);
 
-		for (final String note : notes) IJ.log(COMMAND + ": " + note);
-		final var prov = BlindOutputs.provenance(o, imp, psfImp, image.nz() > 1, r, watch, refs, notes);
+		for (final String note : run.notes()) IJ.log(COMMAND + ": " + note);
+		final var prov = BlindOutputs.provenance(o, imp, psfImp, run, w, refs.get(0));
 		final PsfSnapshot last = r.snapshots().get(r.snapshots().size() - 1);
 		ImageProvenance.attach(out, prov.run("output", "deblurred image"), t0);
 		ImageProvenance.attach(psf, prov.run("output", "final PSF"), t0);
 		ImageProvenance.attach(history, prov.run("output", "PSF history, one frame per snapshot"), t0);
 		monitor.done(String.format(Locale.ROOT, "%d iteration(s), %.1f s, PSF FWHM %s%s %s", o.iterations(), (System.nanoTime() - t0) / 1e9,
 				fmt(last.fwhmLateral()), image.nz() > 1 ? " x " + fmt(last.fwhmAxial()) : "", unit));
-		final Plot quality = watch == null ? null : DeconvolvePlots.quality(List.of(watch), out.getTitle(), "Outer iteration", "chi-square (current PSF)");
-		return new Output(out, psf, history, table, plot, r, quality, watch);
+		final Plot quality = run.watch() == null ? null : DeconvolvePlots.quality(List.of(run.watch()), out.getTitle(), "Outer iteration", "chi-square (current PSF)");
+		return new Output(out, psf, history, table, plot, r, quality, run.watch());
 	}
 
 	/**

@@ -1,13 +1,14 @@
 package org.parfocal.ij1;
 
-import static org.parfocal.ij1.BlindDeconvolve.ESTIMATES;
-import static org.parfocal.ij1.BlindDeconvolve.FREE_FORM;
-import static org.parfocal.ij1.BlindDeconvolve.FROM_OPTICS;
-import static org.parfocal.ij1.BlindDeconvolve.GAUSSIAN;
-import static org.parfocal.ij1.BlindDeconvolve.MICRONS;
+import static org.parfocal.command.BlindRequest.ESTIMATES;
+import static org.parfocal.command.BlindRequest.FREE_FORM;
+import static org.parfocal.command.BlindRequest.FROM_OPTICS;
+import static org.parfocal.command.BlindRequest.GAUSSIAN;
+import static org.parfocal.command.BlindRequest.MICRONS;
 import static org.parfocal.ij1.BlindDeconvolve.PREFS;
-import static org.parfocal.ij1.BlindDeconvolve.VOXELS;
+import static org.parfocal.command.BlindRequest.VOXELS;
 
+import java.util.LinkedHashMap;
 import java.util.Map;
 
 import ij.Prefs;
@@ -15,9 +16,10 @@ import ij.WindowManager;
 import ij.gui.GenericDialog;
 
 import org.parfocal.command.BlindKeys;
+import org.parfocal.command.BlindRequest;
 import org.parfocal.command.KeyTable;
 import org.parfocal.deconv.EdgeMode;
-import org.parfocal.deconv.Level;
+import org.parfocal.provenance.MacroOptions;
 
 /**
  * Blind Deconvolve's dialogs: the main one (labels' first words are the macro keys), then PSF from Optics' dialog
@@ -30,7 +32,7 @@ final class BlindDeconvolveDialog {
 
 
 	/** The main dialog, then the optics, band-limit or watch dialog it asks for; null if one was cancelled. */
-	static BlindDeconvolveOptions show() {
+	static BlindRequest show() {
 		final String[] titles = Commands.imageTitles();
 		if (titles.length == 0) throw new IllegalArgumentException("Open the image to deconvolve first");
 		final String imageDefault = Commands.currentNonPsfTitle(titles);
@@ -64,62 +66,42 @@ final class BlindDeconvolveDialog {
 		BlindHints.follow(gd);
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
-		final String image = Commands.checkChoice("image", gd.getNextChoice(), "image title");
-		final String psf = Commands.checkChoice("psf", gd.getNextChoice(), "starting PSF (an open image, " + FROM_OPTICS + " or " + GAUSSIAN + ")");
-		final double fwhmXY = Commands.number(gd, "fwhm_xy"), fwhmZ = Commands.number(gd, "fwhm_z");
-		final double iterations = Commands.number(gd, "iterations"), k = Commands.number(gd, "object_updates"), m = Commands.number(gd, "psf_updates");
-		final double objectTv = Commands.number(gd, "object_tv"), psfTv = Commands.number(gd, "psf_tv");
-		final boolean band = gd.getNextBoolean(), symmetric = gd.getNextBoolean(), centring = gd.getNextBoolean();
-		final double sxy = Commands.number(gd, "support_xy"), sz = Commands.number(gd, "support_z");
-		final String units = Commands.checkChoice("support_units", gd.getNextChoice(), "support unit (" + VOXELS + " or " + MICRONS + ")");
-		final double snapshot = Commands.number(gd, "snapshot_interval");
-		final EdgeMode edges = EdgeMode.parse(Commands.checkChoice("edges", gd.getNextChoice(), "edge mode"));
-		final String offset = gd.getNextString().trim(), background = gd.getNextString().trim();
-		final String estimate = Commands.checkChoice("estimate", gd.getNextChoice(), "PSF estimate (" + String.join(", ", ESTIMATES) + ")");
-		final double trust = Commands.number(gd, "trust_radius");
-		final boolean watch = gd.getNextBoolean();
-		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
-		final Level off = Deconvolve.level("offset", offset), bg = Deconvolve.level("background", background);
-		PsfFromOptics.Options optics = null;
-		BlindDeconvolveOptions.BandOptics bandOptics = null;
+		final String image = f.readChoice("image", "image title");
+		final String psf = f.readChoice("psf", "starting PSF (an open image, " + FROM_OPTICS + " or " + GAUSSIAN + ")");
+		for (final String n : new String[] { "fwhm_xy", "fwhm_z", "iterations", "object_updates", "psf_updates", "object_tv", "psf_tv" }) f.readNumber(n);
+		final boolean band = f.readCheckbox("band_limit");
+		f.readCheckbox("symmetric");
+		f.readCheckbox("centring");
+		f.readNumber("support_xy");
+		f.readNumber("support_z");
+		f.readChoice("support_units", "support unit (" + VOXELS + " or " + MICRONS + ")");
+		f.readNumber("snapshot_interval");
+		f.readChoice("edges", "edge mode");
+		Deconvolve.level("offset", f.readText("offset")); // refused before a second dialog shows, as always
+		Deconvolve.level("background", f.readText("background"));
+		f.readChoice("estimate", "PSF estimate (" + String.join(", ", ESTIMATES) + ")");
+		f.readNumber("trust_radius");
+		final boolean watch = f.readCheckbox("watch");
+		final Map<String, String> values = new LinkedHashMap<>(f.values());
 		if (FROM_OPTICS.equals(psf)) {
-			optics = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
+			final PsfFromOptics.Options optics = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
 			if (optics == null) return null;
+			values.putAll(MacroOptions.parse(optics.macroOptions())); // the dialog's values as their recorded text
 		} else if (band) {
-			bandOptics = showBandDialog(bandDefaults(image, psf));
-			if (bandOptics == null) return null;
+			final Map<String, String> b = showBandDialog(bandDefaults(image, psf));
+			if (b == null) return null;
+			values.putAll(b);
 		}
-		Deconvolve.Watch w = null;
 		if (watch) {
-			w = DeconvolveDialog.showWatch(); // the same dialog, keys and defaults as Deconvolve's watch mode
+			final Deconvolve.Watch w = DeconvolveDialog.showWatch(); // the same dialog, keys and defaults as Deconvolve's watch mode
 			if (w == null) return null;
+			values.putAll(MacroOptions.parse(w.macroOptions()));
 		}
-		if (!Commands.isMacro()) {
-			Prefs.set(PREFS + "fwhm_xy", fwhmXY);
-			Prefs.set(PREFS + "fwhm_z", fwhmZ);
-			Prefs.set(PREFS + "iterations", iterations);
-			Prefs.set(PREFS + "object_updates", k);
-			Prefs.set(PREFS + "psf_updates", m);
-			Prefs.set(PREFS + "object_tv", objectTv);
-			Prefs.set(PREFS + "psf_tv", psfTv);
-			Prefs.set(PREFS + "estimate", estimate);
-			Prefs.set(PREFS + "trust_radius", trust);
-			Prefs.set(PREFS + "band_limit", band);
-			Prefs.set(PREFS + "symmetric", symmetric);
-			Prefs.set(PREFS + "centring", centring);
-			Prefs.set(PREFS + "support_xy", sxy);
-			Prefs.set(PREFS + "support_z", sz);
-			Prefs.set(PREFS + "support_units", units);
-			Prefs.set(PREFS + "snapshot_interval", snapshot);
-			Prefs.set(PREFS + "edges", edges.key());
-			Prefs.set(PREFS + "offset", offset);
-			Prefs.set(PREFS + "background", background);
-			if (!FROM_OPTICS.equals(psf) && !GAUSSIAN.equals(psf)) Prefs.set(PREFS + "start", "image");
-			else Prefs.set(PREFS + "start", psf);
-		}
-		return new BlindDeconvolveOptions(image, psf, fwhmXY, fwhmZ, whole("Iterations", iterations), whole("Object updates per iteration", k),
-				whole("PSF updates per iteration", m), objectTv, psfTv, band, symmetric, centring, sxy, sz, units, whole("The snapshot interval", snapshot),
-				edges, off, bg, optics, bandOptics, w, estimate, trust);
+		final BlindRequest request = BlindRequest.from(values); // the one reader of the keys, as for a record's replay
+		f.remember("fwhm_xy", "fwhm_z", "iterations", "object_updates", "psf_updates", "object_tv", "psf_tv", "estimate", "trust_radius", "band_limit",
+				"symmetric", "centring", "support_xy", "support_z", "support_units", "snapshot_interval", "edges", "offset", "background");
+		if (!Commands.isMacro()) Prefs.set(PREFS + "start", FROM_OPTICS.equals(psf) || GAUSSIAN.equals(psf) ? psf : "image");
+		return request;
 	}
 
 	/**
@@ -131,8 +113,8 @@ final class BlindDeconvolveDialog {
 		return fromPsf.isEmpty() ? OpticsDefaults.of(WindowManager.getImage(image)) : fromPsf;
 	}
 
-	/** The optics the band limit needs, asked for when the start is not computed from them; null if cancelled. */
-	private static BlindDeconvolveOptions.BandOptics showBandDialog(final Map<String, String> rec) {
+	/** The optics the band limit needs, asked for when the start is not computed from them, as key → text; null if cancelled. */
+	private static Map<String, String> showBandDialog(final Map<String, String> rec) {
 		final GenericDialog gd = new GenericDialog(BlindDeconvolve.COMMAND + ": optics for the band limit");
 		gd.addMessage("The band-limit constraint needs the widefield optics:");
 		final KeyTable B = BlindKeys.BAND; // labels and first-use defaults; the image's or the PSF's record first (OpticsDefaults)
@@ -143,21 +125,12 @@ final class BlindDeconvolveDialog {
 		gd.addHelp(DialogHelp.band().html());
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
-		final double na = Commands.number(gd, "na"), ni = Commands.number(gd, "immersion_index"), em = Commands.number(gd, "emission");
+		final Map<String, String> values = new LinkedHashMap<>();
+		for (final String n : new String[] { "na", "immersion_index", "emission" }) values.put(n, MacroOptions.number(Commands.number(gd, n)));
 		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
-		if (!Commands.isMacro()) {
-			Prefs.set(PREFS + "na", na);
-			Prefs.set(PREFS + "immersion_index", ni);
-			Prefs.set(PREFS + "emission", em);
-		}
-		final BlindDeconvolveOptions.BandOptics b = new BlindDeconvolveOptions.BandOptics(na, ni, em);
-		b.optics(); // validates now, with the optics' one-line messages
-		return b;
-	}
-
-	static int whole(final String what, final double v) {
-		if (v != Math.rint(v) || Math.abs(v) > Integer.MAX_VALUE) throw new IllegalArgumentException(what + " must be a whole number, got " + v);
-		return (int) v;
+		BlindRequest.BandOptics.from(B.read(values)); // validates now, with the optics' one-line messages
+		if (!Commands.isMacro()) for (final Map.Entry<String, String> e : values.entrySet()) Prefs.set(PREFS + e.getKey(), e.getValue());
+		return values;
 	}
 
 	/**

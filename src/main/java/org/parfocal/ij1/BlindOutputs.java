@@ -3,6 +3,7 @@ package org.parfocal.ij1;
 import java.awt.Color;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.Map;
 
 import ij.IJ;
 import ij.ImagePlus;
@@ -12,11 +13,12 @@ import ij.measure.Calibration;
 import ij.measure.ResultsTable;
 
 import org.parfocal.blind.BlindResult;
+import org.parfocal.command.BlindRequest;
+import org.parfocal.command.BlindRunner;
 import org.parfocal.blind.PsfSnapshot;
 import org.parfocal.blind.RefineStep;
 import org.parfocal.core.Hyperstack;
 import org.parfocal.core.Volume;
-import org.parfocal.quality.BlindQualityWatch;
 
 /**
  * What Blind Deconvolve makes besides the deblurred image and the final PSF: the PSF history (one frame per
@@ -31,23 +33,13 @@ final class BlindOutputs {
 	 * The record of a run (without its {@code output} entry, which each image sets): the options, the inputs, the
 	 * final PSF's box and widths, the levels used, the model fit, the watch, the notes.
 	 */
-	static org.parfocal.provenance.Provenance.Builder provenance(final BlindDeconvolveOptions o, final ImagePlus imp, final ImagePlus psfImp,
-			final boolean is3D, final BlindResult r, final BlindQualityWatch watch, final List<CompareWithReferences.Reference> refs,
-			final List<String> notes) {
+	static org.parfocal.provenance.Provenance.Builder provenance(final BlindRequest o, final ImagePlus imp, final ImagePlus psfImp, final BlindRunner.Outcome run,
+			final Deconvolve.Watch w, final List<CompareWithReferences.Reference> refs) {
 		final var prov = ImageProvenance.start(BlindDeconvolve.COMMAND, o.macroOptions()).input(ImageProvenance.input("image", imp));
 		if (psfImp != null) prov.input(ImageProvenance.input("psf", psfImp));
-		final PsfSnapshot last = r.snapshots().get(r.snapshots().size() - 1);
-		prov.run("iterations", o.iterations()).run("psf_box", r.psf().nx() + "x" + r.psf().ny() + "x" + r.psf().nz())
-				.run("snapshots", r.snapshots().size()).run("fwhm_lateral", last.fwhmLateral());
-		if (is3D) prov.run("fwhm_axial", last.fwhmAxial());
-		prov.run("distance_to_start", last.distanceToStart()).run("offset", r.offset()).run("background", r.background());
-		if (r.fit() != null) {
-			prov.run("model_fit", r.fit().summary()).run("model_fit_candidates", r.fit().evaluations());
-			if (!r.refinement().isEmpty())
-				prov.run("refinement_steps_kept", r.refinement().stream().filter(RefineStep::accepted).count() + " of " + r.refinement().size());
-		}
-		if (watch != null) WatchFacts.record(prov, o.watch(), List.of(watch), refs);
-		if (!notes.isEmpty()) prov.run("notes", String.join("; ", notes));
+		for (final Map.Entry<String, Object> e : run.facts(o.iterations()).entrySet()) prov.run(e.getKey(), e.getValue());
+		if (run.watch() != null) WatchFacts.record(prov, w, List.of(run.watch()), refs);
+		if (!run.notes().isEmpty()) prov.run("notes", String.join("; ", run.notes()));
 		return prov;
 	}
 

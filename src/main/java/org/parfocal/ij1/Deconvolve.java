@@ -6,6 +6,7 @@ import ij.ImagePlus;
 import ij.gui.Plot;
 import ij.plugin.PlugIn;
 
+import org.parfocal.command.WatchRequest;
 import org.parfocal.core.Volume;
 import org.parfocal.deconv.DeconvolutionMethod;
 import org.parfocal.deconv.DeconvolutionOptions;
@@ -127,22 +128,27 @@ public class Deconvolve implements PlugIn {
 		}
 
 		public Watch {
-			if (every < 1 || every > DeconvolutionOptions.MAX_ITERATIONS)
-				throw new IllegalArgumentException("Evaluate every 1 to " + DeconvolutionOptions.MAX_ITERATIONS + " iterations, got " + every + " (every=)");
-			if (!(photons > 0) || !Double.isFinite(photons)) throw new IllegalArgumentException("Photons per unit must be positive, got " + photons + " (photons=)");
-			if (!(readNoise >= 0) || !Double.isFinite(readNoise)) throw new IllegalArgumentException("Read noise must be 0 or more, got " + readNoise + " (read_noise=)");
+			new WatchRequest(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, ignoreCalibration, estimateNoise, matchResolution);
+		}
+
+		/** These settings as the command layer's request (which checks them, for the constructor too). */
+		public WatchRequest request() {
+			return new WatchRequest(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, ignoreCalibration, estimateNoise, matchResolution);
+		}
+
+		/** The command layer's watch request as these settings. */
+		public static Watch of(final WatchRequest w) {
+			return new Watch(w.every(), w.referenceFolder(), w.openReferences(), w.photons(), w.readNoise(), w.stopAtSuggestion(), w.ignoreCalibration(),
+					w.estimateNoise(), w.matchResolution());
 		}
 
 		public String macroOptions() {
-			return "every=" + every + " reference_folder=" + MacroOptions.quote(referenceFolder) + " reference_images=" + MacroOptions.quote(openReferences)
-					+ " photons=" + MacroOptions.number(photons) + " read_noise=" + MacroOptions.number(readNoise) + (stopAtSuggestion ? " stop_at_suggestion" : "")
-					+ (ignoreCalibration ? " ignore_calibration" : "") + (estimateNoise ? " estimate_noise" : "") + (matchResolution ? " match_resolution" : "");
+			return request().macroOptions();
 		}
 
 		/** The watch settings of a run's options ({@link org.parfocal.command.DeconvolveKeys#WATCH}; defaults for keys not given). */
 		public static Watch from(final org.parfocal.command.KeyTable.Values v) {
-			return new Watch(v.whole("every"), v.text("reference_folder"), v.text("reference_images"), v.number("photons"), v.number("read_noise"),
-					v.flag("stop_at_suggestion"), v.flag("ignore_calibration"), v.flag("estimate_noise"), v.flag("match_resolution"));
+			return of(WatchRequest.from(v));
 		}
 
 		Watch withIgnoreCalibration() {

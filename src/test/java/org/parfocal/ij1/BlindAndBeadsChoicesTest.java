@@ -100,7 +100,7 @@ class BlindAndBeadsChoicesTest {
 	/**
 	 * The hints agree with what the command accepts: FWHM_xy warns that a model fit needs another start exactly
 	 * when the options record refuses that start with that estimate, and Trust_radius is used exactly by the
-	 * refined estimates (those whose plan refines, {@link BlindDeconvolveOptions#plan}).
+	 * refined estimates (those whose plan refines, {@link org.parfocal.command.BlindRequest#plan}).
 	 */
 	@Test
 	void blindHintsAgreeWithWhatTheOptionsAccept() {
@@ -108,10 +108,10 @@ class BlindAndBeadsChoicesTest {
 			for (final String estimate : BlindDeconvolve.ESTIMATES) {
 				final String[] h = BlindHints.hints(psf, BlindDeconvolve.VOXELS, estimate);
 				boolean refused = false;
-				BlindDeconvolveOptions o = null;
+				org.parfocal.command.BlindRequest o = null;
 				try {
-					o = new BlindDeconvolveOptions("cell.tif", psf, 0.3, 0.8, 2, 1, 1, 0.002, 0, false, false, true, 0, 0, BlindDeconvolve.VOXELS, 1, null,
-							null, null, BlindDeconvolve.FROM_OPTICS.equals(psf) ? OPTICS : null, null, null, estimate, 0.2);
+					o = new org.parfocal.command.BlindRequest("cell.tif", psf, 0.3, 0.8, 2, 1, 1, 0.002, 0, false, false, true, 0, 0, BlindDeconvolve.VOXELS, 1,
+							null, null, null, estimate, 0.2, BlindDeconvolve.FROM_OPTICS.equals(psf) ? DeconvolvePsfs.request(OPTICS) : null, null, null);
 				} catch (final IllegalArgumentException e) {
 					refused = true;
 				}

@@ -499,7 +499,7 @@ class BlindDeconvolveCommandTest {
 	}
 
 	/** Waits (on its own thread) for the dialog that follows {@code first}, fills its numeric fields and presses OK. */
-	private static void answerNextDialog(final GenericDialog first, final String... numbers) {
+	static void answerNextDialog(final GenericDialog first, final String... numbers) {
 		final Thread t = new Thread(() -> {
 			final long end = System.nanoTime() + 60_000_000_000L;
 			while (System.nanoTime() < end) {

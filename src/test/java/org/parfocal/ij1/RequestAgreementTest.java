@@ -24,6 +24,9 @@ import org.parfocal.beads.BackgroundMode;
 import org.parfocal.command.BeadsKeys;
 import org.parfocal.command.BeadsRequest;
 import org.parfocal.command.BeadsRunner;
+import org.parfocal.command.BlindKeys;
+import org.parfocal.command.BlindRequest;
+import org.parfocal.command.BlindRunner;
 import org.parfocal.command.CompareKeys;
 import org.parfocal.command.CompareRequest;
 import org.parfocal.command.CompareRunner;
@@ -34,6 +37,7 @@ import org.parfocal.command.KeyTable;
 import org.parfocal.conv.Acquisition;
 import org.parfocal.core.Boundary;
 import org.parfocal.core.Monitor;
+import org.parfocal.deconv.EdgeMode;
 import org.parfocal.deconv.Level;
 import org.parfocal.provenance.MacroOptions;
 import org.parfocal.provenance.Provenance;
@@ -42,11 +46,11 @@ import org.parfocal.psf.Optics;
 import org.parfocal.testing.ImageJHarness;
 
 /**
- * Convolve with PSF, PSF from Beads and Compare with Sharp References described once ({@link ConvolveKeys},
- * {@link BeadsKeys}, {@link CompareKeys}): set up in the real
+ * Convolve with PSF, PSF from Beads, Compare with Sharp References and Blind Deconvolve described once ({@link ConvolveKeys},
+ * {@link BeadsKeys}, {@link CompareKeys}, {@link BlindKeys}): set up in the real
  * dialog with every field off its default, the values entered, the line ImageJ's macro Recorder writes, the
  * provenance record and the request read back from the line and from the record ({@link ConvolveRequest#from},
- * {@link BeadsRequest#from}, {@link CompareRequest#from}) all ask for the same run, and the pixels (figures) made are
+ * {@link BeadsRequest#from}, {@link CompareRequest#from}, {@link BlindRequest#from}) all ask for the same run, and the pixels (figures) made are
  * that request's. The sibling of
  * {@link KeyTableAgreementTest}'s Deconvolve check. Outside reference: ImageJ 1.54's Recorder and its derivation
  * of a recorded key from a dialog label.
@@ -164,6 +168,46 @@ class RequestAgreementTest {
 				ImageBridge.toVolume(psf, "p"), Monitor.NONE);
 		assertEquals(direct.report().distance(), ((Number) record.run().get("patch_distance")).doubleValue(), 0, "the figures are the entered request's");
 		assertEquals(direct.consistency().meanChiSquare(), ((Number) record.run().get("chi_square")).doubleValue(), 0);
+	}
+
+	@Test
+	void blindDialogLineRecordAndRequestAgree() throws Exception {
+		ImageJHarness.assumeDisplay();
+		final ImagePlus img = DeconvolveCommandTest.recorded("cell.tif");
+		ImageJHarness.open(img);
+		final ImageJHarness.Recording rec = ImageJHarness.record(img, "Blind Deconvolve...", dialog -> {
+			final List<Choice> ch = dialog.getChoices().stream().map(Choice.class::cast).toList();
+			pick(ch.get(0), "cell.tif");
+			pick(ch.get(1), ChoiceWords.word("psf", "gaussian"));
+			pick(ch.get(2), ChoiceWords.word("support_units", "microns"));
+			pick(ch.get(3), ChoiceWords.word("edges", "periodic"));
+			pick(ch.get(4), ChoiceWords.word("estimate", "model-fit-refined"));
+			final List<TextField> num = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
+			// fwhm_xy fwhm_z iterations object_updates psf_updates object_tv psf_tv support_xy support_z snapshot_interval trust_radius
+			final String[] values = { "0.3", "0.8", "4", "2", "2", "0.003", "0.001", "0.72", "1", "2", "0.15" };
+			for (int i = 0; i < values.length; i++) num.get(i).setText(values[i]);
+			final List<TextField> str = dialog.getStringFields().stream().map(TextField.class::cast).toList();
+			str.get(0).setText("100"); // offset
+			str.get(1).setText("2.5"); // background
+			final List<Checkbox> box = dialog.getCheckboxes().stream().map(Checkbox.class::cast).toList();
+			box.get(0).setState(true); // band_limit: the band-limit optics' dialog follows
+			box.get(1).setState(true); // symmetric
+			box.get(2).setState(false); // centring (first shown ticked)
+			BlindDeconvolveCommandTest.answerNextDialog(dialog, "1.2", "1.333", "0.55"); // na immersion_index emission
+		});
+		final BlindRequest entered = new BlindRequest("cell.tif", "gaussian", 0.3, 0.8, 4, 2, 2, 0.003, 0.001, true, true, false, 0.72, 1, "microns", 2,
+				EdgeMode.PERIODIC, Level.of(100), Level.of(2.5), "model-fit-refined", 0.15, null, new BlindRequest.BandOptics(1.2, 1.333, 0.55), null);
+		final Map<String, String> line = recordedOptions(rec, KeyTable.of("Blind Deconvolve and its band limit").all(BlindKeys.MAIN).all(BlindKeys.BAND).build());
+		final ImagePlus out = rec.result().created().stream().filter(i -> i.getTitle().equals("cell-blind.tif")).findFirst().orElseThrow();
+		final Provenance record = ImageProvenance.of(out).orElseThrow();
+		assertEquals(entered, BlindRequest.from(line), "the recorded line (" + rec.line() + ")");
+		assertEquals(entered, BlindRequest.from(record.options()), "the record");
+		assertEquals(line.keySet(), record.options().keySet(), "the record holds the recorded keys");
+		assertNotEquals(entered, BlindRequest.from(Map.of("image", "cell.tif", "psf", "gaussian", "band_limit", "")), "every value entered is off its default");
+		final BlindRunner.Outcome direct = Commands.withImageJThreads(() -> BlindRunner.run(entered, ImageBridge.toCore(img).first(), null, null, null, Monitor.NONE));
+		assertArrayEquals(direct.object().data(), ImageBridge.toCore(out).first().data(), "the pixels are the entered request's");
+		for (final Map.Entry<String, Object> e : direct.facts(entered.iterations()).entrySet())
+			assertEquals(String.valueOf(e.getValue()), String.valueOf(record.run().get(e.getKey())), "run fact " + e.getKey());
 	}
 
 	/** The recorded line's options, after checking they are table keys in dialog order. */
