@@ -11,7 +11,6 @@ import ij.measure.ResultsTable;
 import ij.plugin.PlugIn;
 
 import org.parfocal.core.Volume;
-import org.parfocal.provenance.MacroOptions;
 import org.parfocal.psf.Fwhm;
 import org.parfocal.psf.Nyquist;
 import org.parfocal.psf.Optics;
@@ -54,16 +53,8 @@ public class PsfFromOptics implements PlugIn {
 		}
 
 		public String macroOptions() {
-			final Optics o = optics;
-			// in dialog order, as the Recorder writes them
-			return "model=" + model + " modality=" + o.modality().key() + " na=" + n(o.na()) + " immersion_index=" + n(o.immersionIndex())
-					+ " sample_index=" + n(o.sampleIndex()) + " coverslip_index=" + n(o.coverslipIndex()) + " coverslip_thickness="
-					+ n(o.coverslipThickness()) + " depth=" + n(o.depth()) + " immersion_index_design=" + n(o.immersionIndexDesign())
-					+ " coverslip_index_design=" + n(o.coverslipIndexDesign()) + " coverslip_thickness_design=" + n(o.coverslipThicknessDesign())
-					+ " working_distance=" + n(o.workingDistance()) + " emission=" + n(o.emissionWavelength()) + " excitation="
-					+ n(o.excitationWavelength()) + " pinhole=" + n(o.pinholeAiryUnits()) + " sheet_thickness=" + n(o.sheetThickness())
-					+ " voxel_xy=" + n(voxelXY) + " voxel_z=" + n(voxelZ) + " size_xy=" + sizeXY + " size_z=" + sizeZ
-					+ (showProfiles ? " show_profiles" : "");
+			// the optics part as every command with from_optics records it, then this command's own key
+			return new org.parfocal.command.OpticsRequest(model, optics, voxelXY, voxelZ, sizeXY, sizeZ).macroOptions() + (showProfiles ? " show_profiles" : "");
 		}
 
 		/** The fields the model and modality do not use, with the reasons, in dialog order. */
@@ -71,9 +62,6 @@ public class PsfFromOptics implements PlugIn {
 			return OpticsFields.ignored(PsfModels.get(model), optics.modality(), sizeXY != 0 && sizeZ != 0);
 		}
 
-		private static String n(final double v) {
-			return Double.isNaN(v) ? "0" : MacroOptions.number(v);
-		}
 	}
 
 	@Override
