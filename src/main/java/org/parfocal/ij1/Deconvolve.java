@@ -155,13 +155,11 @@ public class Deconvolve implements PlugIn {
 			return new Watch(every, referenceFolder, openReferences, photons, readNoise, stopAtSuggestion, true, estimateNoise, matchResolution);
 		}
 
-
 		/** {photons per unit, read noise} of the χ² for one recording ({@link WatchFacts#noise}). */
 		double[] noise(final Volume recording, final double offset, final List<String> notes) {
 			return WatchFacts.noise(this, recording, offset, notes);
 		}
 	}
-
 
 	@Override
 	public void run(final String arg) {
