@@ -1,9 +1,12 @@
 package org.parfocal.command;
 
+import java.util.Map;
+
 import org.parfocal.core.Volume;
 import org.parfocal.provenance.MacroOptions;
 import org.parfocal.psf.Modality;
 import org.parfocal.psf.Optics;
+import org.parfocal.psf.OpticsFields;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
 
@@ -16,7 +19,7 @@ public record OpticsRequest(String model, Optics optics, double voxelXY, double 
 	public OpticsRequest {
 		PsfModels.get(model); // validates the key in one line
 		if (!(voxelXY > 0) || !(voxelZ > 0))
-			throw new IllegalArgumentException("Give the voxel size (voxel_xy and voxel_z in µm): the PSF cannot assume 1 pixel = 1 µm");
+			throw new IllegalArgumentException("Enter the voxel size (voxel_xy and voxel_z in µm): the PSF cannot assume 1 pixel = 1 µm");
 		if (sizeXY < 0 || sizeZ < 0) throw new IllegalArgumentException("Sizes must be 0 (from the optics) or positive odd numbers");
 	}
 
@@ -40,8 +43,14 @@ public record OpticsRequest(String model, Optics optics, double voxelXY, double 
 
 	/** The grid the PSF is sampled on (as {@code PSF from Optics...} chooses it). */
 	public PsfGrid grid() {
+		if (sizeXY != 0 && sizeZ != 0) return new PsfGrid(sizeXY, sizeXY, sizeZ, voxelXY, voxelXY, voxelZ);
 		final PsfGrid auto = PsfGrid.forOptics(optics, voxelXY, voxelXY, voxelZ);
 		return new PsfGrid(sizeXY == 0 ? auto.nx() : sizeXY, sizeXY == 0 ? auto.ny() : sizeXY, sizeZ == 0 ? auto.nz() : sizeZ, voxelXY, voxelXY, voxelZ);
+	}
+
+	/** The fields the model and modality do not use, with the reasons, in dialog order ({@link OpticsFields#ignored}). */
+	public Map<String, String> ignored() {
+		return OpticsFields.ignored(PsfModels.get(model), optics.modality(), sizeXY != 0 && sizeZ != 0);
 	}
 
 	/** Computes the PSF (µm, unit sum, centred). */

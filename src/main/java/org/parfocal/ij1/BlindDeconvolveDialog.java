@@ -84,7 +84,7 @@ final class BlindDeconvolveDialog {
 		final boolean watch = f.readCheckbox("watch");
 		final Map<String, String> values = new LinkedHashMap<>(f.values());
 		if (FROM_OPTICS.equals(psf)) {
-			final PsfFromOptics.Options optics = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
+			final org.parfocal.command.PsfFromOpticsRequest optics = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
 			if (optics == null) return null;
 			values.putAll(MacroOptions.parse(optics.macroOptions())); // the dialog's values as their recorded text
 		} else if (band) {

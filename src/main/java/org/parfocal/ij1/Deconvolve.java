@@ -48,23 +48,23 @@ public class Deconvolve implements PlugIn {
 	public static final String FROM_OPTICS = org.parfocal.command.DeconvolveRequest.FROM_OPTICS;
 
 	/** What the dialogs decide. {@code optics} is set when {@code psf} is {@link #FROM_OPTICS}. */
-	public record Options(String image, String psf, PsfFromOptics.Options optics, DeconvolutionOptions deconvolution, boolean plot, Watch watch,
+	public record Options(String image, String psf, org.parfocal.command.OpticsRequest optics, DeconvolutionOptions deconvolution, boolean plot, Watch watch,
 			boolean recentre, OutputDepth output) {
 
 		/** A 32-bit output (what a macro without {@code output=} gets). */
-		public Options(final String image, final String psf, final PsfFromOptics.Options optics, final DeconvolutionOptions deconvolution, final boolean plot,
+		public Options(final String image, final String psf, final org.parfocal.command.OpticsRequest optics, final DeconvolutionOptions deconvolution, final boolean plot,
 				final Watch watch, final boolean recentre) {
 			this(image, psf, optics, deconvolution, plot, watch, recentre, OutputDepth.FLOAT);
 		}
 
 		/** Without re-centring the PSF ({@code recentre}: shift an open PSF's centre of mass to its centre voxel). */
-		public Options(final String image, final String psf, final PsfFromOptics.Options optics, final DeconvolutionOptions deconvolution, final boolean plot,
+		public Options(final String image, final String psf, final org.parfocal.command.OpticsRequest optics, final DeconvolutionOptions deconvolution, final boolean plot,
 				final Watch watch) {
 			this(image, psf, optics, deconvolution, plot, watch, false);
 		}
 
 		/** Without watch mode. */
-		public Options(final String image, final String psf, final PsfFromOptics.Options optics, final DeconvolutionOptions deconvolution, final boolean plot) {
+		public Options(final String image, final String psf, final org.parfocal.command.OpticsRequest optics, final DeconvolutionOptions deconvolution, final boolean plot) {
 			this(image, psf, optics, deconvolution, plot, null);
 		}
 
@@ -86,7 +86,7 @@ public class Deconvolve implements PlugIn {
 
 		/** The front-end-free request of these options ({@link org.parfocal.command.DeconvolveRunner} runs it). */
 		public org.parfocal.command.DeconvolveRequest request() {
-			return new org.parfocal.command.DeconvolveRequest(image, psf, optics == null ? null : DeconvolvePsfs.request(optics), deconvolution, plot, watch != null,
+			return new org.parfocal.command.DeconvolveRequest(image, psf, optics, deconvolution, plot, watch != null,
 					recentre, output.key());
 		}
 

@@ -76,10 +76,11 @@ final class DeconvolveDialog {
 		if (output == OutputDepth.FLOAT) ChoiceWords.forgetRecorded("output"); // the default is left out, as in lines recorded before the key
 		final Map<String, String> values = f.values();
 		final DeconvolutionOptions d = DeconvolveRequest.deconvolution(DeconvolveKeys.MAIN.read(values)); // the reader of the command line too
-		PsfFromOptics.Options optics = null;
+		org.parfocal.command.OpticsRequest optics = null;
 		if (FROM_OPTICS.equals(psf)) {
-			optics = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
-			if (optics == null) return null;
+			final org.parfocal.command.PsfFromOpticsRequest o = PsfFromOptics.showDialog(Commands.image(image, "image"), false);
+			if (o == null) return null;
+			optics = o.optics();
 		}
 		Watch w = null;
 		if (watch) {

@@ -10,7 +10,6 @@ import org.parfocal.command.OpticsRequest;
 import org.parfocal.command.PsfSource;
 import org.parfocal.deconv.PsfPreparation;
 import org.parfocal.psf.PsfGrid;
-import org.parfocal.psf.PsfModels;
 
 /**
  * The PSF per channel for Deconvolve (and Blind Deconvolve's given PSF, the preview): the ImageJ side of
@@ -25,24 +24,19 @@ final class DeconvolvePsfs {
 	 * One PSF per channel of {@code in}: from {@code optics} when given, else from {@code psfImp} (resampled to the
 	 * image's voxel size if needed; re-centred when {@code recentre}, else an off-centre PSF gets a warning note).
 	 */
-	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final PsfFromOptics.Options optics, final List<String> notes,
+	static List<Volume> psfsFor(final Hyperstack in, final ImagePlus psfImp, final OpticsRequest optics, final List<String> notes,
 			final boolean recentre) {
 		final PsfSource source = source(psfImp, optics, recentre);
 		return Commands.withImageJThreads(() -> source.prepare(PsfPreparation.Target.of(in), notes)); // the one preparation (blocks and Spark too)
 	}
 
 	/** Where the PSF comes from: {@code optics} when given, else the open image {@code psfImp} (re-centred when {@code recentre}). */
-	static PsfSource source(final ImagePlus psfImp, final PsfFromOptics.Options optics, final boolean recentre) {
-		return optics != null ? new PsfSource.FromOptics(request(optics)) : new PsfSource.Given(ImageBridge.toCore(psfImp), psfImp.getTitle(), recentre);
-	}
-
-	/** The optics of PSF from Optics' dialog as the request every front end prepares from. */
-	static OpticsRequest request(final PsfFromOptics.Options o) {
-		return new OpticsRequest(o.model(), o.optics(), o.voxelXY(), o.voxelZ(), o.sizeXY(), o.sizeZ());
+	static PsfSource source(final ImagePlus psfImp, final OpticsRequest optics, final boolean recentre) {
+		return optics != null ? new PsfSource.FromOptics(optics) : new PsfSource.Given(ImageBridge.toCore(psfImp), psfImp.getTitle(), recentre);
 	}
 
 	/** The grid of a PSF from optics for this stack ({@link PsfPreparation#gridFor}). */
-	static PsfGrid gridFor(final PsfFromOptics.Options optics, final Hyperstack in) {
-		return new PsfSource.FromOptics(request(optics)).grid(PsfPreparation.Target.of(in));
+	static PsfGrid gridFor(final OpticsRequest optics, final Hyperstack in) {
+		return new PsfSource.FromOptics(optics).grid(PsfPreparation.Target.of(in));
 	}
 }

@@ -74,6 +74,11 @@ final class KeyFields {
 		return put(name, MacroOptions.number(Commands.number(gd, name)));
 	}
 
+	/** Reads the next number cut to its whole part (a size the dialog has always truncated), as macro text. */
+	String readWhole(final String name) {
+		return put(name, Integer.toString((int) Commands.number(gd, name)));
+	}
+
 	String readText(final String name) {
 		return put(name, gd.getNextString().trim());
 	}

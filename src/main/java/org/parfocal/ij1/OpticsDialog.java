@@ -1,5 +1,7 @@
 package org.parfocal.ij1;
 
+import java.util.Map;
+
 import ij.ImagePlus;
 import ij.Prefs;
 import ij.gui.GenericDialog;
@@ -7,22 +9,30 @@ import ij.gui.GenericDialog;
 import org.parfocal.command.DeconvolveKeys;
 import org.parfocal.command.KeyTable;
 import org.parfocal.command.OtherKeys;
+import org.parfocal.command.PsfFromOpticsRequest;
 
 import org.parfocal.core.VoxelSize;
 import org.parfocal.psf.Modality;
-import org.parfocal.psf.Optics;
 import org.parfocal.psf.OpticsFields.Group;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
 
 /**
  * PSF from Optics' dialog, also shown by Deconvolve and Blind Deconvolve for a PSF computed from the optics:
- * model, modality, the optics under headings, the sampling; read into {@link PsfFromOptics.Options}.
+ * model, modality, the optics under headings, the sampling; read into key → text and through {@link PsfFromOpticsRequest#from}.
  */
 final class OpticsDialog {
 
 	private static final String COMMAND = PsfFromOptics.COMMAND;
 	private static final String PREFS = "parfocal.psfoptics.";
+
+	/** The numeric fields before the sizes, in dialog order. */
+	private static final String[] NUMBERS = { "na", "immersion_index", "sample_index", "coverslip_index", "coverslip_thickness", "depth",
+			"immersion_index_design", "coverslip_index_design", "coverslip_thickness_design", "working_distance", "emission", "excitation", "pinhole",
+			"sheet_thickness", "voxel_xy", "voxel_z" };
+	/** Remembered numbers: {@code Prefs} name (after the prefix) → key. */
+	private static final String[][] REMEMBERED = { { "na", "na" }, { "ni", "immersion_index" }, { "nid", "immersion_index_design" },
+			{ "ns", "sample_index" }, { "depth", "depth" }, { "emission", "emission" }, { "excitation", "excitation" } };
 
 	private OpticsDialog() {}
 
@@ -31,7 +41,7 @@ final class OpticsDialog {
 	 * {@code withProfiles} adds the show_profiles checkbox; Deconvolve, which asks for the optics with this
 	 * same dialog when the PSF is to be computed, leaves it out.
 	 */
-	static PsfFromOptics.Options show(final ImagePlus cur, final boolean withProfiles) {
+	static PsfFromOpticsRequest show(final ImagePlus cur, final boolean withProfiles) {
 		VoxelSize vs = cur == null ? VoxelSize.UNCALIBRATED : ImageBridge.voxelSize(cur.getCalibration());
 		double dxy = 0, dz = 0;
 		try {
@@ -78,35 +88,20 @@ final class OpticsDialog {
 		OpticsGreying.follow(gd); // fields the chosen model and modality do not use are greyed out
 		gd.showDialog();
 		if (gd.wasCanceled()) return null;
-		final String model = Commands.checkChoice("model", gd.getNextChoice(), "PSF model (" + String.join(", ", PsfModels.keys()) + ")");
-		final Modality modality = Modality.parse(Commands.checkChoice("modality", gd.getNextChoice(), "modality"));
-		final double na = Commands.number(gd, "na"), ni = Commands.number(gd, "immersion_index");
-		final double ns = Commands.number(gd, "sample_index"), ng = Commands.number(gd, "coverslip_index");
-		final double tg = Commands.number(gd, "coverslip_thickness"), depth = Commands.number(gd, "depth");
-		final double nid = Commands.number(gd, "immersion_index_design"), ngd = Commands.number(gd, "coverslip_index_design");
-		final double tgd = Commands.number(gd, "coverslip_thickness_design"), wd = Commands.number(gd, "working_distance");
-		final double emission = Commands.number(gd, "emission"), excitation = Commands.number(gd, "excitation");
-		final double pinhole = Commands.number(gd, "pinhole"), sheet = Commands.number(gd, "sheet_thickness");
-		final double vxy = Commands.number(gd, "voxel_xy"), vz = Commands.number(gd, "voxel_z");
-		final double sxy = Commands.number(gd, "size_xy"), sz = Commands.number(gd, "size_z");
-		final boolean show = withProfiles && gd.getNextBoolean();
-		if (gd.invalidNumber()) throw new IllegalArgumentException("A number in the dialog is not valid");
-		if (!Commands.isMacro()) {
-			Prefs.set(PREFS + "model", model);
-			Prefs.set(PREFS + "modality", modality.key());
-			Prefs.set(PREFS + "na", na);
-			Prefs.set(PREFS + "ni", ni);
-			Prefs.set(PREFS + "nid", nid);
-			Prefs.set(PREFS + "ns", ns);
-			Prefs.set(PREFS + "depth", depth);
-			Prefs.set(PREFS + "emission", emission);
-			Prefs.set(PREFS + "excitation", excitation);
+		// read into key → macro text, then through the one reader of the keys, as for a record's replay
+		final KeyFields f = new KeyFields(gd, PsfFromOpticsRequest.KEYS, PREFS);
+		f.readChoice("model", "PSF model (" + String.join(", ", PsfModels.keys()) + ")");
+		f.readChoice("modality", "modality");
+		for (final String n : NUMBERS) f.readNumber(n);
+		f.readWhole("size_xy"); // cut to the whole part, as the dialog always did
+		f.readWhole("size_z");
+		if (withProfiles) f.readCheckbox("show_profiles");
+		final Map<String, String> values = f.values();
+		if (!Commands.isMacro()) { // Prefs only outside macros, under their current names
+			Prefs.set(PREFS + "model", values.get("model"));
+			Prefs.set(PREFS + "modality", values.get("modality"));
+			for (final String[] p : REMEMBERED) Prefs.set(PREFS + p[0], Double.parseDouble(values.get(p[1])));
 		}
-		final Optics optics = Optics.builder().modality(modality).na(na).immersionIndex(ni).immersionIndexDesign(nid).sampleIndex(ns)
-				.coverslipIndex(ng).coverslipIndexDesign(ngd).coverslipThickness(tg).coverslipThicknessDesign(tgd).workingDistance(wd)
-				.depth(depth).emissionWavelength(modality.usesEmission() || emission > 0 ? emission : Double.NaN)
-				.excitationWavelength(modality.usesExcitation() || excitation > 0 ? excitation : Double.NaN).pinholeAiryUnits(pinhole)
-				.sheetThickness(modality == Modality.LIGHT_SHEET || sheet > 0 ? sheet : Double.NaN).build();
-		return new PsfFromOptics.Options(model, optics, vxy, vz, (int) sxy, (int) sz, show);
+		return PsfFromOpticsRequest.from(values);
 	}
 }

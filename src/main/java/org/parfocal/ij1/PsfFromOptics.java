@@ -1,7 +1,7 @@
 package org.parfocal.ij1;
 
-import java.util.Map;
 import java.util.Locale;
+import java.util.Map;
 
 import ij.IJ;
 import ij.ImagePlus;
@@ -10,10 +10,11 @@ import ij.gui.Plot;
 import ij.measure.ResultsTable;
 import ij.plugin.PlugIn;
 
+import org.parfocal.command.OpticsRequest;
+import org.parfocal.command.PsfFromOpticsRequest;
 import org.parfocal.core.Volume;
 import org.parfocal.psf.Fwhm;
 import org.parfocal.psf.Nyquist;
-import org.parfocal.psf.Optics;
 import org.parfocal.psf.OpticsFields;
 import org.parfocal.psf.PsfGrid;
 import org.parfocal.psf.PsfModels;
@@ -26,48 +27,16 @@ import org.parfocal.psf.PsfModels;
  * Macro keys (public API): {@code model modality na immersion_index immersion_index_design sample_index
  * coverslip_index coverslip_index_design coverslip_thickness coverslip_thickness_design working_distance depth
  * emission excitation pinhole sheet_thickness voxel_xy voxel_z size_xy size_z show_profiles}. Lengths in µm.
+ * Read by {@link PsfFromOpticsRequest#from} (the one reader of the keys, for dialog and replay); this class makes the images and the record.
  */
 public class PsfFromOptics implements PlugIn {
 
 	static final String COMMAND = "PSF from Optics";
-	private static final String PREFS = "parfocal.psfoptics.";
-
-	/** Everything the dialog decides; sizes 0 mean "chosen from the optics". */
-	public record Options(String model, Optics optics, double voxelXY, double voxelZ, int sizeXY, int sizeZ, boolean showProfiles) {
-
-		public Options {
-			PsfModels.get(model); // validates the key
-			if (!(voxelXY > 0) || !(voxelZ > 0))
-				throw new IllegalArgumentException("Enter the voxel size (voxel_xy and voxel_z in µm): the PSF cannot assume 1 pixel = 1 µm");
-			if (sizeXY < 0 || sizeZ < 0) throw new IllegalArgumentException("Sizes must be 0 (from the optics) or positive odd numbers");
-		}
-
-		/** The grid the PSF is sampled on. */
-		public PsfGrid grid() {
-			if (sizeXY == 0 || sizeZ == 0) {
-				final PsfGrid auto = PsfGrid.forOptics(optics, voxelXY, voxelXY, voxelZ);
-				return new PsfGrid(sizeXY == 0 ? auto.nx() : sizeXY, sizeXY == 0 ? auto.ny() : sizeXY, sizeZ == 0 ? auto.nz() : sizeZ, voxelXY,
-						voxelXY, voxelZ);
-			}
-			return new PsfGrid(sizeXY, sizeXY, sizeZ, voxelXY, voxelXY, voxelZ);
-		}
-
-		public String macroOptions() {
-			// the optics part as every command with from_optics records it, then this command's own key
-			return new org.parfocal.command.OpticsRequest(model, optics, voxelXY, voxelZ, sizeXY, sizeZ).macroOptions() + (showProfiles ? " show_profiles" : "");
-		}
-
-		/** The fields the model and modality do not use, with the reasons, in dialog order. */
-		public Map<String, String> ignored() {
-			return OpticsFields.ignored(PsfModels.get(model), optics.modality(), sizeXY != 0 && sizeZ != 0);
-		}
-
-	}
 
 	@Override
 	public void run(final String arg) {
 		Commands.run(COMMAND, org.parfocal.command.CommandKeys.PSF_FROM_OPTICS, () -> {
-			final Options o = showDialog(WindowManager.getCurrentImage(), true);
+			final PsfFromOpticsRequest o = showDialog(WindowManager.getCurrentImage(), true);
 			if (o == null) throw Commands.cancelled();
 			final Result r = run(o);
 			if (o.showProfiles()) {
@@ -85,12 +54,13 @@ public class PsfFromOptics implements PlugIn {
 	 * The dialog, or null if cancelled ({@link OpticsDialog}). Voxel sizes default to {@code cur}'s (may be null);
 	 * {@code withProfiles} adds the show_profiles checkbox (Deconvolve and Blind Deconvolve leave it out).
 	 */
-	static Options showDialog(final ImagePlus cur, final boolean withProfiles) {
+	static PsfFromOpticsRequest showDialog(final ImagePlus cur, final boolean withProfiles) {
 		return OpticsDialog.show(cur, withProfiles);
 	}
 
 	/** Computes the PSF and its summaries. */
-	public static Result run(final Options o) {
+	public static Result run(final PsfFromOpticsRequest request) {
+		final OpticsRequest o = request.optics();
 		final long start = System.nanoTime();
 		final PsfGrid grid = o.grid();
 		IJ.showStatus(COMMAND + ": " + o.model() + " " + grid.nx() + "x" + grid.ny() + "x" + grid.nz() + "...");
@@ -100,7 +70,7 @@ public class PsfFromOptics implements PlugIn {
 		final double fx = Fwhm.lateral(psf), fy = Fwhm.lateralY(psf), fz = Fwhm.axial(psf);
 		final String warning = Nyquist.check(o.optics(), o.voxelXY(), o.voxelXY(), o.voxelZ());
 		if (warning != null) IJ.log(COMMAND + ": " + warning);
-		final var builder = ImageProvenance.start(COMMAND, o.macroOptions()).run("grid", grid.nx() + "x" + grid.ny() + "x" + grid.nz())
+		final var builder = ImageProvenance.start(COMMAND, request.macroOptions()).run("grid", grid.nx() + "x" + grid.ny() + "x" + grid.nz())
 				.run("fwhm_x_um", fx).run("fwhm_y_um", fy).run("fwhm_z_um", fz);
 		if (warning != null) builder.warning(warning);
 		recordIgnored(COMMAND, o, builder);
@@ -113,7 +83,7 @@ public class PsfFromOptics implements PlugIn {
 	 * Fields this model and modality do not use ({@link OpticsFields#ignored}): kept as entered, so the record
 	 * repeats the dialog, and listed in the record under {@code ignored} with the reason; the Log says so once.
 	 */
-	static void recordIgnored(final String command, final Options o, final org.parfocal.provenance.Provenance.Builder prov) {
+	static void recordIgnored(final String command, final OpticsRequest o, final org.parfocal.provenance.Provenance.Builder prov) {
 		final Map<String, String> ignored = o.ignored();
 		if (ignored.isEmpty()) return;
 		prov.run("ignored", ignored);

@@ -5,6 +5,7 @@ import java.awt.Color;
 import ij.gui.Plot;
 import ij.measure.ResultsTable;
 
+import org.parfocal.command.OpticsRequest;
 import org.parfocal.core.Volume;
 import org.parfocal.psf.Fwhm;
 import org.parfocal.psf.Nyquist;
@@ -16,7 +17,7 @@ final class PsfSummaries {
 	private PsfSummaries() {}
 
 	/** Lateral (through the peak along x) and axial (along z) profiles, each scaled to its peak. */
-	static Plot profiles(final Volume psf, final PsfFromOptics.Options o) {
+	static Plot profiles(final Volume psf, final OpticsRequest o) {
 		final int[] p = Fwhm.peak(psf);
 		final double[] lx = new double[psf.nx()], ly = new double[psf.nx()];
 		for (int x = 0; x < psf.nx(); x++) {
@@ -50,7 +51,7 @@ final class PsfSummaries {
 	}
 
 	/** FWHM of the PSF beside the voxel steps and the Nyquist steps. */
-	static ResultsTable table(final PsfFromOptics.Options o, final double fx, final double fy, final double fz) {
+	static ResultsTable table(final OpticsRequest o, final double fx, final double fy, final double fz) {
 		final Optics op = o.optics();
 		// the shortest wavelength in use, as Nyquist.check takes it
 		final double lambda = Math.min(op.modality().usesEmission() ? op.emissionWavelength() : Double.POSITIVE_INFINITY,

@@ -33,8 +33,8 @@ import org.parfocal.testing.ImageJHarness;
 class BlindAndBeadsChoicesTest {
 
 	private static final VoxelSize VOXEL = VoxelSize.microns(0.08, 0.08, 0.2);
-	private static final PsfFromOptics.Options OPTICS = new PsfFromOptics.Options("born-wolf",
-			org.parfocal.psf.Optics.builder().na(1.2).immersionIndex(1.333).emissionWavelength(0.52).build(), 0.08, 0.2, 9, 5, false);
+	private static final org.parfocal.command.OpticsRequest OPTICS = new org.parfocal.command.OpticsRequest("born-wolf",
+			org.parfocal.psf.Optics.builder().na(1.2).immersionIndex(1.333).emissionWavelength(0.52).build(), 0.08, 0.2, 9, 5);
 
 	@AfterEach
 	void closeAll() {
@@ -111,7 +111,7 @@ class BlindAndBeadsChoicesTest {
 				org.parfocal.command.BlindRequest o = null;
 				try {
 					o = new org.parfocal.command.BlindRequest("cell.tif", psf, 0.3, 0.8, 2, 1, 1, 0.002, 0, false, false, true, 0, 0, BlindDeconvolve.VOXELS, 1,
-							null, null, null, estimate, 0.2, BlindDeconvolve.FROM_OPTICS.equals(psf) ? DeconvolvePsfs.request(OPTICS) : null, null, null);
+							null, null, null, estimate, 0.2, BlindDeconvolve.FROM_OPTICS.equals(psf) ? OPTICS : null, null, null);
 				} catch (final IllegalArgumentException e) {
 					refused = true;
 				}

@@ -40,7 +40,7 @@ class OnePsfPreparationTest {
 		final OpticsRequest o = r.optics();
 		final Hyperstack stack = Hyperstack.of(Volume.zeros(SHAPE[0], SHAPE[1], SHAPE[2], VOXEL));
 		final List<String> notes = new ArrayList<>();
-		final Volume menu = DeconvolvePsfs.psfsFor(stack, null, new PsfFromOptics.Options(o.model(), o.optics(), o.voxelXY(), o.voxelZ(), 0, 0, false),
+		final Volume menu = DeconvolvePsfs.psfsFor(stack, null, new OpticsRequest(o.model(), o.optics(), o.voxelXY(), o.voxelZ(), 0, 0),
 				notes, false).get(0);
 		assertArrayEquals(menu.shape(), blocks.shape());
 		assertArrayEquals(menu.data(), blocks.data(), 0f);

@@ -34,23 +34,27 @@ import org.parfocal.command.ConvolveKeys;
 import org.parfocal.command.ConvolveRequest;
 import org.parfocal.command.ConvolveRunner;
 import org.parfocal.command.KeyTable;
+import org.parfocal.command.OpticsRequest;
+import org.parfocal.command.PsfFromOpticsRequest;
 import org.parfocal.conv.Acquisition;
 import org.parfocal.core.Boundary;
 import org.parfocal.core.Monitor;
+import org.parfocal.core.Volume;
 import org.parfocal.deconv.EdgeMode;
 import org.parfocal.deconv.Level;
 import org.parfocal.provenance.MacroOptions;
 import org.parfocal.provenance.Provenance;
+import org.parfocal.psf.Fwhm;
 import org.parfocal.psf.Modality;
 import org.parfocal.psf.Optics;
 import org.parfocal.testing.ImageJHarness;
 
 /**
- * Convolve with PSF, PSF from Beads, Compare with Sharp References and Blind Deconvolve described once ({@link ConvolveKeys},
- * {@link BeadsKeys}, {@link CompareKeys}, {@link BlindKeys}): set up in the real
+ * Convolve with PSF, PSF from Beads, Compare with Sharp References, Blind Deconvolve and PSF from Optics described once
+ * ({@link ConvolveKeys}, {@link BeadsKeys}, {@link CompareKeys}, {@link BlindKeys}, {@link PsfFromOpticsRequest#KEYS}): set up in the real
  * dialog with every field off its default, the values entered, the line ImageJ's macro Recorder writes, the
  * provenance record and the request read back from the line and from the record ({@link ConvolveRequest#from},
- * {@link BeadsRequest#from}, {@link CompareRequest#from}, {@link BlindRequest#from}) all ask for the same run, and the pixels (figures) made are
+ * {@link BeadsRequest#from}, {@link CompareRequest#from}, {@link BlindRequest#from}, {@link PsfFromOpticsRequest#from}) all ask for the same run, and the pixels (figures) made are
  * that request's. The sibling of
  * {@link KeyTableAgreementTest}'s Deconvolve check. Outside reference: ImageJ 1.54's Recorder and its derivation
  * of a recorded key from a dialog label.
@@ -208,6 +212,43 @@ class RequestAgreementTest {
 		assertArrayEquals(direct.object().data(), ImageBridge.toCore(out).first().data(), "the pixels are the entered request's");
 		for (final Map.Entry<String, Object> e : direct.facts(entered.iterations()).entrySet())
 			assertEquals(String.valueOf(e.getValue()), String.valueOf(record.run().get(e.getKey())), "run fact " + e.getKey());
+	}
+
+	@Test
+	void opticsDialogLineRecordAndRequestAgree() throws Exception {
+		ImageJHarness.assumeDisplay();
+		final ImageJHarness.Recording rec = ImageJHarness.record(null, "PSF from Optics...", dialog -> {
+			final List<Choice> ch = dialog.getChoices().stream().map(Choice.class::cast).toList();
+			pick(ch.get(0), ChoiceWords.word("model", "richards-wolf"));
+			pick(ch.get(1), ChoiceWords.word("modality", "confocal"));
+			final List<TextField> num = dialog.getNumericFields().stream().map(TextField.class::cast).toList();
+			// na immersion_index sample_index coverslip_index coverslip_thickness depth immersion_index_design coverslip_index_design
+			// coverslip_thickness_design working_distance emission excitation pinhole sheet_thickness voxel_xy voxel_z size_xy size_z
+			final String[] values = { "1.3", "1.515", "1.38", "1.525", "175", "4", "1.516", "1.523", "172", "140", "0.6", "0.56", "0.8", "1.5", "0.1", "0.3",
+					"11", "7" };
+			assertEquals(values.length, num.size(), "every numeric field set");
+			for (int i = 0; i < values.length; i++) num.get(i).setText(values[i]);
+			final List<Checkbox> box = dialog.getCheckboxes().stream().map(Checkbox.class::cast).toList();
+			box.get(0).setState(true); // show_profiles (unticked for a macro that leaves it out)
+		});
+		final Optics optics = Optics.builder().modality(Modality.CONFOCAL).na(1.3).immersionIndex(1.515).sampleIndex(1.38).coverslipIndex(1.525)
+				.coverslipThickness(175).depth(4).immersionIndexDesign(1.516).coverslipIndexDesign(1.523).coverslipThicknessDesign(172).workingDistance(140)
+				.emissionWavelength(0.6).excitationWavelength(0.56).pinholeAiryUnits(0.8).sheetThickness(1.5).build();
+		final PsfFromOpticsRequest entered = new PsfFromOpticsRequest(new OpticsRequest("richards-wolf", optics, 0.1, 0.3, 11, 7), true);
+		final Map<String, String> line = recordedOptions(rec, PsfFromOpticsRequest.KEYS);
+		final ImagePlus out = rec.result().created().stream().filter(i -> i.getTitle().startsWith("psf-")).findFirst().orElseThrow();
+		final Provenance record = ImageProvenance.of(out).orElseThrow();
+		assertEquals(entered, PsfFromOpticsRequest.from(line), "the recorded line (" + rec.line() + ")");
+		assertEquals(entered, PsfFromOpticsRequest.from(record.options()), "the record");
+		assertEquals(line.keySet(), record.options().keySet(), "the record holds the recorded keys");
+		assertEquals(line, MacroOptions.parse(entered.macroOptions()), "the request's line is the recorded one");
+		assertNotEquals(entered, PsfFromOpticsRequest.from(Map.of("voxel_xy", "0.1", "voxel_z", "0.3")), "every value entered is off its default");
+		final Volume psf = Commands.withImageJThreads(entered.optics()::compute);
+		assertArrayEquals(psf.data(), ImageBridge.toVolume(out, "psf").data(), "the pixels are the entered request's");
+		assertEquals("11x11x7", record.run().get("grid"));
+		assertEquals(String.valueOf(Fwhm.lateral(psf)), String.valueOf(record.run().get("fwhm_x_um")), "run fact fwhm_x_um");
+		assertEquals(String.valueOf(Fwhm.axial(psf)), String.valueOf(record.run().get("fwhm_z_um")), "run fact fwhm_z_um (NaN when cut off, kept as text)");
+		assertEquals(String.valueOf(entered.optics().ignored()), String.valueOf(record.run().get("ignored")), "run fact ignored");
 	}
 
 	/** The recorded line's options, after checking they are table keys in dialog order. */
