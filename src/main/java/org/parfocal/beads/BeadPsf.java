@@ -95,14 +95,9 @@ public final class BeadPsf {
 	}
 
 	/**
-	 * Lateral x, lateral y and axial FWHM (µm) of the optics model {@code model} sampled like {@code psf} (same size and
-	 * voxel sizes), through its brightest voxel: what the measured average should be compared with.
+	 * The optics model on the measured PSF's grid (same size and voxel sizes, centred on its centre voxel): what the
+	 * measured average should be compared with ({@link #fwhm}, {@link #outerShare}).
 	 */
-	public static double[] modelFwhm(final String model, final Optics optics, final Volume psf) {
-		return fwhm(model(model, optics, psf));
-	}
-
-	/** The optics model on the measured PSF's grid (the grid's calibration, centred on its centre voxel). */
 	public static Volume model(final String model, final Optics optics, final Volume psf) {
 		return PsfModels.get(model).compute(optics, PsfGrid.of(psf.nx(), psf.ny(), psf.nz(), psf.voxelSize()));
 	}
