@@ -6,7 +6,8 @@ sharing no code with Parfocal.
 
 For every scene NAME it writes NAME-recording.tif (uint16 camera values, z y x), NAME-psf.tif (float32, unit
 sum, the true PSF of the simulation), NAME-truth.tif (float32, the object in photons, on the recording's
-grid) and NAME.json (all true parameters). SHA256SUMS beside this script lists the files of a run with Debian
+grid) and NAME.json (all true parameters); and references/FAMILY/FAMILY-reference-I.tif, three unmatched sharp
+references per object family (other seeds, no blur, no noise) for the reference check and its stopping rule. SHA256SUMS beside this script lists the files of a run with Debian
 bookworm's numpy 1.24 / scipy 1.10; `--check` compares a new run with it.
 
 PSFs (scalar, own implementations):
@@ -245,6 +246,27 @@ def make_scene(row, out, psf_cache):
     return name
 
 
+REFERENCES = 3                   # sharp reference stacks per object family
+
+
+def make_references(objk, out):
+    """Unmatched sharp references of one family: the same object model with other seeds, unblurred and noise-free,
+    on the recording's grid and calibration, scaled to 1000 at their brightest voxel (the comparison normalises)."""
+    folder = os.path.join(out, "references", objk)
+    os.makedirs(folder, exist_ok=True)
+    full = tuple(n + 2 * p for n, p in zip((NZ, NY, NX), PAD))
+    win = tuple(slice(p, p + n) for p, n in zip(PAD, (NZ, NY, NX)))
+    names = []
+    for i in range(REFERENCES):
+        rng = np.random.default_rng(5000 + 10 * sorted(OBJECTS).index(objk) + i)
+        ref = OBJECTS[objk](rng, full)[win]
+        ref = (ref * (1000 / ref.max())).astype(np.float32)
+        f = os.path.join(folder, f"{objk}-reference-{i + 1}.tif")
+        tifffile.imwrite(f, ref, imagej=True, resolution=(1 / DXY, 1 / DXY), metadata={"spacing": DZ, "unit": "micron", "axes": "ZYX"})
+        names.append(os.path.relpath(f, out))
+    return names
+
+
 def sha256(path):
     with open(path, "rb") as fh:
         return hashlib.sha256(fh.read()).hexdigest()
@@ -261,7 +283,13 @@ def main(argv):
         if only and row[0] not in only.split(","):
             continue
         print("scene", make_scene(row, out, cache), flush=True)
+    refs = []
+    for objk in sorted(OBJECTS):
+        if only and not any(r[1] == objk and r[0] in only.split(",") for r in SCENES):
+            continue
+        refs += make_references(objk, out)
     lines = [f"{sha256(os.path.join(out, f))}  {f}\n" for f in sorted(os.listdir(out)) if f.endswith((".tif", ".json"))]
+    lines += [f"{sha256(os.path.join(out, f))}  {f}\n" for f in sorted(refs)]
     with open(os.path.join(out, "SHA256SUMS"), "w") as fh:
         fh.writelines(lines)
     ref = os.path.join(os.path.dirname(os.path.abspath(__file__)), "SHA256SUMS")

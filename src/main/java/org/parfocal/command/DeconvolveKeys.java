@@ -113,9 +113,11 @@ public final class DeconvolveKeys {
 							+ "(Poisson&ndash;Gaussian fit of the local variance against the local mean, Foi et al., IEEE TIP 2008) instead of Photons and "
 							+ "Read_noise, which stay the fallback when the fit fails; the values go into the Log and the provenance. Ticked in the "
 							+ "dialog; absent from a macro line: the given values")
-			.flag("match_resolution", "Match_resolution (blur the references to the result's expected resolution)", true,
+			.flag("match_resolution", "Match_resolution (blur the references to the result's expected resolution)", false,
 					"blur each reference to the result's expected resolution (the PSF's FWHM / 2; "
 							+ "Blind Deconvolve: the recording's apparent FWHM / 2) before comparing, so references much sharper than any result can be "
-							+ "(another modality, finer pixels) cannot favour the noisiest iterate; on in the dialog, off when a macro line leaves it out")
+							+ "(another modality, finer pixels) cannot favour the noisiest iterate. Off by default: on independent test scenes with sharp "
+							+ "references on the recording's grid it changed 6 of 20 suggested stops, 5 of them for the worse (by 4.4&ndash;6.5 dB), one for the better (1.5 dB); "
+							+ "tick it for references of another modality or much finer pixels")
 			.build();
 }

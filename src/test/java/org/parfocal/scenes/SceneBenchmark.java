@@ -173,6 +173,7 @@ public final class SceneBenchmark {
 
 	static {
 		COLUMNS.addAll(StopColumns.columns()); // issue 14: stopping, default run, TV weight
+		COLUMNS.addAll(ReferenceStopColumns.columns()); // issue 14: the stop with references
 	}
 
 	public static Column column(final String header, final java.util.function.BiFunction<Scene, SceneRuns, String> cell) {
@@ -192,9 +193,15 @@ public final class SceneBenchmark {
 		}
 	}
 
-	/** Makes the scenes with the Python generator if {@code dir} holds none. */
+	private static volatile Path folder = Paths.get("target/scenes");
+
+	/** The folder of the scenes of this run (their references are in its {@code references} folder). */
+	static Path folder() { return folder; }
+
+	/** Makes the scenes with the Python generator if {@code dir} holds none (or no references). */
 	public static void ensure(final Path dir) throws IOException, InterruptedException {
-		if (Files.isDirectory(dir) && !scenes(dir).isEmpty()) return;
+		folder = dir;
+		if (Files.isDirectory(dir) && !scenes(dir).isEmpty() && Files.isDirectory(dir.resolve("references"))) return;
 		System.err.println("Making the scenes in " + dir + " (tools/scenes/make_scenes.py)");
 		final Process p = new ProcessBuilder("/usr/bin/python3", "tools/scenes/make_scenes.py", dir.toString()).inheritIO().start();
 		if (p.waitFor() != 0) throw new IllegalStateException("make_scenes.py failed");
