@@ -174,6 +174,7 @@ public final class SceneBenchmark {
 	static {
 		COLUMNS.addAll(StopColumns.columns()); // issue 14: stopping, default run, TV weight
 		COLUMNS.addAll(ReferenceStopColumns.columns()); // issue 14: the stop with references
+		COLUMNS.addAll(PsfCheckColumns.columns()); // issue 14: the reference check against wrong PSFs
 	}
 
 	public static Column column(final String header, final java.util.function.BiFunction<Scene, SceneRuns, String> cell) {
