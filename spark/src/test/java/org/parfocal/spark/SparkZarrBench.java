@@ -23,6 +23,9 @@ import org.parfocal.zarr.ZarrArray;
  *
  * Spark's memory manager refuses heaps under 450 MB; the benchmark sets {@code spark.testing.memory} so that
  * local mode starts in a smaller heap (the blocks are planned from the real free heap).
+ * {@code -Dparfocal.bench.budgetMB=N} (through {@code JAVA_TOOL_OPTIONS}) plans both runs with the same budget per
+ * block, so both cut the volume into the same blocks: the ratio is then the parallel scaling of the same work,
+ * without the cost of the smaller blocks that two tasks sharing one heap otherwise get.
  */
 public final class SparkZarrBench {
 
@@ -84,7 +87,7 @@ public final class SparkZarrBench {
 					for (int k = 0; k < 5; k++) SparkRunner.TASK_NANOS.set(k, 0);
 					final Path out = root.resolve("out-" + workers + ".zarr");
 					final long t0 = System.nanoTime();
-					final SparkRunner.BlocksOutcome o = SparkRunner.runZarrBlocks(sc, recipe, List.of(), in, out, new SparkRunner.Settings(0, null, 1), null);
+					final SparkRunner.BlocksOutcome o = SparkRunner.runZarrBlocks(sc, recipe, List.of(), in, out, new SparkRunner.Settings(Long.getLong("parfocal.bench.budgetMB", 0L) << 20, null, 1), null);
 					final double s = (System.nanoTime() - t0) / 1e9;
 					final double task = SparkRunner.TASK_NANOS.get(0) / 1e9, read = SparkRunner.TASK_NANOS.get(1) / 1e9,
 							write = SparkRunner.TASK_NANOS.get(2) / 1e9, seams = SparkRunner.TASK_NANOS.get(3) / 1e9,
