@@ -6,6 +6,7 @@ import java.util.Locale;
 
 import org.parfocal.conv.Psfs;
 import org.parfocal.core.Monitor;
+import org.parfocal.core.Trilinear;
 import org.parfocal.core.Volume;
 import org.parfocal.deconv.Deconvolution;
 import org.parfocal.deconv.DeconvolutionMethod;
@@ -34,27 +35,17 @@ final class PsfCheckColumns {
 		return cols;
 	}
 
-	/** The PSF stretched by f about its centre voxel (trilinear interpolation, zero outside, unit sum), on the same box. */
+	/** The PSF stretched by f about its centre voxel (linear interpolation, zero outside, unit sum), on the same box. */
 	static Volume stretched(final Volume psf, final double f) {
-		final int nx = psf.nx(), ny = psf.ny(), nz = psf.nz();
-		final double cx = (nx - 1) / 2.0, cy = (ny - 1) / 2.0, cz = (nz - 1) / 2.0;
-		final float[] src = psf.data(), dst = new float[src.length];
-		for (int z = 0; z < nz; z++)
-			for (int y = 0; y < ny; y++)
-				for (int x = 0; x < nx; x++) {
-					final double sx = cx + (x - cx) / f, sy = cy + (y - cy) / f, sz = cz + (z - cz) / f;
-					final int x0 = (int) Math.floor(sx), y0 = (int) Math.floor(sy), z0 = (int) Math.floor(sz);
-					final double ax = sx - x0, ay = sy - y0, az = sz - z0;
-					double v = 0;
-					for (int k = 0; k < 8; k++) {
-						final int xi = x0 + (k & 1), yi = y0 + ((k >> 1) & 1), zi = z0 + ((k >> 2) & 1);
-						if (xi < 0 || yi < 0 || zi < 0 || xi >= nx || yi >= ny || zi >= nz) continue;
-						final double w = ((k & 1) == 1 ? ax : 1 - ax) * (((k >> 1) & 1) == 1 ? ay : 1 - ay) * (((k >> 2) & 1) == 1 ? az : 1 - az);
-						v += w * src[xi + nx * (yi + ny * zi)];
-					}
-					dst[x + nx * (y + ny * z)] = (float) v;
-				}
-		return Psfs.normalized(Volume.wrap(dst, nx, ny, nz, psf.voxelSize()));
+		return Psfs.normalized(Trilinear.sample(psf, axis(psf.nx(), f), axis(psf.ny(), f), axis(psf.nz(), f), psf.voxelSize()));
+	}
+
+	/** Output i of n samples input index c + (i − c)/f, c the centre. */
+	private static Trilinear.Axis axis(final int n, final double f) {
+		final double c = (n - 1) / 2.0;
+		final double[] at = new double[n];
+		for (int i = 0; i < n; i++) at[i] = c + (i - c) / f;
+		return Trilinear.Axis.zeroOutside(at, n);
 	}
 
 	static String check(final Scene s) {
