@@ -381,6 +381,17 @@ public final class RichardsonLucyEngine {
 	}
 
 	/**
+	 * dst ← H x on the image window (no background; x fastest, then y, z), for criteria that need the re-blurred
+	 * iterate itself (one convolution; the iterate is not changed, t holds a copy of x afterwards).
+	 */
+	public void blurInto(final float[] dst) {
+		if (dst.length != nx * ny * nz) throw new IllegalArgumentException("Array of " + dst.length + " values does not match the image");
+		final float[] tt = t;
+		convolve(false, objectRows, null, windowRows, (r, o) -> System.arraycopy(tt, o + wx, dst, ((r % py - wy) + ny * (r / py - wz)) * nx, nx));
+		copyObjectToGrid();
+	}
+
+	/**
 	 * The ratio row of the window moved by (dx, dy, dz): t ← y / max(t + b, floor) in the window and 0
 	 * elsewhere in the row; log-likelihood, Σ Hx and the held-out log-likelihood of the row into the partial
 	 * sums ({@link #ratioSums}), and the background fit's ratio sums.

@@ -80,6 +80,11 @@ final class RichardsonLucySolver {
 		return engine.logLikelihoodOf(v, background);
 	}
 
+	/** dst ← H x of the current estimate on the image window, without background ({@link RichardsonLucyEngine#blurInto}). */
+	void blurInto(final float[] dst) {
+		engine.blurInto(dst);
+	}
+
 	/** Per image row, the terms of the last {@link #logLikelihoodOf} (y fastest, then z). */
 	double[] rowLogLikelihoods() {
 		return engine.logLikelihoodRows();
