@@ -60,8 +60,9 @@ for (z = 1; z <= nSlices; z++) {
 print("simulated vs bundled recording: max |difference| on a 7-voxel grid = " + maxDiff + " (16-bit rounding allows 0.5)");
 if (maxDiff > 0.5) exit("The simulation does not reproduce the bundled recording");
 // 3. Deconvolve the bundled recording with the default run: only the image, the PSF and the camera offset (100,
-//    known for this camera) are given, so Deconvolve runs accelerated Richardson-Lucy stopped where a held-out
-//    half of the photons is predicted best (at most 100 iterations), the background from the darkest region,
+//    known for this camera) are given, so Deconvolve runs accelerated Richardson-Lucy on two random halves of the
+//    photons and stops where each half's result is closest to the other half within the optics' band (at most
+//    100 iterations; the full data then get 1.17 times as many), the background from the darkest region,
 //    extended edges; its notes give the camera gain and read noise estimated from the recording.
 run("Deconvolve...", "image=quillwort-widefield.tif psf=" + psf + " offset=100");
 path = newPath(out, "quillwort-deconvolved.tif");

@@ -36,9 +36,9 @@ public final class DeconvolveKeys {
 			.number("regularization", "Regularization:", 0.002, 0, Double.NaN, "", "weight of total variation (richardson-lucy-tv, at most "
 					+ DeconvolutionOptions.MAX_TV_WEIGHT + ") or of the Wiener filter (above 0); ignored by the other methods. Larger = smoother")
 			.word("stop", "Stop:", DefaultRun.stop(false).key(), "<code>fixed</code>: run all iterations; <code>relative-change</code>: stop when the iterate changes less than Threshold; "
-					+ "<code>held-out</code> (default): the photons are split at random into two halves, the method runs on one half and "
-					+ "stops where its iterate best predicts the other half (Coakley, IEEE Trans. Nucl. Sci. 1991); the full data then get "
-					+ "that many iterations. The Log says when no interior peak was found within Iterations. A macro line that gives "
+					+ "<code>held-out</code> (default): the photons are split at random into two halves, the method runs on each half and "
+					+ "stops where its iterate, re-blurred, is closest to the other half at the frequencies the optics pass (cross-validation, "
+					+ "Coakley, IEEE Trans. Nucl. Sci. 1991); the full data then get 1.17 times that many iterations. The Log says when no interior peak was found within Iterations. A macro line that gives "
 					+ "<code>iterations</code> without <code>stop</code> runs them all (<code>fixed</code>), as before")
 			.number("threshold", "Threshold:", 0.001, Double.NaN, Double.NaN, "relative change",
 					"relative change between two iterates below which the run stops (with relative-change only; strictly between 0 and 1)")

@@ -4,7 +4,8 @@ package org.parfocal.deconv;
  * What {@code Deconvolve...} (and a recipe of {@code bin/parfocal-blocks}, Spark and batch runs) does when a macro
  * line or recipe leaves out {@code method}, {@code iterations} or {@code stop}: the setting the independent
  * scene table showed best (README, "Judged on independent scenes"): accelerated Richardson–Lucy stopped by the
- * held-out likelihood ({@link HoldOutStop}), with {@link #CAP} iterations as the cap. A line that gives
+ * held-out stop ({@link HoldOutStop}: Poisson-thinned halves, the object's error within the optics' band), with
+ * {@link #CAP} iterations as the cap. A line that gives
  * {@code iterations} but not {@code stop} runs exactly that many iterations, as every line did before the held-out
  * stop existed; recorded lines carry all three keys, so they reproduce their run exactly.
  */

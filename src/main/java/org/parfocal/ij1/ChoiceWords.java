@@ -31,7 +31,7 @@ final class ChoiceWords {
 		words("method", "richardson-lucy", "Richardson-Lucy", "richardson-lucy-tv", "Richardson-Lucy + total variation",
 				"accelerated-richardson-lucy", "Richardson-Lucy, accelerated", "wiener", "Wiener filter (one step)");
 		words("stop", "fixed", "after all the iterations", "relative-change", "when the change per iteration < threshold",
-				"held-out", "where held-out photons are predicted best");
+				"held-out", "where the result best matches held-out photons");
 		words("edges", "extended", "object extends past the stack", "periodic", "stack repeats itself (fast)", "zero",
 				"nothing outside (for comparisons)");
 		words("psf", Deconvolve.FROM_OPTICS, "compute from the optics (next dialog)", BlindDeconvolve.GAUSSIAN, "Gaussian of the widths below");

@@ -29,7 +29,7 @@ final class DeconvolveHints {
 		final boolean wiener = m == DeconvolutionMethod.WIENER;
 		final String iterations = wiener ? "not used: the Wiener filter is one step"
 				: stop == Stopping.FIXED ? "all of them run"
-				: stop == Stopping.HELD_OUT ? "at most; stops where held-out photons are predicted best" : "at most; stops earlier below the threshold";
+				: stop == Stopping.HELD_OUT ? "at most; stops where the result best matches held-out photons" : "at most; stops earlier below the threshold";
 		final String regularization = switch (m) {
 		case RL_TV -> "total-variation weight (e.g. 0.002)";
 		case WIENER -> "Wiener weight, above 0 (e.g. 0.001)";

@@ -21,8 +21,14 @@ import org.parfocal.core.Volume;
  */
 class HoldOutStopTest {
 
-	/** Margin (dB) of the held-out suggestion against the best iterate, on this scene (measured: 0.57 dB for RL, 0.95 dB for accelerated RL). */
-	static final double MARGIN_DB = 1.0;
+	/**
+	 * Margin (dB) of the default rule's suggestion (band criterion, two folds) against the best iterate, on this
+	 * scene (measured 2026-12-04: 0.06 dB for RL, 0.01 dB for accelerated RL; the likelihood criterion, one fold,
+	 * misses it: 0.57 and 0.95 dB).
+	 */
+	static final double MARGIN_DB = 0.2;
+	/** The same for the likelihood criterion with one fold (the rule before the band one). */
+	static final double LIKELIHOOD_MARGIN_DB = 1.0;
 	static final int CAP = 120;
 
 	record Scene(Volume truth, Volume psf, Volume recording) {}
@@ -61,9 +67,12 @@ class HoldOutStopTest {
 			final double[] c = curve(s, m);
 			int best = 0;
 			for (int i = 1; i < c.length; i++) if (c[i] > c[best]) best = i;
+			// the criterion before the band one, still offered to the scene table, must also land near the best
+			final HoldOutStop.Result l = HoldOutStop.suggest(s.recording(), s.psf(), options(m, Stopping.HELD_OUT), Monitor.NONE, HoldOutStop.Rule.likelihood(1, 1));
+			assertTrue(l.interior() && c[l.fullIterations() - 1] >= c[best] - LIKELIHOOD_MARGIN_DB, m.key() + " likelihood: " + l.reason());
 			final HoldOutStop.Result h = HoldOutStop.suggest(s.recording(), s.psf(), options(m, Stopping.HELD_OUT), Monitor.NONE);
-			System.out.printf(java.util.Locale.ROOT, "%s: best iterate %d (%.2f dB), held-out peak %d -> %d (%.2f dB)%n", m.key(), best + 1, c[best], h.peak(),
-					h.fullIterations(), c[h.fullIterations() - 1]);
+			System.out.printf(java.util.Locale.ROOT, "%s: best iterate %d (%.2f dB), held-out best %d -> %d (%.2f dB); likelihood %d -> %d (%.2f dB)%n", m.key(), best + 1,
+					c[best], h.peak(), h.fullIterations(), c[h.fullIterations() - 1], l.peak(), l.fullIterations(), c[l.fullIterations() - 1]);
 			assertTrue(best + 1 < CAP, m.key() + ": the scene must have an interior best iterate for the test to mean something");
 			assertTrue(h.interior(), m.key() + ": " + h.reason());
 			assertTrue(h.peak() > 0 && h.peak() < h.evaluated() && h.evaluated() <= CAP, h.reason());
@@ -75,7 +84,7 @@ class HoldOutStopTest {
 					options(m, Stopping.FIXED).withIterations(h.fullIterations()), Monitor.NONE);
 			assertEquals(h.fullIterations(), r.iterations());
 			assertArrayEquals(f.estimate().data(), r.estimate().data());
-			assertTrue(r.notes().stream().anyMatch(n -> n.startsWith("Held-out stop (Coakley 1991): held-out likelihood peaked")), r.notes().toString());
+			assertTrue(r.notes().stream().anyMatch(n -> n.startsWith("Held-out stop (Coakley 1991): held-out error within the optics' band was least at iteration")), r.notes().toString());
 		}
 	}
 
@@ -106,7 +115,7 @@ class HoldOutStopTest {
 		final DeconvolutionOptions o = options(DeconvolutionMethod.RL, Stopping.HELD_OUT).withIterations(3);
 		final DeconvolutionResult r = Deconvolution.run(s.recording(), s.psf(), o, Monitor.NONE);
 		assertEquals(3, r.iterations());
-		assertTrue(r.notes().stream().anyMatch(n -> n.contains("still rising at the cap of 3 iterations (no interior peak)")), r.notes().toString());
+		assertTrue(r.notes().stream().anyMatch(n -> n.contains("still falling at the cap of 3 iterations (no interior peak)")), r.notes().toString());
 		final HoldOutStop.Result h = HoldOutStop.suggest(s.recording(), s.psf(), o, Monitor.NONE);
 		assertFalse(h.interior());
 	}

@@ -64,7 +64,7 @@ class DefaultRunCommandTest {
 		assertArrayEquals(expected.data(), pixels(def), "the default run = the core's accelerated RL with the held-out stop");
 		final long done = (Long) p.run().get("iterations");
 		assertTrue(done >= 1 && done <= DefaultRun.CAP, "within the cap: " + p.run().get("stop_reason"));
-		assertTrue(p.run().get("stop_reason").toString().contains("held-out likelihood"), p.run().get("stop_reason").toString());
+		assertTrue(p.run().get("stop_reason").toString().contains("held-out error within the optics' band"), p.run().get("stop_reason").toString());
 
 		// the recorded line of that run replays it exactly
 		final ImagePlus again = ImageJHarness.run(img, "Deconvolve...", org.parfocal.provenance.MacroOptions.format(p.options())).onlyCreated();

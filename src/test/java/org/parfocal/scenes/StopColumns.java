@@ -34,8 +34,14 @@ final class StopColumns {
 		return SceneBenchmark.options(s, m, CAP, w, b);
 	}
 
+	/** The default rule's split run ({@link HoldOutStop#RULE}); its full-data count is {@link #defaultIterations}. */
 	static HoldOutStop.Result held(final Scene s, final DeconvolutionOptions o) {
-		return held(s, o, HoldOutStop.FOLDS);
+		return held(s, o, HoldOutStop.RULE);
+	}
+
+	/** Iterations the default rule gives the full data. */
+	static int defaultIterations(final HoldOutStop.Result h) {
+		return Math.max(1, Math.min(CAP, (int) Math.round(HoldOutStop.RULE.factor() * h.peak())));
 	}
 
 	static HoldOutStop.Result held(final Scene s, final DeconvolutionOptions o, final int folds) {
@@ -44,7 +50,22 @@ final class StopColumns {
 
 	/** The held-out stop with a split of 1 − 2^−bits / 2^−bits (made once per scene and options). */
 	static HoldOutStop.Result held(final Scene s, final DeconvolutionOptions o, final int folds, final int bits) {
-		return SUGGESTIONS.computeIfAbsent(s.name() + " " + folds + " " + bits + " " + o, k -> HoldOutStop.suggest(s.recording(), s.psf(), o, Monitor.NONE, folds, bits));
+		return held(s, o, HoldOutStop.Rule.likelihood(folds, bits));
+	}
+
+	/** The held-out stop with any rule (made once per scene, rule and options). */
+	static HoldOutStop.Result held(final Scene s, final DeconvolutionOptions o, final HoldOutStop.Rule rule) {
+		// the factor does not change the split runs: one run per criterion, folds and split
+		final HoldOutStop.Rule run = new HoldOutStop.Rule(rule.criterion(), rule.folds(), rule.bits(), 1);
+		return SUGGESTIONS.computeIfAbsent(s.name() + " " + run + " " + o, k -> HoldOutStop.suggest(s.recording(), s.psf(), o, Monitor.NONE, run));
+	}
+
+	/** The suggestion of a rule at its own factor: gain, distance to the curve's best, k* and an edge flag. */
+	static String heldOut(final Scene s, final SceneRuns r, final DeconvolutionOptions o, final HoldOutStop.Rule rule) {
+		final HoldOutStop.Result h = held(s, o, rule);
+		final SceneRuns.Curve c = r.curve(s, o);
+		final int n = Math.max(1, Math.min(CAP, (int) Math.round(rule.factor() * h.peak())));
+		return SceneBenchmark.db(gain(s, c.at(n))) + " (" + SceneBenchmark.db(c.at(n) - c.best()) + ", k*=" + h.peak() + (h.interior() ? "" : " edge") + ")";
 	}
 
 	static double gain(final Scene s, final double psnr) {
@@ -56,9 +77,12 @@ final class StopColumns {
 		return SceneBenchmark.db(gain(s, c.best())) + " @" + (c.bestIndex() + 1);
 	}
 
-	/** The held-out suggestion of options o: gain at round(f·k*) and its distance to the curve's best; "k*" and an edge flag. */
+	/**
+	 * The likelihood criterion's suggestion of options o with one fold (the held-out rule before the band
+	 * criterion): gain at round(f·k*) and its distance to the curve's best; "k*" and an edge flag.
+	 */
 	static String heldOut(final Scene s, final SceneRuns r, final DeconvolutionOptions o, final double factor) {
-		return heldOut(s, r, o, factor, HoldOutStop.FOLDS);
+		return heldOut(s, r, o, factor, 1);
 	}
 
 	static String heldOut(final Scene s, final SceneRuns r, final DeconvolutionOptions o, final double factor, final int folds) {
@@ -79,19 +103,19 @@ final class StopColumns {
 			final DeconvolutionOptions o = opts(s, acc, 0, Level.ESTIMATED);
 			final HoldOutStop.Result h = held(s, o);
 			final SceneRuns.Curve c = r.curve(s, o);
-			return SceneBenchmark.db(gain(s, c.at(h.fullIterations()))) + " @" + h.fullIterations() + (h.interior() ? "" : " edge");
+			return SceneBenchmark.db(gain(s, c.at(defaultIterations(h)))) + " @" + defaultIterations(h) + (h.interior() ? "" : " edge");
 		}));
 		cols.add(SceneBenchmark.column("default run, bg true", (s, r) -> {
 			final DeconvolutionOptions o = opts(s, acc, 0, SceneBenchmark.trueBackground(s));
 			final HoldOutStop.Result h = held(s, o);
-			return SceneBenchmark.db(gain(s, r.curve(s, o).at(h.fullIterations()))) + " @" + h.fullIterations();
+			return SceneBenchmark.db(gain(s, r.curve(s, o).at(defaultIterations(h)))) + " @" + defaultIterations(h);
 		}));
 		for (final String bg : List.of("dark", "fit", "fit-smooth"))
 			cols.add(SceneBenchmark.column("default run, bg " + bg, (s, r) -> {
 				final Level b = bg.equals("dark") ? SceneBenchmark.darkBackground(s) : bg.equals("fit") ? Level.FIT : Level.FIT_SMOOTH;
 				final DeconvolutionOptions o = opts(s, acc, 0, b);
 				final HoldOutStop.Result h = held(s, o);
-				return SceneBenchmark.db(gain(s, r.curve(s, o).at(h.fullIterations()))) + " @" + h.fullIterations() + (h.interior() ? "" : " edge");
+				return SceneBenchmark.db(gain(s, r.curve(s, o).at(defaultIterations(h)))) + " @" + defaultIterations(h) + (h.interior() ? "" : " edge");
 			}));
 		cols.add(SceneBenchmark.column("best iterate (methods x TV weights, bg true)", (s, r) -> {
 			SceneRuns.Curve bc = null;
@@ -117,6 +141,18 @@ final class StopColumns {
 			for (final double f : folds == 1 ? new double[] { 1 } : new double[] { 1, 1.25, 1.5 })
 				cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "fold%d acc held-out x%.2f", folds, f),
 						(s, r) -> heldOut(s, r, opts(s, acc, 0, SceneBenchmark.trueBackground(s)), f, folds)));
+		for (final int folds : new int[] { 1, 2 })
+			for (final double f : new double[] { 1, 1.17, 1.25 }) {
+				final HoldOutStop.Rule rule = new HoldOutStop.Rule(HoldOutStop.Criterion.BAND, folds, 1, f);
+				cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "band fold%d acc x%.2f", folds, f),
+						(s, r) -> heldOut(s, r, opts(s, acc, 0, SceneBenchmark.trueBackground(s)), rule)));
+				cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "band fold%d tv 0.002 x%.2f", folds, f),
+						(s, r) -> heldOut(s, r, opts(s, tv, 0.002, SceneBenchmark.trueBackground(s)), rule)));
+				cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "band fold%d acc bg auto x%.2f", folds, f),
+						(s, r) -> heldOut(s, r, opts(s, acc, 0, Level.ESTIMATED), rule)));
+				cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "band fold%d acc bg dark x%.2f", folds, f),
+						(s, r) -> heldOut(s, r, opts(s, acc, 0, SceneBenchmark.darkBackground(s)), rule)));
+			}
 		for (final String bg : List.of("true", "dark"))
 			for (final int bits : new int[] { 1, 2, 3, 4 })
 				for (final double f : new double[] { 1, 1 / (1 - Math.pow(2, -bits)) })
