@@ -67,6 +67,11 @@ public final class BlockDeconvolution {
 	 * @throws IllegalArgumentException as the whole-stack run would (non-finite values, nothing above the
 	 *         offset, background at or above the brightest voxel)
 	 */
+	public static Levels levels(final BlockSource source, final Volume psf, final DeconvolutionOptions options, final Monitor monitor) throws IOException {
+		return levels(source, options.withBackground(Preprocessing.forPsf(options.background(), psf)), monitor);
+	}
+
+	/** As above for options whose background does not depend on the PSF (not {@code by-psf}). */
 	public static Levels levels(final BlockSource source, final DeconvolutionOptions options, final Monitor monitor) throws IOException {
 		final Monitor mon = monitor == null ? Monitor.NONE : monitor;
 		final int[] n = source.shape();
@@ -85,7 +90,8 @@ public final class BlockDeconvolution {
 		}
 		// y = max(0, (float)(v - offset)): its sum (in stack order, as the engine sums it), maximum and sample
 		final double[] stats = new double[3]; // sum, max, clipped
-		final DarkBoxes dark = options.background().kind() == Level.Kind.DARK ? new DarkBoxes(n) : null;
+		final Level.Kind bk = options.background().kind();
+		final DarkBoxes dark = bk == Level.Kind.DARK || bk == Level.Kind.DARK_OR_MEDIAN ? new DarkBoxes(n) : null;
 		final float[] ys = sampleY(source, step, offset, stats, dark, mon);
 		if (!(stats[0] > 0))
 			throw new IllegalArgumentException(offset == 0 ? "The image is all zero (or negative): nothing to deconvolve"
@@ -104,6 +110,13 @@ public final class BlockDeconvolution {
 			background = dark.level();
 			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (darkest region)", background));
 		}
+		case DARK_OR_MEDIAN -> {
+			final double median = Preprocessing.estimateBackground(ys);
+			background = Math.max(dark.level(), median);
+			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (the larger of the darkest region, %.4g, and the sigma-clipped median, %.4g)",
+					background, dark.level(), median));
+		}
+		case BY_PSF -> throw new IllegalArgumentException("background=by-psf needs the PSF: resolve it with Preprocessing.forPsf first");
 		case FIT, FIT_SMOOTH -> throw new IllegalArgumentException("background=fit is not available block by block yet: give a number (e.g. the fitted value of a run on a crop) or auto");
 		default -> background = 0;
 		}
@@ -158,12 +171,14 @@ public final class BlockDeconvolution {
 	 * The whole block-wise run: levels, then each block in turn into {@code sink}; commits the sink at the end,
 	 * aborts it (nothing left looking complete) on any failure or cancellation.
 	 */
-	public static Result run(final BlockSource source, final Volume psf, final DeconvolutionOptions options, final BlockPlan plan, final BlockSink sink,
+	public static Result run(final BlockSource source, final Volume psf, final DeconvolutionOptions given, final BlockPlan plan, final BlockSink sink,
 			final Monitor monitor) throws IOException {
 		final Monitor mon = monitor == null ? Monitor.NONE : monitor;
 		if (!Arrays.equals(plan.shape(), source.shape()))
 			throw new IllegalArgumentException("The block plan is for a " + BlockPlan.text(plan.shape()) + " stack, but " + source.name() + " is "
 					+ BlockPlan.text(source.shape()));
+		// background=by-psf: the level the PSF's shape calls for, decided once for every block
+		final DeconvolutionOptions options = given.withBackground(Preprocessing.forPsf(given.background(), psf));
 		try {
 			final Levels levels = levels(source, options, mon);
 			final List<String> stopNotes = new ArrayList<>();

@@ -41,9 +41,11 @@ public final class Deconvolution {
 	 * @throws IllegalArgumentException with a one-line message for unusable inputs
 	 * @throws Monitor.CancelledException when cancelled
 	 */
-	public static DeconvolutionResult run(final Volume image, final Volume psf, final DeconvolutionOptions options, final Volume initial,
+	public static DeconvolutionResult run(final Volume image, final Volume psf, final DeconvolutionOptions given, final Volume initial,
 			final Monitor monitor, final IterationListener listener) {
-		if (image == null || psf == null || options == null) throw new IllegalArgumentException("No image, PSF or options given");
+		if (image == null || psf == null || given == null) throw new IllegalArgumentException("No image, PSF or options given");
+		// background=by-psf: the level the PSF's shape calls for (Preprocessing.forPsf)
+		final DeconvolutionOptions options = given.withBackground(Preprocessing.forPsf(given.background(), psf));
 		final Monitor mon = monitor == null ? Monitor.NONE : monitor;
 		final IterationListener lis = listener == null ? IterationListener.NONE : listener;
 		final int[] n = image.shape();
@@ -55,6 +57,7 @@ public final class Deconvolution {
 		final Preprocessing.Psf p = Preprocessing.psf(psf, n);
 		final Preprocessing.Data d = Preprocessing.data(image, options.offset(), options.background());
 		final List<String> notes = new ArrayList<>(p.notes());
+		if (given.background().kind() == Level.Kind.BY_PSF) notes.add(Preprocessing.byPsfReason(options.background()));
 		notes.addAll(d.notes());
 		mon.checkCancelled();
 		if (options.method() == DeconvolutionMethod.WIENER) {

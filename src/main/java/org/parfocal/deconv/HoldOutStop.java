@@ -138,7 +138,7 @@ public final class HoldOutStop {
 		if (!options.method().isIterative()) throw new IllegalArgumentException("The held-out stop needs an iterative method");
 		final int[] n = image.shape();
 		final Preprocessing.Psf p = Preprocessing.psf(psf, n);
-		final Preprocessing.Data d = Preprocessing.data(image, options.offset(), options.background());
+		final Preprocessing.Data d = Preprocessing.data(image, options.offset(), Preprocessing.forPsf(options.background(), psf));
 		final Saturation sat = Saturation.detect(image);
 		if (sat != null) {
 			final float[] in = image.data(), yv = d.y();

@@ -89,6 +89,15 @@ public final class Preprocessing {
 			background = estimateDarkBackground(y, image.nx(), image.ny(), image.nz());
 			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (darkest region)", background));
 			break;
+		case DARK_OR_MEDIAN: {
+			final double dark = estimateDarkBackground(y, image.nx(), image.ny(), image.nz()), median = estimateBackground(y);
+			background = Math.max(dark, median);
+			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (the larger of the darkest region, %.4g, and the sigma-clipped median, %.4g)",
+					background, dark, median));
+			break;
+		}
+		case BY_PSF:
+			throw new IllegalArgumentException("background=by-psf needs the PSF: resolve it with Preprocessing.forPsf first");
 		case FIT:
 		case FIT_SMOOTH:
 			background = BackgroundFit.start(y, image.nx(), image.ny(), image.nz());
@@ -102,6 +111,41 @@ public final class Preprocessing {
 			throw new IllegalArgumentException(String.format(Locale.ROOT,
 					"The background (%.4g) is at or above the brightest offset-corrected voxel (%.4g): nothing is left to deconvolve", background, max));
 		return new Data(y, offset, background, notes);
+	}
+
+	/**
+	 * {@code background=by-psf} made concrete for a PSF: {@link Level#DARK_OR_MEDIAN} when the PSF's out-of-focus
+	 * light fades ({@link #fadesOutOfFocus}: confocal-like, so no out-of-focus haze can pass for background and the
+	 * sigma-clipped median is a fair level, where the darkest region underestimates a sloping or noisy background),
+	 * {@link Level#DARK} otherwise (widefield: the median would take the haze for background). Other levels are
+	 * returned as they are. Chosen on the independent scenes (README, "The background by the PSF").
+	 */
+	public static Level forPsf(final Level background, final Volume psf) {
+		if (background.kind() != Level.Kind.BY_PSF) return background;
+		return fadesOutOfFocus(psf) ? Level.DARK_OR_MEDIAN : Level.DARK;
+	}
+
+	/** The note that says which level {@code background=by-psf} took, and why. */
+	public static String byPsfReason(final Level resolved) {
+		return resolved.kind() == Level.Kind.DARK_OR_MEDIAN
+				? "Background by the PSF: its light fades out of focus (confocal-like), so the larger of the darkest region and the sigma-clipped median"
+				: "Background by the PSF: it keeps light out of focus (widefield-like, or too few planes to tell), so the darkest region";
+	}
+
+	/**
+	 * True when the PSF has at least 3 planes, the fainter of its two outer planes carries less than
+	 * {@link org.parfocal.psf.PsfExtent#OUTER_PLANE_SHARE} of its brightest plane's light (a widefield PSF keeps every
+	 * plane's sum, common practice; a confocal one loses it with defocus) and its light fades inside the lateral
+	 * box ({@link org.parfocal.psf.PsfExtent#edgeLevel} at most {@link org.parfocal.psf.PsfExtent#EDGE_LEVEL}: a
+	 * widefield PSF cut by too small a box also loses its outer planes' light, but not inside the box). 2D PSFs
+	 * and short boxes: false.
+	 */
+	public static boolean fadesOutOfFocus(final Volume psf) {
+		if (psf.nz() < 3 || psf.nx() >= 3 && psf.ny() >= 3 && org.parfocal.psf.PsfExtent.edgeLevel(psf) > org.parfocal.psf.PsfExtent.EDGE_LEVEL) return false;
+		final double[] s = org.parfocal.psf.PsfExtent.planeSums(psf);
+		double max = 0;
+		for (final double v : s) max = Math.max(max, v);
+		return max > 0 && Math.min(s[0], s[s.length - 1]) < org.parfocal.psf.PsfExtent.OUTER_PLANE_SHARE * max;
 	}
 
 	static Psf psf(final Volume psf, final int[] imageShape) {

@@ -64,7 +64,7 @@ final class DeconvolveWatchHooks implements DeconvolveRunner.Hooks {
 	public IterationListener listener(final int c, final int t, final Volume recording, final Volume psf) {
 		if (o.watch() == null) return IterationListener.NONE;
 		final DeconvolutionOptions d = o.deconvolution();
-		final double[] lv = QualityWatch.Consistency.levels(recording, d.offset(), d.background());
+		final double[] lv = QualityWatch.Consistency.levels(recording, d.offset(), org.parfocal.deconv.Preprocessing.forPsf(d.background(), psf));
 		final double[] noise = o.watch().noise(recording, lv[0], notes);
 		final QualityWatch w = new QualityWatch(prepared, QualityWatch.Consistency.forDeconvolution(recording, psf, d.edges() == EdgeMode.PERIODIC, lv[0], lv[1],
 				noise[0], noise[1]), o.watch().every(), o.watch().stopAtSuggestion(), voxelSize);

@@ -44,10 +44,13 @@ final class PreviewRun {
 		final DeconvolutionMethod method = DeconvolutionMethod.parse(ChoiceWords.value("method", ((Choice) ch.get(2)).getSelectedItem()));
 		final EdgeMode edges = EdgeMode.parse(ChoiceWords.value("edges", ((Choice) ch.get(4)).getSelectedItem()));
 		final double iterations = number((TextField) num.get(0), "Iterations"), regularization = number((TextField) num.get(1), "Regularization");
+		// the preview runs no background fit; the levels that follow the PSF (by-psf, dark-or-median) it runs as Deconvolve does
+		final String bg = ((TextField) str.get(1)).getText().trim();
+		final boolean byPsf = bg.equalsIgnoreCase("by-psf") || bg.equalsIgnoreCase("dark-or-median");
 		final DeconvolutionOptions d = DeconvolutionOptions.of(method, (int) Math.max(1, Math.min(DeconvolvePreview.MAX_ITERATIONS, Math.rint(iterations))))
 				.withRegularization(regularization).withEdges(edges)
 				.withOffset(Level.parse("offset", ((TextField) str.get(0)).getText().trim(), false))
-				.withBackground(Level.parse("background", ((TextField) str.get(1)).getText().trim(), false));
+				.withBackground(Level.parse("background", bg, byPsf));
 		final boolean recentre = cb.size() > 2 && ((Checkbox) cb.get(2)).getState();
 		return new Settings(image, psf, d, recentre);
 	}

@@ -75,6 +75,12 @@ public final class QualityWatch implements IterationListener, WatchedRun {
 			};
 			final double b = switch (background.kind()) {
 			case VALUE -> background.value();
+			case BY_PSF -> throw new IllegalArgumentException("background=by-psf needs the PSF: resolve it with Preprocessing.forPsf first");
+			case DARK_OR_MEDIAN -> {
+				final float[] in = recording.data(), y = new float[in.length];
+				for (int i = 0; i < in.length; i++) y[i] = (float) Math.max(0, in[i] - o);
+				yield Math.max(Preprocessing.estimateDarkBackground(y, recording.nx(), recording.ny(), recording.nz()), Preprocessing.estimateBackground(y));
+			}
 			case DARK, FIT, FIT_SMOOTH -> {
 				final float[] in = recording.data(), y = new float[in.length];
 				for (int i = 0; i < in.length; i++) y[i] = (float) Math.max(0, in[i] - o);

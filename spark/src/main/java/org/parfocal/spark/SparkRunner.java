@@ -341,7 +341,7 @@ public final class SparkRunner {
 			final long bytes = Files.size(in), modified = Files.getLastModifiedTime(in).toMillis();
 			final Volume psf = BlockRunner.loadPsf(recipe, source.voxelSize(), source.shape());
 			final BlockPlan plan = org.parfocal.command.DeconvolveRunner.plan(source.shape(), psf.shape(), recipe.options(), driverBudget(sc, s), s.tile());
-			final BlockDeconvolution.Levels levels = BlockDeconvolution.levels(source, recipe.options(), Monitor.NONE);
+			final BlockDeconvolution.Levels levels = BlockDeconvolution.levels(source, psf, recipe.options(), Monitor.NONE);
 			final TiffBlockSink sink = BlockRunner.sink(out, source.shape(), source.voxelSize(), recipe,
 					BlockRunner.provenance(recipe, in, source.shape(), psf, plan, "SparkRunner blocks", s.threads()));
 			final Path parts = out.resolveSibling("." + out.getFileName() + ".parts-" + sc.sc().applicationId() + "-" + System.nanoTime());
@@ -463,7 +463,7 @@ public final class SparkRunner {
 		for (int t = 0; t < l.frames(); t++)
 			for (int c = 0; c < l.channels(); c++)
 				try (var src = ZarrBlockRunner.openSource(in, t, c)) {
-					levels.add(BlockDeconvolution.levels(src, recipe.options(), Monitor.NONE));
+					levels.add(BlockDeconvolution.levels(src, psfs.get(c), recipe.options(), Monitor.NONE));
 				}
 		TASK_NANOS.addAndGet(4, System.nanoTime() - lv);
 		final var record = ZarrBlockRunner.provenance(recipe, psfFiles, in, l, plans, "SparkRunner blocks", s.threads());
