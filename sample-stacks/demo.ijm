@@ -62,8 +62,8 @@ if (maxDiff > 0.5) exit("The simulation does not reproduce the bundled recording
 // 3. Deconvolve the bundled recording with the default run: only the image, the PSF and the camera offset (100,
 //    known for this camera) are given, so Deconvolve runs accelerated Richardson-Lucy on two random halves of the
 //    photons and stops where each half's result is closest to the other half within the optics' band (at most
-//    100 iterations; the full data then get 1.17 times as many), the background from the darkest region,
-//    extended edges; its notes give the camera gain and read noise estimated from the recording.
+//    100 iterations; the full data then get 1.17 times as many), the background chosen by the PSF
+//    (this widefield PSF keeps its light out of focus, so the darkest region), extended edges; its notes give the camera gain and read noise estimated from the recording.
 run("Deconvolve...", "image=quillwort-widefield.tif psf=" + psf + " offset=100");
 path = newPath(out, "quillwort-deconvolved.tif");
 saveAs("Tiff", path);

@@ -45,8 +45,10 @@ public final class DeconvolveKeys {
 			.word("edges", "Edges:", EdgeMode.NON_CIRCULANT.key(), "what lies past the stack's edges: " + EDGES)
 			.text("offset", "Offset:", "auto", "intensity units", "camera offset subtracted first: " + LEVEL + "; auto = the 0.1 % quantile")
 			.text("background", "Background:", DefaultRun.BACKGROUND, "intensity units", "constant b in the image model H&middot;x + b: " + LEVEL
-					+ "; auto = sigma-clipped median after the offset; <code>dark</code> = the darkest region (the default: <code>auto</code> takes "
-					+ "out-of-focus light for background); <code>fit</code> = fitted with the object inside Richardson&ndash;Lucy (maximum-likelihood "
+					+ "; auto = sigma-clipped median after the offset; <code>dark</code> = the darkest region (<code>auto</code> takes "
+					+ "out-of-focus light for background); <code>dark-or-median</code> = the larger of the two; <code>by-psf</code> (the default) = "
+					+ "<code>dark</code> for a PSF that keeps its light out of focus (widefield), <code>dark-or-median</code> for one whose outer "
+					+ "planes hold less than a quarter of its brightest plane's light and whose box edge is dim (confocal-like); <code>fit</code> = fitted with the object inside Richardson&ndash;Lucy (maximum-likelihood "
 					+ "EM step, Shepp &amp; Vardi 1982; the fitted value goes into the Log and the provenance); <code>fit-smooth</code> = a slowly "
 					+ "varying background fitted the same way (piecewise linear over a 3 &times; 3 &times; 2 grid)")
 			.word("output", "Output:", "32-bit", "<code>32-bit</code> (default; left out of recorded lines and records, so a macro without the key gets it): the computed values; <code>16-bit</code>: "

@@ -18,13 +18,17 @@ public final class DefaultRun {
 	/** Iterations (the cap of the held-out stop) of a line without {@code iterations}. */
 	public static final int CAP = 100;
 	/**
-	 * Background of a Deconvolve line or recipe without {@code background}: the darkest region after the offset
-	 * ({@code dark}). With the default run it beat {@code auto} (a sigma-clipped median, which takes out-of-focus
-	 * light for background) on 8 of the 10 independent scenes, by up to 8.6 dB, and lost 0.5 and 2.4 dB on the two
-	 * confocal scenes with a sloping background; {@code fit} and {@code fit-smooth} lost more there (README).
-	 * Blind Deconvolve, Compare and the watch keep {@code auto}: not measured with them.
+	 * Background of a Deconvolve line or recipe without {@code background}: {@code by-psf}
+	 * ({@link Preprocessing#forPsf}): the darkest region after the offset ({@code dark}) for a PSF that keeps its
+	 * light out of focus (widefield), the larger of that and the sigma-clipped median ({@code dark-or-median}) for
+	 * one whose out-of-focus planes fade (confocal-like). On the independent scenes (README, "The background by
+	 * the PSF", 2026-12-04) it gave the same as {@code dark} on the 7 widefield scenes and +0.64, +2.83 and 0.00 dB
+	 * more on the three confocal ones, where {@code dark} underestimates a sloping background; {@code dark} itself
+	 * had beaten {@code auto} (which takes out-of-focus light for background) on 8 of 10. Lines recorded with
+	 * {@code background=dark} keep running as they did. Blind Deconvolve, Compare and the watch keep {@code auto}:
+	 * not measured with them.
 	 */
-	public static final String BACKGROUND = "dark";
+	public static final String BACKGROUND = "by-psf";
 
 	/** Stopping rule of a line without {@code stop}: held-out, unless the line gives its iterations (then fixed). */
 	public static Stopping stop(final boolean iterationsGiven) {

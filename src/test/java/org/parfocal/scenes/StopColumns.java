@@ -117,6 +117,25 @@ final class StopColumns {
 				final HoldOutStop.Result h = held(s, o);
 				return SceneBenchmark.db(gain(s, r.curve(s, o).at(defaultIterations(h)))) + " @" + defaultIterations(h) + (h.interior() ? "" : " edge");
 			}));
+		// the background by the PSF: dark where the PSF's outer planes keep its light (widefield haze), the larger of dark
+		// and the sigma-clipped median where they do not (confocal-like); "auto on confocal" for comparison
+		for (final String rule : List.of("by-psf", "auto on confocal"))
+			cols.add(SceneBenchmark.column("default run, bg " + rule, (s, r) -> {
+				final double[] sums = org.parfocal.psf.PsfExtent.planeSums(s.psf());
+				double max = 0;
+				for (final double v : sums) max = Math.max(max, v);
+				final boolean confocal = Math.min(sums[0], sums[sums.length - 1]) / max < 0.25;
+				final double dark = SceneBenchmark.darkBackground(s).value();
+				final double auto = org.parfocal.deconv.Preprocessing.data(s.recording(), Level.of(s.offset()), Level.ESTIMATED).background();
+				// by-psf through Deconvolve's own resolution (Preprocessing.forPsf); the emulation above must agree with it
+				final Level b = rule.equals("by-psf") ? Level.BY_PSF : !confocal ? Level.of(dark) : Level.of(auto);
+				final double shown = rule.equals("by-psf") ? (confocal ? Math.max(dark, auto) : dark) : b.value();
+				final DeconvolutionOptions o = opts(s, acc, 0, b);
+				final HoldOutStop.Result h = held(s, o);
+				final SceneRuns.Curve c = r.curve(s, o);
+				return SceneBenchmark.db(gain(s, c.at(defaultIterations(h)))) + " @" + defaultIterations(h) + (h.interior() ? "" : " edge") + " (own best "
+						+ best(s, c) + ", b " + String.format(Locale.ROOT, "%.1f", shown) + ")";
+			}));
 		cols.add(SceneBenchmark.column("best iterate (methods x TV weights, bg true)", (s, r) -> {
 			SceneRuns.Curve bc = null;
 			String what = null;
@@ -158,9 +177,10 @@ final class StopColumns {
 				for (final double f : new double[] { 1, 1 / (1 - Math.pow(2, -bits)) })
 					cols.add(SceneBenchmark.column(String.format(Locale.ROOT, "split %d bg %s x%.2f", bits, bg, f), (s, r) -> heldOut(s, r,
 							opts(s, acc, 0, bg.equals("true") ? SceneBenchmark.trueBackground(s) : SceneBenchmark.darkBackground(s)), f, 1, bits)));
-		for (final String bg : List.of("true", "dark", "fit", "fit-smooth"))
+		for (final String bg : List.of("true", "dark", "fit", "fit-smooth", "by-psf"))
 			cols.add(SceneBenchmark.column("bgbest " + bg, (s, r) -> {
-				final Level b = bg.equals("true") ? SceneBenchmark.trueBackground(s) : bg.equals("dark") ? SceneBenchmark.darkBackground(s) : bg.equals("fit") ? Level.FIT : Level.FIT_SMOOTH;
+				final Level b = bg.equals("true") ? SceneBenchmark.trueBackground(s) : bg.equals("dark") ? SceneBenchmark.darkBackground(s)
+						: bg.equals("fit") ? Level.FIT : bg.equals("by-psf") ? Level.BY_PSF : Level.FIT_SMOOTH;
 				return best(s, r.curve(s, opts(s, acc, 0, b)));
 			}));
 		cols.add(SceneBenchmark.column("tv 0.002 best", (s, r) -> best(s, r.curve(s, opts(s, tv, 0.002, SceneBenchmark.trueBackground(s))))));
