@@ -68,7 +68,13 @@ public final class BlockDeconvolution {
 	 *         offset, background at or above the brightest voxel)
 	 */
 	public static Levels levels(final BlockSource source, final Volume psf, final DeconvolutionOptions options, final Monitor monitor) throws IOException {
-		return levels(source, options.withBackground(Preprocessing.forPsf(options.background(), psf)), monitor);
+		if (options.background().kind() != Level.Kind.BY_PSF) return levels(source, options, monitor);
+		final Level resolved = Preprocessing.forPsf(options.background(), psf);
+		final Levels l = levels(source, options.withBackground(resolved), monitor);
+		final List<String> notes = new ArrayList<>();
+		notes.add(Preprocessing.byPsfReason(resolved));
+		notes.addAll(l.notes());
+		return new Levels(l.offset(), l.background(), l.start(), List.copyOf(notes));
 	}
 
 	/** As above for options whose background does not depend on the PSF (not {@code by-psf}). */
@@ -113,8 +119,7 @@ public final class BlockDeconvolution {
 		case DARK_OR_MEDIAN -> {
 			final double median = Preprocessing.estimateBackground(ys);
 			background = Math.max(dark.level(), median);
-			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (the larger of the darkest region, %.4g, and the sigma-clipped median, %.4g)",
-					background, dark.level(), median));
+			notes.add(Preprocessing.darkOrMedianNote(dark.level(), median));
 		}
 		case BY_PSF -> throw new IllegalArgumentException("background=by-psf needs the PSF: resolve it with Preprocessing.forPsf first");
 		case FIT, FIT_SMOOTH -> throw new IllegalArgumentException("background=fit is not available block by block yet: give a number (e.g. the fitted value of a run on a crop) or auto");
@@ -180,7 +185,7 @@ public final class BlockDeconvolution {
 		// background=by-psf: the level the PSF's shape calls for, decided once for every block
 		final DeconvolutionOptions options = given.withBackground(Preprocessing.forPsf(given.background(), psf));
 		try {
-			final Levels levels = levels(source, options, mon);
+			final Levels levels = levels(source, psf, given, mon);
 			final List<String> stopNotes = new ArrayList<>();
 			final DeconvolutionOptions opts = plan.count() > 1 ? heldOutOnce(source, psf, options, plan, levels, mon, stopNotes) : options;
 			int min = Integer.MAX_VALUE, max = 0, empty = 0;

@@ -92,8 +92,7 @@ public final class Preprocessing {
 		case DARK_OR_MEDIAN: {
 			final double dark = estimateDarkBackground(y, image.nx(), image.ny(), image.nz()), median = estimateBackground(y);
 			background = Math.max(dark, median);
-			notes.add(String.format(Locale.ROOT, "Background estimated as %.4g (the larger of the darkest region, %.4g, and the sigma-clipped median, %.4g)",
-					background, dark, median));
+			notes.add(darkOrMedianNote(dark, median));
 			break;
 		}
 		case BY_PSF:
@@ -123,6 +122,12 @@ public final class Preprocessing {
 	public static Level forPsf(final Level background, final Volume psf) {
 		if (background.kind() != Level.Kind.BY_PSF) return background;
 		return fadesOutOfFocus(psf) ? Level.DARK_OR_MEDIAN : Level.DARK;
+	}
+
+	/** The Log line of a {@code dark-or-median} level from its two estimates (whole-stack and block-wise runs). */
+	public static String darkOrMedianNote(final double dark, final double median) {
+		return String.format(Locale.ROOT, "Background estimated as %.4g (the larger of the darkest region, %.4g, and the sigma-clipped median, %.4g)",
+				Math.max(dark, median), dark, median);
 	}
 
 	/** The note that says which level {@code background=by-psf} took, and why. */

@@ -94,5 +94,6 @@ class BackgroundByPsfTest {
 		assertTrue(by.notes().stream().anyMatch(n -> n.startsWith("Background by the PSF: its light fades")), "the Log says why: " + by.notes());
 		final BlockDeconvolution.Levels l = BlockDeconvolution.levels(BlockSource.of(rec0), psf, o.withBackground(Level.BY_PSF), null);
 		assertEquals(by.background(), l.background(), 1e-9 * by.background(), "block-wise levels");
+		assertTrue(l.notes().stream().anyMatch(n -> n.startsWith("Background by the PSF: its light fades")), "block-wise Log says why: " + l.notes());
 	}
 }
