@@ -25,8 +25,9 @@ import org.parfocal.fft.RealFft;
  * r = y / (Hx + b) (the engine's ratio row), Xᵀ the correlation with the object; the TV factor is the Dey et
  * al. form applied to the PSF (the idea of TV on the PSF is Chan &amp; Wong, IEEE Trans. Image Process. 7,
  * 1998). Then the constraints ({@link PsfConstraints}). Xᵀ1(j), the sum of x over the image window shifted by
- * j, comes from separable sliding sums; Hᵀ1 after a PSF change from a summed-area table of h (both exact box
- * sums, in double).
+ * j, is the correlation of x with the window's indicator, made from the kept spectrum of x and the indicator's
+ * separable transform (one product and one inverse pruned to the PSF's rows); Hᵀ1 after a PSF change comes from
+ * a summed-area table of h (exact box sums, in double).
  * <p>
  * <b>FFT economy.</b> A PSF update needs the spectrum X of the current object; it is kept, and reused by the
  * next object update for H x (one pruned inverse transform instead of a fused convolution) as long as x has
@@ -63,8 +64,15 @@ final class BlindSolver {
 	private final PsfConstraints constraints;
 	/** spec holds the spectrum of the current x (scaled by 1/(py·pz) once specScaled); t holds x on the object rows. */
 	private boolean specValid, specScaled, tHoldsX;
-	/** Per-axis object-index interval [lo, hi) summed by Xᵀ1 for PSF offset j. */
-	private final int[][] boxLo = new int[3][], boxHi = new int[3][];
+	/**
+	 * The transform of the indicator of the window moved by the shift, one factor per axis (the indicator of a
+	 * box is separable): (re, im) per frequency, in double; Xᵀ1 is the correlation of x with that indicator.
+	 */
+	private final double[] windowX, windowY, windowZ;
+	/** {@link #windowX} in float, for the per-voxel product. */
+	private final float[] windowXf;
+	/** Xᵀ1 at the PSF offsets of the last PSF update (box array). */
+	private final float[] windowSums;
 
 	/**
 	 * @param psf the starting PSF on its box (unit sum within 1e-4, non-negative)
@@ -104,16 +112,32 @@ final class BlindSolver {
 		this.lambdaH = (float) psfTv;
 		this.epsH = (float) Math.max(RichardsonLucyEngine.TV_EPSILON / h.length, Float.MIN_NORMAL);
 		tHoldsX = true;
-		for (int d = 0; d < 3; d++) {
-			final int kd = k[d], nd = n[d], md = m[d], c = (kd - 1) / 2;
-			final int off = mode == EdgeMode.NON_CIRCULANT ? kd - 1 : c;
-			boxLo[d] = new int[kd];
-			boxHi[d] = new int[kd];
-			for (int j = 0; j < kd; j++) {
-				boxLo[d][j] = mode == EdgeMode.PERIODIC ? 0 : Math.max(0, off - j);
-				boxHi[d][j] = mode == EdgeMode.PERIODIC ? md : Math.min(md, off - j + nd);
+		windowX = boxTransform(w[0] + sx0, n[0], px, px / 2 + 1);
+		windowY = boxTransform(w[1] + sy0, n[1], py, py);
+		windowZ = boxTransform(w[2] + sz0, n[2], pz, pz);
+		windowSums = new float[h.length];
+		windowXf = new float[windowX.length];
+		for (int i = 0; i < windowX.length; i++) windowXf[i] = (float) windowX[i];
+	}
+
+	/**
+	 * Σ_{t ∈ [a, a + len)} exp(−2πi f t/p) for f in [0, count), interleaved (re, im), in double: one axis of the
+	 * forward transform of a box's indicator (the sign of the forward transforms, checked by
+	 * {@code BlindSolverTest} against direct box sums).
+	 */
+	private static double[] boxTransform(final int a, final int len, final int p, final int count) {
+		final double[] d = new double[2 * count];
+		for (int f = 0; f < count; f++) {
+			double re = 0, im = 0;
+			for (int t = a; t < a + len; t++) {
+				final double ang = -2 * Math.PI * (((long) f * t) % p) / p;
+				re += Math.cos(ang);
+				im += Math.sin(ang);
 			}
+			d[2 * f] = re;
+			d[2 * f + 1] = im;
 		}
+		return d;
 	}
 
 	/** exp(−2πi f·s/p) for f in [0, count), interleaved (re, im), in double. */
@@ -173,7 +197,7 @@ final class BlindSolver {
 		fft.convolveInPlace(e.grid(), spec, true, shiftedWindowRows, e.ratioRow(sx0, sy0, sz0), psfRows, null);
 		final double[] sums = e.ratioSums();
 		e.gatherKernel(e.grid(), g, sx0, sy0, sz0);
-		final double[] norm = objectBoxSums();
+		final float[] norm = objectWindowSums();
 		final float[] old = h.clone();
 		for (int j = 0; j < h.length; j++) {
 			float v = norm[j] > 0 ? (float) (old[j] * (double) g[j] / norm[j]) : 0f;
@@ -315,38 +339,36 @@ final class BlindSolver {
 	}
 
 	/**
-	 * Xᵀ1 at every PSF offset j: Σ x over the object box [lo(j), hi(j)) per axis (the object voxels that meet
-	 * the image window through offset j), by separable sliding sums in double: along z, then y, then x.
+	 * Xᵀ1 at every PSF offset j, the correlation of x with the indicator of the (shifted) image window, as the
+	 * ratio's correlation is made: t ← W · conj(X) from the kept spectrum and the separable transform of the
+	 * indicator, then the inverse transform pruned to the rows of the PSF offsets. This replaces box sums of the
+	 * object in double (one pass over the object domain per axis, which cost more than this product and pruned
+	 * inverse); in float, rounding of about 1e-7 of the largest sum. Needs spec scaled (after productInverse).
 	 */
-	private double[] objectBoxSums() {
-		final float[] x = e.object();
-		final double[] z = axisBoxSums(x, null, mx * my, mx, mz, 1, boxLo[2], boxHi[2]);
-		final double[] zy = axisBoxSums(null, z, mx, mx, my, kz, boxLo[1], boxHi[1]);
-		return axisBoxSums(null, zy, 1, 1, mx, ky * kz, boxLo[0], boxHi[0]);
-	}
-
-	/**
-	 * One axis of {@link #objectBoxSums}: the lines of {@code m} values along the axis (in {@code f}, else in
-	 * {@code d}), value p of line (i, q) at {@code i + stride·(p + m·q)} ({@code i < stride}, {@code q < outer}),
-	 * summed in double over [lo[j], hi[j]) by a running prefix sum; the sum of offset j goes to {@code i + stride·(j + k·q)}, k = {@code lo.length}. Runs of
-	 * {@code run} consecutive lines ({@code run} divides {@code stride}) go to the threads; each line is summed in
-	 * the same order whatever the thread count.
-	 */
-	private static double[] axisBoxSums(final float[] f, final double[] d, final int stride, final int run, final int m, final int outer,
-			final int[] lo, final int[] hi) {
-		final int k = lo.length, runs = stride / run;
-		final double[] out = new double[stride * k * outer];
-		Parallel.forRange(runs * outer, u -> {
-			final int q = u / runs, first = (u % runs) * run;
-			final double[] prefix = new double[m + 1];
-			for (int i = first; i < first + run; i++) {
-				final int from = i + stride * m * q, to = i + stride * k * q;
-				for (int p = 0; p < m; p++) prefix[p + 1] = prefix[p] + (f != null ? f[from + stride * p] : d[from + stride * p]);
-				for (int j = 0; j < k; j++) out[to + stride * j] = prefix[hi[j]] - prefix[lo[j]];
+	private float[] objectWindowSums() {
+		final float[] a = spec, tt = e.grid();
+		final double f = (double) py * pz;
+		final int hx = px / 2 + 1;
+		final float[] wx = windowXf;
+		Parallel.forRange(py * pz, r -> {
+			final int iy = r % py, iz = r / py;
+			// the y-z factor of the row, with the scale, in double; the per-voxel product in float
+			final float yr = (float) ((windowY[2 * iy] * windowZ[2 * iz] - windowY[2 * iy + 1] * windowZ[2 * iz + 1]) * f);
+			final float yi = (float) ((windowY[2 * iy] * windowZ[2 * iz + 1] + windowY[2 * iy + 1] * windowZ[2 * iz]) * f);
+			for (int q = 0, i = r * rs; q < 2 * hx; q += 2, i += 2) {
+				final float wr = yr * wx[q] - yi * wx[q + 1], wi = yr * wx[q + 1] + yi * wx[q];
+				final float ar = a[i], ai = a[i + 1];
+				tt[i] = wr * ar + wi * ai;
+				tt[i + 1] = wi * ar - wr * ai;
 			}
 		});
-		return out;
+		fft.inverseInPlace(tt, psfRows);
+		e.gatherKernel(tt, windowSums, sx0, sy0, sz0);
+		return windowSums;
 	}
+
+	/** Xᵀ1 at the PSF offsets as the last {@link #psfUpdate} used it (live). */
+	float[] lastWindowSums() { return windowSums; }
 
 	/**
 	 * Hᵀ1 on the object domain after a PSF change ({@link Sensitivity}, from a summed-area table of h). Voxels below

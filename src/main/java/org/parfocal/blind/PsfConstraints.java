@@ -18,7 +18,10 @@ final class PsfConstraints {
 	/** Band-limit filter on a zero-padded grid, or null. */
 	private final RealFft fft;
 	private final boolean[] keep;
-	private final float[] padded, spectrum;
+	/** The padded box in the in-place layout of {@link RealFft#newGrid} (real rows, then their half spectrum). */
+	private final float[] grid;
+	/** The rows of the padded grid that hold the box: the only rows transformed forward and back. */
+	private final RealFft.Rows boxRows;
 	private final boolean symmetric, centring;
 	/** Centroid to keep (voxels), set from the starting PSF. */
 	private final double[] target;
@@ -48,8 +51,8 @@ final class PsfConstraints {
 			// Zero padding to about twice the box: the filter's spread is cut back by the box, not wrapped around.
 			final int qx = FastSizes.next(2 * kx), qy = ky > 1 ? FastSizes.next(2 * ky) : 1, qz = kz > 1 ? FastSizes.next(2 * kz) : 1;
 			fft = new RealFft(qx, qy, qz);
-			padded = new float[fft.realLength()];
-			spectrum = fft.newSpectrum();
+			grid = fft.newGrid();
+			boxRows = fft.rows(0, ky, 0, kz);
 			final int h = qx / 2 + 1;
 			keep = new boolean[h * qy * qz];
 			for (int iz = 0; iz < qz; iz++) {
@@ -64,7 +67,8 @@ final class PsfConstraints {
 			}
 		} else {
 			fft = null;
-			padded = spectrum = null;
+			grid = null;
+			boxRows = null;
 			keep = null;
 		}
 	}
@@ -122,23 +126,29 @@ final class PsfConstraints {
 		}
 	}
 
-	/** Zeroes the transfer function outside the support (zero-padded DFT), crops back to the box. */
+	/**
+	 * Zeroes the transfer function outside the support (zero-padded DFT), crops back to the box. The forward
+	 * transform reads only the box's rows and the inverse makes only theirs ({@link RealFft#forwardInPlace},
+	 * {@link RealFft#inverseInPlace}: the same values on those rows as the whole transforms).
+	 */
 	void bandLimit(final float[] h) {
-		final int qx = fft.nx(), qy = fft.ny();
-		java.util.Arrays.fill(padded, 0f);
+		final int rs = fft.rowStride(), qy = fft.ny();
 		for (int z = 0; z < kz; z++)
-			for (int y = 0; y < ky; y++)
-				System.arraycopy(h, kx * (y + ky * z), padded, qx * (y + qy * z), kx);
-		fft.forward(padded, spectrum);
+			for (int y = 0; y < ky; y++) {
+				final int o = rs * (y + qy * z);
+				System.arraycopy(h, kx * (y + ky * z), grid, o, kx);
+				java.util.Arrays.fill(grid, o + kx, o + rs, 0f);
+			}
+		fft.forwardInPlace(grid, boxRows);
 		for (int i = 0; i < keep.length; i++)
 			if (!keep[i]) {
-				spectrum[2 * i] = 0;
-				spectrum[2 * i + 1] = 0;
+				grid[2 * i] = 0;
+				grid[2 * i + 1] = 0;
 			}
-		fft.inverse(spectrum, padded);
+		fft.inverseInPlace(grid, boxRows);
 		for (int z = 0; z < kz; z++)
 			for (int y = 0; y < ky; y++)
-				System.arraycopy(padded, qx * (y + qy * z), h, kx * (y + ky * z), kx);
+				System.arraycopy(grid, rs * (y + qy * z), h, kx * (y + ky * z), kx);
 	}
 
 	/**
