@@ -36,8 +36,9 @@ public final class BlindKeys {
 					"iterations between frames of the PSF history (at most Iterations)")
 			.word("edges", "Edges:", EdgeMode.NON_CIRCULANT.key(), DeconvolveKeys.EDGES)
 			.text("offset", "Offset:", "auto", "intensity units", "camera offset subtracted first: " + DeconvolveKeys.LEVEL + "; auto = the 0.1 % quantile")
-			.text("background", "Background:", "auto", "intensity units", "constant b in the image model H&middot;x + b: " + DeconvolveKeys.LEVEL
-					+ "; auto = sigma-clipped median after the offset; <code>dark</code> = the darkest region")
+			.text("background", "Background:", "dark", "intensity units", "constant b in the image model H&middot;x + b: " + DeconvolveKeys.LEVEL
+					+ "; <code>dark</code> (the default since 2026-12-04) = the darkest region after the offset, which leaves out-of-focus light to the object; "
+					+ "auto = sigma-clipped median after the offset")
 			.word("estimate", "Estimate:", "free-form", "<code>free-form</code> (voxel by voxel), <code>model-fit</code> (fit the PSF model's parameters, "
 					+ "scored on held-out data), <code>model-fit-refined</code> (then free-form within the trust radius); "
 					+ "<code>widefield-fit</code> / <code>widefield-fit-refined</code>: the same, but a Gaussian start is fitted as a widefield shape "

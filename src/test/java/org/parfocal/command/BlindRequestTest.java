@@ -40,6 +40,17 @@ class BlindRequestTest {
 			Map.entry("snapshot_interval", "1"), Map.entry("edges", "periodic"), Map.entry("offset", "auto"), Map.entry("background", "dark"),
 			Map.entry("estimate", "model-fit"), Map.entry("trust_radius", "0.3"), Map.entry("watch", "true"));
 
+	/**
+	 * A line without {@code background} assumes the darkest region (the default since 2026-12-04, chosen on the
+	 * independent scenes by {@code bin/parfocal-bench blind-background}: the median took the haze of the nuclei
+	 * scenes for background); a recorded {@code background=auto} keeps its old meaning.
+	 */
+	@Test
+	void backgroundDefaultsToTheDarkestRegionAndAutoKeepsItsMeaning() {
+		assertEquals(org.parfocal.deconv.Level.DARK, read(BASE.replace(" background=auto", "")).background());
+		assertEquals(org.parfocal.deconv.Level.ESTIMATED, read(BASE).background());
+	}
+
 	private static BlindRequest read(final String options) {
 		return BlindRequest.from(MacroOptions.parse(options));
 	}
