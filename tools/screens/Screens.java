@@ -221,7 +221,12 @@ public class Screens {
 	static void window(final String name, final Window w) throws Exception {
 		EventQueue.invokeLater(w::toFront); // not invokeAndWait: the event thread may be inside a modal dialog's loop
 		pause(700);
-		final Rectangle r = w.getBounds().intersection(new Rectangle(Toolkit.getDefaultToolkit().getScreenSize()));
+		// under Xvfb (no window manager) a dialog can report (0, 0) while it is drawn where ImageJ centred it
+		// (seen for the Blind Deconvolve, bead and options dialogs, not every run): wait a little for its place,
+		// else take the whole screen, which shows it wherever it is
+		for (int i = 0; i < 10 && w.getX() == 0 && w.getY() == 0; i++) pause(100);
+		final Rectangle screen = new Rectangle(Toolkit.getDefaultToolkit().getScreenSize());
+		final Rectangle r = w.getX() == 0 && w.getY() == 0 && w instanceof Dialog ? screen : w.getBounds().intersection(screen);
 		save(name, robot.createScreenCapture(r));
 	}
 
