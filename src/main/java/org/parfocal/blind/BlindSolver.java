@@ -68,8 +68,8 @@ final class BlindSolver {
 	 * The transform of the indicator of the window moved by the shift, one factor per axis (the indicator of a
 	 * box is separable): (re, im) per frequency, in double; Xᵀ1 is the correlation of x with that indicator.
 	 */
-	private final double[] windowX, windowY, windowZ;
-	/** {@link #windowX} in float, for the per-voxel product. */
+	private final double[] windowY, windowZ;
+	/** The x factor of the indicator's transform in float, for the per-voxel product. */
 	private final float[] windowXf;
 	/** Xᵀ1 at the PSF offsets of the last PSF update (box array). */
 	private final float[] windowSums;
@@ -112,7 +112,7 @@ final class BlindSolver {
 		this.lambdaH = (float) psfTv;
 		this.epsH = (float) Math.max(RichardsonLucyEngine.TV_EPSILON / h.length, Float.MIN_NORMAL);
 		tHoldsX = true;
-		windowX = boxTransform(w[0] + sx0, n[0], px, px / 2 + 1);
+		final double[] windowX = boxTransform(w[0] + sx0, n[0], px, px / 2 + 1);
 		windowY = boxTransform(w[1] + sy0, n[1], py, py);
 		windowZ = boxTransform(w[2] + sz0, n[2], pz, pz);
 		windowSums = new float[h.length];
